@@ -1,0 +1,7 @@
+"""Fieldphasor worksheets: declarations, validation, results, figures and reports.
+
+Imports only ``pycore`` and the standard library; never the browser. The worker talks
+to this package through :mod:`app.bridge` with JSON strings.
+"""
+
+__version__ = "0.1.0"

@@ -1,0 +1,68 @@
+"""Run ngspice (Debian's, batch mode) as an independent reference for AC network checks.
+
+``ac_node_voltages(netlist_body, freqs, nodes)`` runs one AC analysis per frequency list and
+returns complex node voltages. Tests that use it skip with a clear reason if ngspice is absent
+(the README's test command installs it on Debian).
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import subprocess
+import tempfile
+
+import pytest
+
+NGSPICE = shutil.which("ngspice")
+
+needs_ngspice = pytest.mark.skipif(NGSPICE is None, reason="ngspice not installed (apt-get install ngspice)")
+
+
+def ac_node_voltages(body: str, freqs: list[float], nodes: list[str]) -> dict[str, list[complex]]:
+    """Run an AC analysis at each frequency in ``freqs`` [Hz] for the netlist ``body``
+    (elements only, no .ac/.end) and return {node: [V(node) at each f]} as complex numbers.
+
+    A 1 A AC current source into a node gives that node's driving-point impedance as V.
+    """
+    if NGSPICE is None:
+        pytest.skip("ngspice not installed")
+    out: dict[str, list[complex]] = {n: [] for n in nodes}
+    with tempfile.TemporaryDirectory() as tmp:
+        for i, f in enumerate(freqs):
+            data = os.path.join(tmp, f"out{i}.txt")
+            vecs = " ".join(f"v({n})" for n in nodes)
+            deck = (
+                "* fieldphasor reference deck\n"
+                f"{body.strip()}\n"
+                f".ac lin 1 {f!r} {f!r}\n"
+                ".control\n"
+                "set wr_singlescale\n"
+                "set wr_vecnames\n"
+                "option numdgt=12\n"
+                "run\n"
+                f"wrdata {data} {vecs}\n"
+                ".endc\n"
+                ".end\n"
+            )
+            path = os.path.join(tmp, f"deck{i}.cir")
+            with open(path, "w") as fh:
+                fh.write(deck)
+            proc = subprocess.run([NGSPICE, "-b", path], capture_output=True, text=True, timeout=60)
+            if not os.path.exists(data):
+                raise RuntimeError(f"ngspice failed:\n{proc.stdout}\n{proc.stderr}")
+            with open(data) as fh:
+                lines = [ln.split() for ln in fh if ln.strip()]
+            header, row = lines[0], [float(x) for x in lines[-1]]
+            # with wr_singlescale: frequency, then re, im of each vector
+            for k, n in enumerate(nodes):
+                re_, im_ = row[1 + 2 * k], row[2 + 2 * k]
+                out[n].append(complex(re_, im_))
+    return out
+
+
+def impedance_at(body: str, freqs: list[float], node: str = "n1") -> list[complex]:
+    """Driving-point impedance [Ω] at ``node`` (to ground 0): the netlist gets a 1 A AC
+    current source injected into ``node``; returns V(node)/1 A at each frequency."""
+    deck = f"Iinj 0 {node} dc 0 ac 1\n{body}"
+    return ac_node_voltages(deck, freqs, [node])[node]
