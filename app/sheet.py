@@ -315,6 +315,7 @@ class Outcome:
         self.cautions: list[str] = []
         self.figures: list[dict] = []
         self.notes: list[str] = []
+        self.links: list[dict] = []
 
     def result(
         self,
@@ -375,6 +376,10 @@ class Outcome:
 
     def figure(self, title: str, svg: str) -> None:
         self.figures.append({"title": title, "svg": svg})
+
+    def link(self, label: str, worksheet: str, inputs: dict) -> None:
+        """Offer to open another worksheet with these inputs (texts by field name)."""
+        self.links.append({"label": label, "worksheet": worksheet, "inputs": {k: str(v) for k, v in inputs.items()}})
 
 
 ComputeFn = Callable[[Inputs, Outcome], None]
@@ -437,6 +442,8 @@ class Worksheet:
             "warnings": out.warnings,
             "cautions": out.cautions,
             "figures": out.figures,
+            "links": out.links if ok else [],
+            "notes": out.notes,
         }
         if general_error:
             res["error"] = general_error
