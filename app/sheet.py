@@ -219,7 +219,13 @@ class Inputs:
         else:
             items = text.split(",")
             if len(items) == 1:
-                items = text.split()
+                items = []
+                for tok in text.split():
+                    # a unit typed after a space ("50 kvar 0.1 Mvar") belongs to the number before it
+                    if items and not (tok[0].isdigit() or tok[0] in "+-.\u2212"):
+                        items[-1] += " " + tok
+                    else:
+                        items.append(tok)
         out: list[float] = []
         for i, item in enumerate(items, 1):
             item = item.strip()

@@ -107,13 +107,15 @@ def xy_chart(
     markers: Sequence[dict] = (),
     bands: Sequence[dict] = (),
     desc: str = "",
+    dots: Sequence[dict] = (),
     width: int = 640,
     height: int = 360,
 ) -> str:
     """A line chart. ``series``: dicts with ``points`` [(x, y)…], ``label`` and ``cls``
     (``fp-s1``…``fp-s6``). ``markers``: vertical lines ``{"x", "label", "cls"}``;
     ``bands``: shaded x-ranges ``{"x0", "x1"}``. Non-finite or non-positive (on log
-    axes) points are skipped.
+    axes) points are skipped. ``dots``: points to mark on the plot ``{"x", "y", "label",
+    "cls"}`` (a filled circle with an optional short label), e.g. a resonance peak.
     """
     left, right, top, bottom = 64, 16, 34, 52
     pw, ph = width - left - right, height - top - bottom
@@ -204,6 +206,13 @@ def xy_chart(
                 x = px(m["x"])
                 svg.line(x, top, x, top + ph, m.get("cls", "fp-mark"), dash="5 4", width=2)
                 svg.text(x + 4, top + 12, m.get("label", ""), cls="fp-text", size=11)
+    for d in dots:
+        if ok(d["x"], d["y"]):
+            x, y = px(d["x"]), py(d["y"])
+            if left <= x <= left + pw and top <= y <= top + ph:
+                svg.circle(x, y, 4, d.get("cls", "fp-s1-fill"))
+                if d.get("label"):
+                    svg.text(x + 6, y - 6, d["label"], cls="fp-text", size=11)
     legend_x = left + 8
     for i, s in enumerate(series):
         pts = [(px(x), py(y)) for x, y in s["points"] if ok(x, y)]

@@ -29,6 +29,7 @@ PREFIXES = {
 
 _NUMBER = re.compile(r"^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?")
 _SPACES = re.compile(r"[\s\u00a0\u202f_']+")
+_SPACED_DIGITS = re.compile(r"(?<=\d)[\s\u00a0\u202f_']+(\d+)")
 
 # Unit families: base unit symbols (lower-cased keys) → (family, scale to the family's base).
 # The base of every family is the SI unit (W, VA, var, V, A, Hz, Ω, H, F, s, Wh).
@@ -85,6 +86,9 @@ def split_number(text: str) -> tuple[float, str]:
     raw = str(text).strip()
     if not raw:
         raise InputError("Enter a value.")
+    for m in _SPACED_DIGITS.finditer(raw):
+        if len(m.group(1)) != 3:  # a space between digits is only a thousands separator
+            raise InputError(f"'{_short(raw)}' is not a single number.")
     s = _SPACES.sub("", raw)
     s = s.replace("\u2212", "-")  # typographic minus
     low = s.lower()

@@ -1,0 +1,145 @@
+"""The app loads, computes in Pyodide, installs, and keeps working offline (issue: foundation)."""
+
+from __future__ import annotations
+
+import json
+import os
+
+import pytest
+
+from .conftest import (
+    ARGS,
+    CHROMIUM,
+    INIT_SCRIPT,
+    PHONE,
+    Guard,
+    cpython_compute,
+    open_sheet,
+    origin_of,
+    settle,
+    shot,
+    wait_ready,
+)
+import build
+
+
+def result_text(page, name: str) -> str:
+    return page.inner_text(f"[data-result='{name}'] .a-value, [data-result='{name}'] .r-value").strip()
+
+
+def choose(page, field: str, value: str):
+    page.click(f"label[for='in-{field}-{value}']")
+
+
+def test_impedance_computes_from_typed_input_same_as_cpython(phone):
+    open_sheet(phone, "impedance")
+    choose(phone, "mode", "z")
+    phone.fill("#in-z", "3 + j4")
+    settle(phone)
+    # |Z| of 3 + j4 Ω is 5 Ω (3-4-5 right triangle) and PF = 3/5 = 0.6 lagging.
+    assert result_text(phone, "z_mag") == "5 Ω"
+    assert result_text(phone, "pf") == "0.6000 lagging"
+    # The worker's answer equals CPython's for the same inputs (catches drift between the two).
+    inputs = phone.evaluate("() => ({...window.fieldphasor.state.inputs})")
+    ref = cpython_compute("impedance", inputs)
+    shown = {r["name"]: r["display"] for r in phone.evaluate("() => window.fieldphasor.state.lastResult.results")}
+    assert shown == {r["name"]: r["display"] for r in ref["results"]}
+    shot(phone, "impedance-phone")
+
+
+def test_network_entry_and_polar_notation(phone):
+    open_sheet(phone, "impedance")
+    choose(phone, "mode", "z")
+    phone.fill("#in-z", "10∠-30")
+    settle(phone)
+    # 10∠-30° → 8.660 − j5.000 Ω (cos 30° = 0.8660), leading PF 0.8660.
+    assert result_text(phone, "z_rect") == "8.66 − j5 Ω"
+    assert result_text(phone, "pf") == "0.8660 leading"
+    choose(phone, "mode", "network")
+    settle(phone)
+    assert phone.is_visible("[data-field='elements']")
+    assert not phone.is_visible("[data-field='z']")
+
+
+def test_bad_input_shows_message_and_keeps_text(phone):
+    open_sheet(phone, "impedance")
+    choose(phone, "mode", "z")
+    phone.fill("#in-z", "12..5 - j4")
+    settle(phone)
+    err = phone.locator("#err-z")
+    assert err.is_visible()
+    assert "decimal mark" in err.inner_text()
+    assert phone.input_value("#in-z") == "12..5 - j4"
+    assert phone.get_attribute("#in-z", "aria-invalid") == "true"
+    phone.fill("#in-f", "-50")
+    settle(phone)
+    assert "above 0" in phone.inner_text("#err-f")
+    # What was typed survives a reload (autosaved on the device).
+    phone.wait_for_timeout(400)
+    phone.reload()
+    wait_ready(phone)
+    settle(phone)
+    assert phone.input_value("#in-z") == "12..5 - j4"
+    assert phone.input_value("#in-f") == "-50"
+
+
+def test_offline_reload_after_one_visit(browser, dist):
+    srv, url = build.serve_in_thread(dist)
+    ctx = browser.new_context(viewport=PHONE, is_mobile=True, has_touch=True)
+    ctx.add_init_script(INIT_SCRIPT)
+    page = ctx.new_page()
+    guard = Guard(origin_of(url))
+    guard.attach(page)
+    try:
+        page.goto(url + "#/sheet/impedance")
+        wait_ready(page)
+        settle(page)
+        page.evaluate("async () => { await navigator.serviceWorker.ready; }")
+        page.wait_for_function("() => !!navigator.serviceWorker.controller", timeout=30_000)
+        # Everything precached before we cut the network.
+        page.wait_for_function(
+            """async () => { const keys = await caches.keys(); return keys.some(k => k.startsWith('fieldphasor-')); }""",
+            timeout=60_000,
+        )
+        srv.shutdown()
+        srv.server_close()
+        ctx.set_offline(True)
+        page.reload()
+        wait_ready(page)
+        page.click("label[for='in-mode-z']")
+        page.fill("#in-z", "6 - j8")
+        settle(page)
+        assert page.inner_text("[data-result='z_mag'] .a-value").strip() == "10 Ω"  # 6-8-10 triangle
+        assert "leading" in page.inner_text("[data-result='pf'] .a-value")
+        guard.check(page)
+    finally:
+        ctx.close()
+
+
+def test_installable_no_errors(pw, site, fresh_profile):
+    # A persistent context: an ordinary one is incognito-like and always reports 'in-incognito'.
+    ctx = pw.chromium.launch_persistent_context(fresh_profile, executable_path=CHROMIUM, args=ARGS, viewport=PHONE)
+    try:
+        page = ctx.new_page()
+        page.goto(site)
+        wait_ready(page)
+        page.evaluate("async () => { await navigator.serviceWorker.ready; }")
+        page.wait_for_function("() => !!navigator.serviceWorker.controller", timeout=30_000)
+        cdp = ctx.new_cdp_session(page)
+        errors = cdp.send("Page.getInstallabilityErrors")["installabilityErrors"]
+        assert errors == []
+        manifest = cdp.send("Page.getAppManifest")
+        data = json.loads(manifest["data"])
+        assert data["display"] == "standalone"
+        sizes = {(i["sizes"], i.get("purpose", "any")) for i in data["icons"]}
+        assert ("192x192", "any") in sizes and ("512x512", "maskable") in sizes
+    finally:
+        ctx.close()
+
+
+def test_tablet_layout_puts_inputs_beside_results(tablet):
+    open_sheet(tablet, "impedance")
+    form = tablet.locator("#form").bounding_box()
+    res = tablet.locator("#results").bounding_box()
+    assert res["x"] >= form["x"] + form["width"] - 1  # side by side, not stacked
+    shot(tablet, "impedance-tablet")

@@ -1,0 +1,86 @@
+"""The build: reproducible output, a precache list that matches every file, a valid manifest."""
+
+import hashlib
+import json
+import os
+import re
+import zipfile
+
+import pytest
+
+import build
+
+
+@pytest.fixture(scope="module")
+def dist():
+    if not (os.environ.get("FIELDPHASOR_DIST_BUILT") and os.path.exists(os.path.join(build.DIST, "sw.js"))):
+        build.build(quiet=True)
+    return build.DIST
+
+
+def tree_digest(root):
+    out = {}
+    for folder, dirs, names in os.walk(root):
+        for n in names:
+            p = os.path.join(folder, n)
+            with open(p, "rb") as fh:
+                out[os.path.relpath(p, root)] = hashlib.sha256(fh.read()).hexdigest()
+    return out
+
+
+def test_building_twice_gives_identical_output(dist):
+    first = tree_digest(dist)
+    build.build(quiet=True)
+    assert tree_digest(build.DIST) == first
+
+
+def test_precache_lists_every_file_with_its_hash(dist):
+    sw = open(os.path.join(dist, "sw.js"), encoding="utf-8").read()
+    assets = json.loads(re.search(r"const ASSETS = (\[.*?\]);", sw, re.S).group(1))
+    listed = {p: h for p, h in assets}
+    on_disk = {k.replace(os.sep, "/"): v for k, v in tree_digest(dist).items() if k != "sw.js"}
+    assert listed == on_disk
+    version = re.search(r'const VERSION = "([0-9a-f]+)"', sw).group(1)
+    assert version == hashlib.sha256(json.dumps(sorted(assets)).encode()).hexdigest()[:16]
+
+
+def test_app_wheel_is_pure_python_and_complete(dist):
+    engine = json.load(open(os.path.join(dist, "engine.json")))
+    path = os.path.join(dist, "wheels", engine["app_wheel"])
+    assert engine["app_wheel"].endswith("-py3-none-any.whl")
+    with zipfile.ZipFile(path) as zf:
+        names = set(zf.namelist())
+        assert "pycore/phasor.py" in names and "app/bridge.py" in names
+        assert not any(n.endswith((".so", ".pyc")) for n in names)
+        record = zf.read(next(n for n in names if n.endswith("RECORD"))).decode()
+        assert "app/bridge.py,sha256=" in record
+    with open(path, "rb") as fh:
+        assert hashlib.sha256(fh.read()).hexdigest() == engine["app_wheel_sha256"]
+
+
+def test_manifest_and_icons(dist):
+    m = json.load(open(os.path.join(dist, "manifest.webmanifest"), encoding="utf-8"))
+    for key in ("name", "short_name", "start_url", "scope", "display", "theme_color", "background_color", "icons"):
+        assert m[key]
+    assert m["display"] == "standalone"
+    for icon in m["icons"]:
+        data = open(os.path.join(dist, icon["src"]), "rb").read()
+        assert data[:8] == b"\x89PNG\r\n\x1a\n"
+        w, h = int.from_bytes(data[16:20], "big"), int.from_bytes(data[20:24], "big")
+        assert f"{w}x{h}" == icon["sizes"]
+    assert any(i["purpose"] == "maskable" for i in m["icons"])
+
+
+def test_pyodide_pinned_and_wasm_served_with_right_type(dist):
+    assert os.path.exists(os.path.join(dist, "pyodide", "pyodide.asm.wasm"))
+    lock = json.load(open(os.path.join(dist, "pyodide", "pyodide-lock.json")))
+    assert lock["info"]["python"].startswith("3.14")
+    assert build.Handler.extensions_map[".wasm"] == "application/wasm"
+
+
+def test_csp_forbids_inline_and_eval(dist):
+    html = open(os.path.join(dist, "index.html"), encoding="utf-8").read()
+    csp = re.search(r'http-equiv="Content-Security-Policy" content="([^"]+)"', html).group(1)
+    assert "'unsafe-inline'" not in csp and "'unsafe-eval'" not in csp
+    assert "script-src 'self' 'wasm-unsafe-eval'" in csp
+    assert "<script>" not in html  # no inline script

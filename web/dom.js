@@ -1,0 +1,42 @@
+// Tiny DOM builder: elements from tag, attributes and children. Text is always set as text
+// (never parsed as HTML); SVG from Python is parsed as an SVG document, not as HTML.
+export function h(tag, attrs = {}, ...children) {
+  const el = document.createElement(tag);
+  for (const [k, v] of Object.entries(attrs || {})) {
+    if (v === false || v === null || v === undefined) continue;
+    if (k === "class") el.className = v;
+    else if (k === "text") el.textContent = v;
+    else if (k.startsWith("on") && typeof v === "function") el.addEventListener(k.slice(2), v);
+    else if (k === "dataset") Object.assign(el.dataset, v);
+    else if (v === true) el.setAttribute(k, "");
+    else el.setAttribute(k, String(v));
+  }
+  for (const c of children.flat()) {
+    if (c === null || c === undefined || c === false) continue; // never append a null as text
+    el.append(c instanceof Node ? c : document.createTextNode(String(c)));
+  }
+  return el;
+}
+
+const parser = new DOMParser();
+
+/** Parse SVG text from the app's Python code into a node; drops any script or event attribute. */
+export function svgNode(text) {
+  const doc = parser.parseFromString(text, "image/svg+xml");
+  const root = doc.documentElement;
+  if (root.nodeName !== "svg" || doc.getElementsByTagName("parsererror").length) {
+    return h("p", { class: "muted", text: "This figure could not be drawn." });
+  }
+  for (const bad of root.querySelectorAll("script, foreignObject")) bad.remove();
+  for (const el of [root, ...root.querySelectorAll("*")]) {
+    for (const a of [...el.attributes]) {
+      if (/^on/i.test(a.name) || /^\s*javascript:/i.test(a.value)) el.removeAttribute(a.name);
+    }
+  }
+  return document.importNode(root, true);
+}
+
+export function clear(el) {
+  while (el.firstChild) el.firstChild.remove();
+  return el;
+}

@@ -1,0 +1,272 @@
+// Renders any worksheet from its declaration (fields from Python) and any compute result.
+// Worksheet-agnostic: nothing here knows a particular worksheet or formula.
+import { h, svgNode, clear } from "./dom.js";
+
+const unitText = (u) => (u ? ` (${u})` : "");
+
+function defaultOf(f) {
+  return f.default ?? "";
+}
+
+export function currentValue(f, inputs) {
+  return Object.prototype.hasOwnProperty.call(inputs, f.name) ? inputs[f.name] : defaultOf(f);
+}
+
+export function isVisible(f, fieldsByName, inputs) {
+  if (!f.show_when) return true;
+  const ctl = fieldsByName[f.show_when.field];
+  if (!ctl) return true;
+  return isVisible(ctl, fieldsByName, inputs) && f.show_when.in.includes(currentValue(ctl, inputs));
+}
+
+function parseRows(text, ncol) {
+  try {
+    const rows = JSON.parse(text || "[]");
+    if (Array.isArray(rows)) return rows.map((r) => (Array.isArray(r) ? r.map((c) => (c == null ? "" : String(c))) : new Array(ncol).fill("")));
+  } catch { /* fall through */ }
+  return [];
+}
+
+/**
+ * Build the form. `onChange(name, text)` is called on every edit. Returns helpers to show
+ * messages and refresh which fields are visible.
+ */
+export function renderForm(form, decl, inputs, onChange) {
+  clear(form);
+  const byName = Object.fromEntries(decl.fields.map((f) => [f.name, f]));
+  const wrappers = {};
+  let section = form;
+  for (const f of decl.fields) {
+    if (f.group) {
+      section = h("fieldset", { class: "group" }, h("legend", { text: f.group }));
+      form.append(section);
+    }
+    const w = renderField(f, currentValue(f, inputs), (text) => {
+      onChange(f.name, text);
+      if (decl.fields.some((g) => g.show_when && g.show_when.field === f.name)) refreshVisibility();
+    });
+    wrappers[f.name] = w;
+    section.append(w);
+  }
+  function refreshVisibility() {
+    for (const f of decl.fields) wrappers[f.name].hidden = !isVisible(f, byName, inputs);
+    for (const fs of form.querySelectorAll("fieldset.group")) {
+      fs.hidden = [...fs.querySelectorAll(":scope > .field")].every((el) => el.hidden);
+    }
+  }
+  refreshVisibility();
+  return {
+    refreshVisibility,
+    showErrors(errors) {
+      for (const f of decl.fields) {
+        const w = wrappers[f.name];
+        const msg = errors[f.name] || "";
+        const err = w.querySelector(".err");
+        if (err.textContent !== msg) err.textContent = msg;
+        err.hidden = !msg;
+        w.classList.toggle("invalid", !!msg);
+        for (const inp of w.querySelectorAll("input, select, textarea")) {
+          if (msg) inp.setAttribute("aria-invalid", "true");
+          else inp.removeAttribute("aria-invalid");
+        }
+      }
+    },
+    focusField(name) {
+      const el = wrappers[name] && wrappers[name].querySelector("input, select, textarea");
+      if (el) el.focus();
+    },
+  };
+}
+
+function renderField(f, value, set) {
+  const id = `in-${f.name}`;
+  const helpId = `help-${f.name}`;
+  const errId = `err-${f.name}`;
+  const describedBy = [f.help ? helpId : "", errId].filter(Boolean).join(" ");
+  const wrap = h("div", { class: `field kind-${f.kind}`, "data-field": f.name });
+  const help = f.help ? h("p", { class: "help", id: helpId, text: f.help }) : null;
+  const err = h("p", { class: "err", id: errId, hidden: true });
+
+  if (f.kind === "choice" && f.options.length <= 4) {
+    const fs = h("fieldset", { class: "seg", "aria-describedby": describedBy });
+    fs.append(h("legend", { text: f.label }));
+    const row = h("div", { class: "seg-row" });
+    for (const o of f.options) {
+      const oid = `${id}-${o.value}`;
+      const input = h("input", { type: "radio", name: id, id: oid, value: o.value, checked: o.value === value });
+      input.addEventListener("change", () => input.checked && set(o.value));
+      row.append(h("span", { class: "seg-opt" }, input, h("label", { for: oid, text: o.label })));
+    }
+    fs.append(row);
+    wrap.append(...[fs, help, err].filter(Boolean));
+    return wrap;
+  }
+
+  const label = h("label", { for: id }, f.label, h("span", { class: "unit", text: unitText(f.unit) }));
+  let control;
+  if (f.kind === "choice") {
+    control = h("select", { id, "aria-describedby": describedBy });
+    for (const o of f.options) control.append(h("option", { value: o.value, selected: o.value === value, text: o.label }));
+    control.addEventListener("change", () => set(control.value));
+  } else if (f.kind === "table") {
+    control = renderTable(f, value, set, describedBy);
+    wrap.append(...[h("div", { class: "table-label", id: `${id}-label` }, f.label, h("span", { class: "unit", text: unitText(f.unit) })), help, control, err].filter(Boolean));
+    return wrap;
+  } else {
+    const attrs = {
+      id,
+      type: "text",
+      value,
+      "aria-describedby": describedBy,
+      spellcheck: "false",
+      autocapitalize: "off",
+      placeholder: f.placeholder || "",
+      enterkeyhint: "next",
+    };
+    if (f.kind === "number") attrs.inputmode = "decimal";
+    if (f.kind === "text" && f.name.includes("notes")) control = h("textarea", { ...attrs, rows: 3 }, value);
+    else control = h("input", attrs);
+    control.addEventListener("input", () => set(control.value));
+  }
+  wrap.append(...[label, help, control].filter(Boolean));
+  const chips = [];
+  if (f.kind === "complex") {
+    for (const [txt, name] of [["j", "imaginary j"], ["∠", "angle mark"], ["−", "minus"]]) {
+      chips.push(h("button", { type: "button", class: "chip", "aria-label": `Insert ${name}`, onclick: () => insertAtCursor(control, txt === "−" ? "-" : txt, set) }, txt));
+    }
+  }
+  for (const s of f.suggest || []) {
+    chips.push(h("button", { type: "button", class: "chip", "aria-label": `Set ${f.label} to ${s}${f.unit ? " " + f.unit : ""}`, onclick: () => { control.value = s; set(s); control.focus(); } }, `${s}${f.unit && f.unit !== "%" ? " " + f.unit : f.unit}`));
+  }
+  if (chips.length) wrap.append(h("div", { class: "chips" }, chips));
+  wrap.append(err);
+  return wrap;
+}
+
+function insertAtCursor(input, text, set) {
+  const start = input.selectionStart ?? input.value.length;
+  const end = input.selectionEnd ?? input.value.length;
+  input.value = input.value.slice(0, start) + text + input.value.slice(end);
+  input.setSelectionRange(start + text.length, start + text.length);
+  input.focus();
+  set(input.value);
+}
+
+function renderTable(f, value, set, describedBy) {
+  const cols = f.columns;
+  let rows = parseRows(value, cols.length);
+  const box = h("div", { class: "tbl", role: "group", "aria-labelledby": `in-${f.name}-label`, "aria-describedby": describedBy });
+  const body = h("div", { class: "tbl-body" });
+  const count = h("p", { class: "muted tbl-count" });
+  const emit = () => {
+    count.textContent = `${rows.length} row${rows.length === 1 ? "" : "s"}`;
+    set(JSON.stringify(rows));
+  };
+  const head = h("div", { class: "tbl-row tbl-head", "aria-hidden": "true" },
+    cols.map((c) => h("span", { class: "tbl-cell", text: c.label + unitText(c.unit) })), h("span", { class: "tbl-act" }));
+  function rowEl(i) {
+    const r = rows[i];
+    const el = h("div", { class: "tbl-row" });
+    cols.forEach((c, j) => {
+      const lab = `Row ${i + 1}, ${c.label}${c.unit ? " (" + c.unit + ")" : ""}`;
+      let inp;
+      if (c.kind === "choice") {
+        inp = h("select", { "aria-label": lab });
+        for (const o of c.options) inp.append(h("option", { value: o.value, selected: o.value === r[j], text: o.label }));
+        if (!r[j]) r[j] = c.options[0].value;
+        inp.addEventListener("change", () => { rows[i][j] = inp.value; emit(); });
+      } else {
+        inp = h("input", { type: "text", value: r[j] ?? "", "aria-label": lab, inputmode: c.kind === "number" ? "decimal" : "text", spellcheck: "false", autocapitalize: "off" });
+        inp.addEventListener("input", () => { rows[i][j] = inp.value; emit(); });
+      }
+      el.append(h("span", { class: "tbl-cell", "data-col": c.label + unitText(c.unit) }, inp));
+    });
+    el.append(h("span", { class: "tbl-act" }, h("button", {
+      type: "button", class: "btn ghost small", "aria-label": `Remove row ${i + 1}`,
+      onclick: () => { rows.splice(i, 1); redraw(); emit(); },
+    }, "✕")));
+    return el;
+  }
+  function redraw() {
+    clear(body);
+    const frag = document.createDocumentFragment();
+    for (let i = 0; i < rows.length; i++) frag.append(rowEl(i));
+    body.append(frag);
+    count.textContent = `${rows.length} row${rows.length === 1 ? "" : "s"}`;
+  }
+  const add = h("button", {
+    type: "button", class: "btn", onclick: () => {
+      if (rows.length >= (f.max_rows || 500)) return;
+      rows.push(cols.map((c) => (c.kind === "choice" ? c.options[0].value : "")));
+      redraw();
+      emit();
+      const inputs = body.lastChild.querySelectorAll("input, select");
+      if (inputs.length) inputs[0].focus();
+    },
+  }, "Add row");
+  redraw();
+  box.append(head, body, h("div", { class: "tbl-foot" }, add, count));
+  return box;
+}
+
+const STATUS_WORD = { ok: "OK", warn: "Check", fail: "Fails" };
+
+/** Render a compute result (the bridge's JSON) into the results container. */
+export function renderResults(el, res, { onLink } = {}) {
+  clear(el);
+  if (res.error) el.append(h("p", { class: "msg fail", role: "alert", text: res.error }));
+  if (!res.ok) {
+    const n = Object.keys(res.field_errors || {}).length;
+    if (n) el.append(h("p", { class: "msg warn", text: `${n} input${n === 1 ? " needs" : "s need"} attention — see the message${n === 1 ? "" : "s"} by the field${n === 1 ? "" : "s"}.` }));
+  }
+  const results = res.results || [];
+  const keys = results.filter((r) => r.key);
+  if (keys.length) {
+    el.append(h("div", { class: "answers" }, keys.map((r) => h("div", { class: `answer ${r.status || ""}`, "data-result": r.name },
+      h("span", { class: "a-label", text: r.label }),
+      h("span", { class: "a-value", text: r.display }),
+      r.status ? h("span", { class: "a-status", text: STATUS_WORD[r.status] || r.status }) : null,
+      howTo(r)))));
+  }
+  for (const w of res.warnings || []) el.append(h("p", { class: "msg warn" }, h("strong", { text: "Warning: " }), w));
+  const rest = results.filter((r) => !r.key);
+  if (rest.length) {
+    let group = null;
+    let dl = null;
+    for (const r of rest) {
+      if (!dl || (r.group || "") !== group) {
+        group = r.group || "";
+        if (group) el.append(h("h3", { text: group }));
+        dl = h("dl", { class: "res" });
+        el.append(dl);
+      }
+      dl.append(h("div", { class: `res-row ${r.status || ""}`, "data-result": r.name },
+        h("dt", { text: r.label }),
+        h("dd", {}, h("span", { class: "r-value", text: r.display }), r.status ? h("span", { class: "a-status", text: " " + (STATUS_WORD[r.status] || r.status) }) : null, howTo(r))));
+    }
+  }
+  for (const t of res.tables || []) {
+    el.append(h("h3", { text: t.title }));
+    el.append(h("div", { class: "tbl-scroll", tabindex: "0", role: "region", "aria-label": t.title },
+      h("table", {}, h("thead", {}, h("tr", {}, t.columns.map((c) => h("th", { scope: "col", text: c })))),
+        h("tbody", {}, t.rows.map((r) => h("tr", {}, r.map((c) => h("td", { text: c }))))))));
+    if (t.note) el.append(h("p", { class: "muted", text: t.note }));
+  }
+  for (const fig of res.figures || []) {
+    el.append(h("figure", { class: "fig" }, svgNode(fig.svg), h("figcaption", { text: fig.title })));
+  }
+  for (const n of res.notes || []) el.append(h("p", { class: "muted", text: n }));
+  if ((res.links || []).length) {
+    el.append(h("div", { class: "links" }, res.links.map((l) => h("button", { type: "button", class: "btn", onclick: () => onLink && onLink(l) }, l.label))));
+  }
+  if ((res.cautions || []).length) {
+    el.append(h("aside", { class: "cautions", "aria-label": "Safety cautions" }, h("h3", { text: "Cautions" }), h("ul", {}, res.cautions.map((c) => h("li", { text: c })))));
+  }
+}
+
+function howTo(r) {
+  if (!r.method && !r.source) return null;
+  return h("details", { class: "how" }, h("summary", { text: "How" }),
+    r.method ? h("p", {}, h("strong", { text: "Method: " }), r.method) : null,
+    r.source ? h("p", {}, h("strong", { text: "Source: " }), r.source) : null);
+}
