@@ -1,0 +1,315 @@
+"""Bus resonance scan: will this capacitor bank resonate with the supply transformer?
+
+|Z| seen at the bus against harmonic order 1–50 for each cumulative step combination,
+the parallel-resonance order and frequency of each from a fine search for the peak, the
+√(S_sc/Q) estimate beside it, and a warning where a resonance sits near a harmonic the
+plant's loads produce.
+"""
+
+from __future__ import annotations
+
+import math
+
+from pycore import busscan, supply
+from pycore.errors import InputError
+
+from .. import cautions, fmt
+from ..sheet import Field, FieldError, Worksheet
+from ..svg import xy_chart
+
+SRC_SCAN = "Circuit theory (parallel resonance of supply inductance and bank); per-unit method, IEEE Std 141 (Red Book)"
+SRC_EST = "IEEE Std 1036 (shunt capacitor application guide); Dugan et al., Electrical Power Systems Quality"
+SRC_PU = "Per-unit method, IEEE Std 141 (Red Book), short-circuit chapter"
+
+MAX_STEPS = 12
+
+FIELDS = [
+    Field(
+        "v_ll",
+        "System voltage (line to line)",
+        unit="V",
+        default="400",
+        min=0,
+        min_open=True,
+        max=69000,
+        suggest=["400", "480", "600", "690"],
+        group="Supply",
+        help="The bus voltage the capacitors connect to; kV may be typed (0.48 kV).",
+    ),
+    Field("f", "Frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
+    Field(
+        "tx_kva",
+        "Transformer rating",
+        unit="kVA",
+        default="1250",
+        min=0,
+        min_open=True,
+        max=1e6,
+        suggest=["500", "1000", "1600", "2500"],
+        help="Nameplate rating of the transformer feeding the bus; MVA may be typed (1.6 MVA).",
+    ),
+    Field(
+        "tx_z",
+        "Transformer impedance",
+        unit="%",
+        default="6",
+        min=0.5,
+        max=40,
+        suggest=["4", "5.75", "6"],
+        help="Impedance voltage from the nameplate, in % on the transformer's own rating.",
+    ),
+    Field(
+        "x_r",
+        "Transformer X/R ratio",
+        default="5",
+        required=False,
+        min=0,
+        min_open=True,
+        max=100,
+        help="Optional. Empty: the transformer is taken as a pure reactance (no damping, the highest peaks).",
+    ),
+    Field(
+        "fault_mva",
+        "Upstream fault level",
+        unit="MVA",
+        default="250",
+        required=False,
+        min=0,
+        min_open=True,
+        max=1e5,
+        help="Optional: the utility's short-circuit level at the transformer's primary. Empty: infinite bus "
+        "(puts the resonance slightly high).",
+    ),
+    Field(
+        "load_kw",
+        "Resistive load (damping)",
+        unit="kW",
+        default="150",
+        required=False,
+        min=0,
+        group="Load",
+        help="Optional: load that damps resonance, modelled as a resistance V²/P (heaters, lighting, "
+        "resistive process load). Leave out motors and drives: they give little damping. Empty or 0: no damping.",
+    ),
+    Field(
+        "single_phase",
+        "Single-phase electronic loads",
+        kind="choice",
+        default="no",
+        options=[
+            ("no", "No: mainly three-phase loads (drives, rectifiers)"),
+            ("yes", "Yes: many single-phase loads (computers, LED lighting)"),
+        ],
+        help="Single-phase rectifier loads add the 3rd harmonic to the harmonics checked.",
+    ),
+    Field(
+        "steps",
+        "Capacitor steps",
+        kind="list",
+        unit="kvar",
+        default="50, 50, 100, 100, 100",
+        min=0,
+        min_open=True,
+        max=1e5,
+        group="Capacitor bank",
+        help="Step sizes in kvar at the system voltage, in the order the controller switches them in "
+        "(comma separated). Each combination 1, 1+2, 1+2+3… is scanned.",
+    ),
+    Field(
+        "margin",
+        "Margin around each harmonic",
+        unit="",
+        default="0.5",
+        required=False,
+        min=0,
+        max=5,
+        suggest=["0.3", "0.5", "1"],
+        help="Warn when a resonance lies within this many harmonic orders of a harmonic present (0.5 by common practice).",
+    ),
+]
+
+
+def _label(i: int) -> str:
+    return "step 1" if i == 1 else f"steps 1–{i}"
+
+
+def _figure(model, peaks, harmonics, margin) -> str:
+    series = [{"points": busscan.supply_scan(model), "label": "no bank", "cls": "fp-grid", "width": 1.5, "dash": "6 4"}]
+    dots = []
+    for i, p in enumerate(peaks, 1):
+        cls = f"fp-s{(i - 1) % 6 + 1}"
+        series.append({"points": p.points, "label": f"{_label(i)}: {fmt.sig(p.q_kvar, 4)} kvar", "cls": cls})
+        if p.order is not None and p.z_peak is not None and math.isfinite(p.z_peak):
+            dots.append({"x": p.order, "y": p.z_peak, "cls": cls + "-fill"})
+    markers = [{"x": h, "label": str(h), "cls": "fp-mark"} for h in harmonics]
+    bands = [{"x0": h - margin, "x1": h + margin, "cls": "fp-band"} for h in harmonics] if margin > 0 else []
+    found = [p for p in peaks if p.order is not None]
+    desc = (
+        "Impedance magnitude seen at the bus (log scale) against harmonic order 1 to 50, one line per step "
+        "combination and a dashed line for the supply alone. Harmonics present are marked "
+        + ", ".join(str(h) for h in harmonics)
+        + "; resonance peaks are dotted"
+        + (": " + ", ".join(f"{fmt.sig(p.q_kvar, 4)} kvar at order {fmt.sig(p.order, 3)}" for p in found) if found else "")
+        + "."
+    )
+    return xy_chart(
+        "Bus impedance against harmonic order",
+        series,
+        x_label="Harmonic order h (× fundamental)",
+        y_label="|Z| (Ω)",
+        log_y=True,
+        markers=markers,
+        bands=bands,
+        dots=dots,
+        desc=desc,
+        height=400,
+    )
+
+
+def compute(ins, out):
+    v = ins.num("v_ll")
+    f = ins.num("f")
+    kva = ins.num("tx_kva")
+    zp = ins.num("tx_z")
+    x_r = ins.num("x_r")
+    fault = ins.num("fault_mva")
+    load = ins.num("load_kw")
+    sp = ins.choice("single_phase")
+    steps = ins.numbers("steps")
+    margin = ins.num("margin")
+    if ins.errors:
+        return
+    if len(steps) > MAX_STEPS:
+        raise FieldError("steps", f"At most {MAX_STEPS} steps; combine small ones or scan the bank in two parts.")
+    margin = 0.5 if margin is None else margin
+    try:
+        model = busscan.bus_model(v, f, kva, zp, x_r, None if fault is None else fault * 1000.0, load)
+        peaks = busscan.scan(model, steps)
+    except InputError as e:
+        raise FieldError("steps", str(e)) from None
+    except ArithmeticError:
+        raise InputError("These values are out of range for a calculation; check the units.") from None
+    total = peaks[-1].q_kvar
+    if total >= model.s_sc_kva:
+        raise FieldError("steps", f"The bank ({fmt.sig(total)} kvar) is as large as the bus short-circuit level "
+                                  f"({fmt.sig(model.s_sc_kva)} kVA): check the step sizes and their unit (kvar).")
+
+    harmonics = tuple(sorted(set(supply.CHARACTERISTIC_ORDERS) | ({3} if sp == "yes" else set())))
+    h_words = ", ".join(str(h) for h in harmonics)
+
+    # headline: the full bank
+    full = peaks[-1]
+    full_near = supply.near_harmonic(full.order, harmonics, margin) if full.order is not None else None
+    near_count = 0
+    rows = []
+    for i, p in enumerate(peaks, 1):
+        if p.order is None:
+            near = None
+            order_txt = "below 1" if p.where == "below" else "above 50"
+            f_txt = "—"
+            z_txt = "—"
+            mag_txt = "—"
+        else:
+            near = supply.near_harmonic(p.order, harmonics, margin)
+            order_txt = f"{p.order:.2f}"
+            f_txt = fmt.si(p.freq_hz, "Hz", 4)
+            z_txt = "∞ (undamped)" if not math.isfinite(p.z_peak) else fmt.si(p.z_peak, "Ω", 3)
+            mag_txt = "∞" if not math.isfinite(p.z_peak) else f"× {fmt.sig(p.z_peak / p.z_supply, 3)}"
+        if near is not None:
+            near_count += 1
+            out.warn(
+                f"With {_label(i)} in ({fmt.sig(p.q_kvar)} kvar) the bus resonates at order {p.order:.2f} "
+                f"({fmt.si(p.freq_hz, 'Hz', 3)}), within {fmt.sig(margin)} of the {near}{_th(near)} harmonic. "
+                "Harmonic currents there are amplified: consider a detuned (reactor) bank or other step sizes."
+            )
+        rows.append([
+            _label(i),
+            fmt.sig(p.q_kvar, 4),
+            order_txt,
+            f_txt,
+            f"{p.estimate:.2f}",
+            z_txt,
+            mag_txt,
+            f"{near}{_th(near)}: too close" if near is not None else "clear",
+        ])
+
+    g_full = "Full bank"
+    if full.order is None:
+        out.result("h_full", "Resonance order, all steps in", None, "",
+                   display="below the fundamental" if full.where == "below" else "above the 50th",
+                   key=True, method="fine search for the |Z| peak, orders 1–50", source=SRC_SCAN, group=g_full)
+    else:
+        st = "warn" if full_near is not None else "ok"
+        out.result("h_full", "Resonance order, all steps in", full.order, "", display=f"{full.order:.2f}", key=True, status=st,
+                   method="order h of the |Z| peak of Z_bus = 1/(1/(R_s + jhX_s) + 1/R_load + jhQ/V²), fine search",
+                   source=SRC_SCAN, group=g_full)
+        out.result("f_full", "Resonant frequency, all steps in", full.freq_hz, "Hz", si=True, digits=4, key=True, status=st,
+                   method="f = h × fundamental", source=SRC_SCAN, group=g_full)
+    out.result("est_full", "Estimate √(S_sc/Q), all steps in", full.estimate, "", display=f"{full.estimate:.2f}",
+               method="h ≈ √(S_sc/Q_cap), resistance and load neglected", source=SRC_EST, group=g_full)
+    out.result("near_count", "Combinations near a harmonic present", near_count, "",
+               display=f"{near_count} of {len(peaks)} (harmonics {h_words}, ±{fmt.sig(margin)})",
+               status="warn" if near_count else "ok", key=True,
+               method="|h_res − h| ≤ margin for h in the characteristic set", source="Screening rule, common practice; IEEE Std 519 (6k ± 1 harmonics)",
+               group=g_full)
+    out.result("v_rise", "Voltage rise, all steps in", supply.voltage_rise_percent(total, model.s_sc_kva), "%", digits=3,
+               method="ΔV ≈ 100·Q/S_sc", source="Utility and handbook practice (common practice)", group=g_full)
+
+    g_sup = "Supply model"
+    out.result("s_sc", "Short-circuit level at the bus", model.s_sc_kva, "kVA", digits=4,
+               method="S_sc = 1/(Z%/(100·S_t) + 1/S_up)", source=SRC_PU, group=g_sup)
+    i_sc = model.s_sc_kva * 1000.0 / (math.sqrt(3.0) * v)
+    out.result("i_sc", "Short-circuit current (symmetrical)", i_sc, "A", si=True, digits=3,
+               method="I_sc = S_sc/(√3·V)", source=SRC_PU, group=g_sup)
+    out.result("z_src", "Supply impedance per phase at the fundamental", None, "Ω",
+               display=fmt.complex_rect(complex(model.r_src * 1e3, model.x_src * 1e3), "mΩ"),
+               method="Z = (Z%/100)·V²/S_t, R = Z/√(1+(X/R)²); upstream X = V²/S_up", source=SRC_PU, group=g_sup)
+    if model.r_load is not None:
+        out.result("r_load", "Load resistance per phase", model.r_load, "Ω", si=True,
+                   method="R = V²/P (wye equivalent)", source=SRC_PU, group=g_sup)
+
+    out.table(
+        "Resonance of each step combination",
+        ["Steps in", "Bank kvar", "Resonance order", "Frequency", "√(S_sc/Q)", "Peak |Z|", "Peak ÷ supply alone", "Nearest harmonic"],
+        rows,
+        note=f"Harmonics checked: {h_words}; margin ±{fmt.sig(margin)} order. Peak ÷ supply alone shows how much the "
+        "bank amplifies the bus impedance at its resonance.",
+    )
+    if total > kva:
+        out.warn(f"The bank ({fmt.sig(total)} kvar) is larger than the transformer ({fmt.sig(kva)} kVA): check the step sizes.")
+    if x_r is None and model.r_load is None:
+        out.notes.append("No X/R and no load entered: the circuit is undamped, so the peaks are infinite in theory; "
+                         "real peaks are finite but still dangerous.")
+    if sp == "yes":
+        out.notes.append("3rd harmonic currents of single-phase loads are mostly zero-sequence; how much reaches the bank "
+                         "depends on the transformer and bank connections. The check here treats them as present.")
+    out.notes.append("Motors and drives are not in the model; they lower the inductance seen from the bus and move "
+                     "each resonance a little higher.")
+    out.figure("Bus impedance against harmonic order", _figure(model, peaks, harmonics, margin))
+    out.caution(cautions.SCREENING)
+
+
+def _th(h) -> str:
+    if h is None:
+        return ""
+    if 10 <= h % 100 <= 20:
+        return "th"
+    return {1: "st", 2: "nd", 3: "rd"}.get(h % 10, "th")
+
+
+SHEET = Worksheet(
+    id="bus_scan",
+    title="Bank resonance scan",
+    summary="Will the capacitor bank resonate with the transformer? |Z| at the bus against harmonic order for each "
+    "step combination, resonance order and frequency, and warnings near the harmonics your loads make.",
+    fields=FIELDS,
+    compute=compute,
+    cautions=[cautions.SCREENING, cautions.ESTIMATE],
+    order=20,
+    references=[
+        "IEEE Std 1036, Guide for the Application of Shunt Power Capacitors (resonance h ≈ √(S_sc/Q))",
+        "R. C. Dugan, M. F. McGranaghan, S. Santoso, H. W. Beaty, Electrical Power Systems Quality (capacitor resonance)",
+        "IEEE Std 141 (Red Book), per-unit short-circuit method",
+        "IEEE Std 519-2014 (characteristic harmonics of converters)",
+    ],
+)

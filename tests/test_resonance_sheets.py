@@ -1,0 +1,224 @@
+"""The LC resonance and bank resonance scan worksheets through the bridge (JSON in, JSON out)."""
+
+import json
+import math
+import re
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+import app.bridge as bridge
+from app import cautions
+
+
+def run(sheet, **inputs):
+    return json.loads(bridge.compute(sheet, json.dumps(inputs)))
+
+
+def res(out, name):
+    return next(r for r in out["results"] if r["name"] == name)
+
+
+def test_catalog_declares_both_sheets():
+    cat = {s["id"]: s for s in json.loads(bridge.catalog())}
+    assert {"lc_resonance", "bus_scan"} <= set(cat)
+    names = {f["name"] for f in cat["bus_scan"]["fields"]}
+    # field names other worksheets link to
+    assert {"v_ll", "f", "tx_kva", "tx_z", "steps", "x_r", "fault_mva", "load_kw", "single_phase"} <= names
+    steps = next(f for f in cat["bus_scan"]["fields"] if f["name"] == "steps")
+    assert steps["kind"] == "list" and steps["unit"] == "kvar"
+    order = list(bridge.sheets())
+    assert order.index("bus_scan") < order.index("lc_resonance")
+    for sid in ("lc_resonance", "bus_scan"):
+        assert cautions.SCREENING in cat[sid]["cautions"] and cautions.ESTIMATE in cat[sid]["cautions"]
+
+
+# --- LC resonance ----------------------------------------------------------------------------
+
+def test_lc_defaults_and_plot():
+    out = run("lc_resonance")
+    assert out["ok"], out
+    f0 = res(out, "f0")["value"]
+    # demo: L = 1.2 mH, C = 220 µF → f0 = 1/(2π√(LC)) = 309.8 Hz (hand arithmetic)
+    assert f0 == pytest.approx(1 / (2 * math.pi * math.sqrt(1.2e-3 * 220e-6)), rel=1e-9)
+    assert res(out, "f0")["display"] == "309.8 Hz"
+    assert res(out, "q")["value"] == pytest.approx(math.sqrt(1.2e-3 / 220e-6) / 0.05, rel=1e-9)
+    titles = [f["title"] for f in out["figures"]]
+    assert titles == ["|Z| against frequency", "Phase against frequency"]
+    for fig in out["figures"]:
+        assert fig["svg"].startswith("<svg") and "f₀ = 309.8 Hz" in fig["svg"]
+        assert "<script" not in fig["svg"]
+    assert "current leads" in res(out, "phase_at")["display"]  # 50 Hz is below f0: capacitive
+
+
+def test_lc_solve_for_c_and_l():
+    out = run("lc_resonance", solve="c", l="1.2 mH", f0="250")
+    assert out["ok"], out
+    c = res(out, "c_needed")["value"]
+    assert c == pytest.approx(1 / ((2 * math.pi * 250) ** 2 * 1.2e-3), rel=1e-12)  # C = 1/(ω²L)
+    assert res(out, "f0")["value"] == pytest.approx(250, rel=1e-12)
+    out = run("lc_resonance", solve="l", c="470 nF", f0="1 kHz")
+    assert out["ok"], out
+    assert res(out, "l_needed")["value"] == pytest.approx(1 / ((2 * math.pi * 1000) ** 2 * 470e-9), rel=1e-12)
+
+
+def test_lc_parallel_lossless():
+    out = run("lc_resonance", topology="parallel", r="")
+    assert out["ok"], out
+    assert res(out, "q")["value"] is None and "lossless" in res(out, "q")["display"]
+    assert "∞" in res(out, "z_f0")["display"]
+
+
+@pytest.mark.parametrize(
+    "inputs,field,words",
+    [
+        (dict(l="0"), "l", "above 0"),
+        (dict(l="-2"), "l", "above 0"),
+        (dict(c="0 µF"), "c", "above 0"),
+        (dict(c="-47"), "c", "above 0"),
+        (dict(r="-0.1"), "r", "at least 0"),
+        (dict(topology="parallel", r="0"), "r", "short"),
+        (dict(l="abc"), "l", "number"),
+        (dict(c="4.7 mH"), "c", "capacitance"),
+        (dict(solve="c", f0="0"), "f0", "above 0"),
+        (dict(solve="l", c=""), "c", "enter"),
+        (dict(f_at="-50"), "f_at", "above 0"),
+        (dict(l="1e-300", c="1e-300"), "l", "out of range"),
+        (dict(l="1e30", c="1e30"), "l", "out of range"),
+    ],
+)
+def test_lc_bad_input_message_at_field(inputs, field, words):
+    out = run("lc_resonance", **inputs)
+    assert out["ok"] is False
+    assert field in out["field_errors"], out
+    assert words.lower() in out["field_errors"][field].lower()
+    assert out["results"] == [] and out["figures"] == []
+
+
+def test_lc_hidden_field_not_validated():
+    # C is hidden when solving for C; junk there must not block the answer
+    out = run("lc_resonance", solve="c", c="junk")
+    assert out["ok"], out
+
+
+# --- bus scan ----------------------------------------------------------------------------------
+
+def test_bus_defaults_and_plot():
+    out = run("bus_scan")
+    assert out["ok"], out
+    h = res(out, "h_full")
+    assert h["key"] and h["value"] > 1
+    # S_sc for the demo: 1/(0.06/1250 + 1/250000) kVA = 19 231 kVA (per-unit method, hand arithmetic)
+    assert res(out, "s_sc")["value"] == pytest.approx(1 / (0.06 / 1250 + 1 / 250e3), rel=1e-9)
+    assert len(out["tables"][0]["rows"]) == 5
+    svg = out["figures"][0]["svg"]
+    assert svg.startswith("<svg") and svg.count("<polyline") == 6  # supply alone + 5 combinations
+    assert svg.count("<circle") == 5  # one dot per resonance peak
+    for hh in (5, 7, 11, 13, 17, 19, 23, 25):
+        assert f">{hh}</text>" in svg
+    assert ">3</text>" not in svg
+
+
+def test_bus_warns_near_fifth_and_third():
+    # Q = S_sc/h² puts the undamped resonance exactly on h (IEEE Std 1036): 1000 kVA, 5 %
+    # → S_sc = 20 000 kVA; 800 kvar → h = 5; 2222.2 kvar → h = 3.
+    base = dict(v_ll="400", f="50", tx_kva="1000", tx_z="5", x_r="", fault_mva="", load_kw="")
+    out = run("bus_scan", steps="800", **base)
+    assert out["ok"], out
+    assert res(out, "h_full")["value"] == pytest.approx(5.0, rel=1e-6)
+    assert res(out, "h_full")["status"] == "warn"
+    assert any("5th harmonic" in w for w in out["warnings"])
+    three = dict(base, steps="2222.222")
+    out = run("bus_scan", single_phase="no", **three)
+    assert out["ok"] and not any("3rd" in w for w in out["warnings"])
+    out = run("bus_scan", single_phase="yes", **three)
+    assert out["ok"] and any("3rd harmonic" in w for w in out["warnings"])
+    assert ">3</text>" in out["figures"][0]["svg"]
+    # clear of every harmonic: h = √(20000/250) = 8.94
+    out = run("bus_scan", steps="250", **base)
+    assert out["ok"] and res(out, "near_count")["status"] == "ok" and not out["warnings"]
+
+
+def test_bus_units_typed():
+    a = run("bus_scan", v_ll="0.48 kV", tx_kva="1.5 MVA", steps="0.1 Mvar, 100")
+    b = run("bus_scan", v_ll="480", tx_kva="1500", steps="100, 100")
+    assert a["ok"] and b["ok"]
+    assert res(a, "h_full")["value"] == pytest.approx(res(b, "h_full")["value"], rel=1e-12)
+    c = run("bus_scan", v_ll="480", tx_kva="1500", steps="100 kvar 0.1 Mvar")  # spaces, units after a space
+    assert c["ok"], c
+    assert [row[1] for row in c["tables"][0]["rows"]] == ["100", "200"]
+
+
+def test_bus_peak_above_50():
+    out = run("bus_scan", steps="2", x_r="", load_kw="")
+    assert out["ok"], out
+    assert "above" in res(out, "h_full")["display"]
+
+
+@pytest.mark.parametrize(
+    "inputs,field,words",
+    [
+        (dict(steps=""), "steps", "enter"),
+        (dict(steps=" , ;"), "steps", "item 1"),
+        (dict(steps="100, -50"), "steps", "item 2"),
+        (dict(steps="100, 0"), "steps", "above 0"),
+        (dict(steps="100, abc"), "steps", "item 2"),
+        (dict(steps="100, 5 kW"), "steps", "reactive"),
+        (dict(steps=", ".join(["25"] * 13)), "steps", "at most 12"),
+        (dict(steps="50 Mvar"), "steps", "short-circuit"),
+        (dict(v_ll="0"), "v_ll", "above 0"),
+        (dict(v_ll="-400"), "v_ll", "above 0"),
+        (dict(f="0"), "f", "at least"),
+        (dict(tx_kva="0"), "tx_kva", "above 0"),
+        (dict(tx_kva=""), "tx_kva", "enter"),
+        (dict(tx_z="0"), "tx_z", "at least"),
+        (dict(tx_z="60"), "tx_z", "at most"),
+        (dict(x_r="0"), "x_r", "above 0"),
+        (dict(fault_mva="-5"), "fault_mva", "above 0"),
+        (dict(load_kw="-10"), "load_kw", "at least 0"),
+        (dict(margin="9"), "margin", "at most"),
+    ],
+)
+def test_bus_bad_input_message_at_field(inputs, field, words):
+    out = run("bus_scan", **inputs)
+    assert out["ok"] is False
+    assert field in out["field_errors"], out
+    assert words.lower() in out["field_errors"][field].lower()
+    assert out["results"] == [] and out["figures"] == []
+
+
+def test_bus_several_bad_fields_reported_together():
+    out = run("bus_scan", v_ll="x", tx_kva="-1", steps="")
+    assert set(out["field_errors"]) == {"v_ll", "tx_kva", "steps"}
+
+
+def test_bus_undamped_is_json_safe():
+    # no X/R, no load: peaks are infinite in theory; the bridge must still give valid JSON
+    out = run("bus_scan", x_r="", load_kw="", fault_mva="")
+    assert out["ok"], out
+    assert any("∞" in row[5] for row in out["tables"][0]["rows"])
+
+
+_text = st.one_of(
+    st.text(max_size=12),
+    st.from_regex(r"-?[0-9]{0,6}([.,][0-9]{0,4})?(e-?[0-9]{1,3})? ?(k|M|m|µ|n)?(V|Hz|kVA|%|kW|kvar|H|F|Ω)?", fullmatch=True),
+)
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.dictionaries(st.sampled_from(["v_ll", "f", "tx_kva", "tx_z", "x_r", "fault_mva", "load_kw", "steps", "margin", "single_phase"]), _text))
+def test_bus_never_crashes(inputs):
+    out = json.loads(bridge.compute("bus_scan", json.dumps(inputs)))
+    assert "Internal error" not in out.get("error", "")
+    assert out["ok"] or out["field_errors"] or out.get("error")
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.dictionaries(st.sampled_from(["topology", "solve", "l", "c", "f0", "r", "f_at"]), _text))
+def test_lc_never_crashes(inputs):
+    out = json.loads(bridge.compute("lc_resonance", json.dumps(inputs)))
+    assert "Internal error" not in out.get("error", "")
+    assert out["ok"] or out["field_errors"] or out.get("error")
+    if out["ok"]:
+        assert all(re.match(r"<svg", f["svg"]) for f in out["figures"])
