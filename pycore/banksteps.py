@@ -1,0 +1,348 @@
+"""Choosing capacitor units and steps from the ratings one can buy.
+
+* :func:`select_units` — units (any number of each purchasable rating) whose sum is at least
+  the need with the least excess, then the fewest units.
+* :func:`step_weights` and :func:`plan_steps` — an automatic bank of N steps in a pattern
+  (equal, 1:2:2:…, binary 1:2:4:…, or custom ratios), each step built from purchasable units.
+* :func:`combinations` — the distinct outputs a step controller can reach, and
+  :func:`light_load_check` — which combinations over-correct (lead) at the lightest load.
+
+Ratings and needs are in kvar, all at the same voltage and frequency (the capacitor's rating
+or the system's, consistently). The search is exact on a grid of the greatest common measure
+of the ratings (each rating rounded to 0.001 kvar): a dynamic program over reachable sums
+(the unbounded subset-sum / coin-change recursion, e.g. Cormen et al., Introduction to
+Algorithms, dynamic programming).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+
+from .correction import Load
+from .errors import InputError
+
+MAX_STATES = 60_000  # size of the dynamic-programming table before pre-filling with large units
+MAX_STEPS = 12
+MAX_UNITS = 1000  # more units than this in one bank is a sign of a wrong unit or rating list
+
+
+def _grid(ratings: list[float]) -> tuple[Fraction, list[int]]:
+    """The common measure g [kvar] of the ratings and each rating as a whole multiple of g."""
+    fr = [Fraction(r).limit_denominator(1000) for r in ratings]
+    den = 1
+    for f in fr:
+        den = den * f.denominator // math.gcd(den, f.denominator)
+    ints = [int(f * den) for f in fr]
+    g = 0
+    for n in ints:
+        g = math.gcd(g, n)
+    if g == 0:
+        raise InputError("Unit ratings must be above zero.")
+    return Fraction(g, den), [n // g for n in ints]
+
+
+def _clean_ratings(ratings) -> list[float]:
+    vals = []
+    for r in ratings:
+        if not (isinstance(r, (int, float)) and math.isfinite(r)) or r <= 0:
+            raise InputError("Every unit rating must be a number above zero.")
+        if r < 0.001:
+            raise InputError("Unit ratings below 0.001 kvar are not supported.")
+        vals.append(float(r))
+    if not vals:
+        raise InputError("Give at least one unit rating.")
+    return sorted(set(vals))
+
+
+def _check_count(need_kvar: float, vals: list[float]) -> None:
+    if need_kvar / max(vals) > MAX_UNITS:
+        raise InputError(f"More than {MAX_UNITS} units would be needed: add larger unit ratings to the list.")
+
+
+def _min_count_table(ints: list[int], top: int) -> tuple[list[int], list[int]]:
+    """count[s] = fewest units summing exactly to s (s ≤ top; -1 if unreachable), and the
+    index of the last unit used."""
+    inf = 1 << 30
+    count = [inf] * (top + 1)
+    last = [-1] * (top + 1)
+    count[0] = 0
+    for s in range(1, top + 1):
+        best, arg = inf, -1
+        for i, k in enumerate(ints):
+            if k <= s:
+                c = count[s - k] + 1
+                if c < best:
+                    best, arg = c, i
+        count[s] = best
+        last[s] = arg
+    return [c if c < inf else -1 for c in count], last
+
+
+def _walk(last: list[int], ints: list[int], s: int) -> list[int]:
+    idx = []
+    while s > 0:
+        i = last[s]
+        idx.append(i)
+        s -= ints[i]
+    return idx
+
+
+@dataclass(frozen=True)
+class Selection:
+    """Units chosen: ``units`` the ratings [kvar] largest first; ``total`` their sum [kvar]."""
+
+    units: tuple
+    total: float
+
+    def counts(self) -> list[tuple[float, int]]:
+        """[(rating [kvar], how many)] largest rating first."""
+        out: dict[float, int] = {}
+        for u in self.units:
+            out[u] = out.get(u, 0) + 1
+        return sorted(out.items(), key=lambda t: -t[0])
+
+
+def select_units(need_kvar: float, ratings, max_states: int = MAX_STATES) -> Selection:
+    """Units from ``ratings`` [kvar] (any number of each) summing to at least ``need_kvar``
+    [kvar] with the least excess, then the fewest units. Exact on the ratings' common grid;
+    for very large needs the largest unit is pre-filled until the rest fits ``max_states``
+    grid points (the excess can then exceed the optimum by less than one grid step in rare
+    cases). Unbounded coin-change dynamic programming."""
+    vals = _clean_ratings(ratings)
+    if not math.isfinite(need_kvar):
+        raise InputError("The kvar needed must be a number.")
+    if need_kvar <= 0:
+        return Selection((), 0.0)
+    _check_count(need_kvar, vals)
+    g, ints = _grid(vals)
+    target = math.ceil(Fraction(need_kvar).limit_denominator(10**9) / g - Fraction(1, 10**9))
+    kmax = max(ints)
+    prefill = 0
+    if target + kmax > max_states:
+        prefill = (target + kmax - max_states) // kmax + 1
+        target -= prefill * kmax
+    target = max(target, 0)
+    top = target + kmax
+    count, last = _min_count_table(ints, top)
+    best = None
+    for s in range(target, top + 1):
+        if count[s] >= 0:
+            best = s
+            break
+    if best is None:  # pragma: no cover - the largest unit always reaches target + kmax
+        raise InputError("No combination of the unit ratings reaches the need.")
+    idx = _walk(last, ints, best) + [ints.index(kmax)] * prefill
+    units = tuple(sorted((vals[i] for i in idx), reverse=True))
+    return Selection(units, float(sum(Fraction(ints[i]) * g for i in idx)))
+
+
+def exact_units(size_kvar: float, ratings, max_states: int = MAX_STATES) -> tuple | None:
+    """The fewest units from ``ratings`` [kvar] summing exactly to ``size_kvar`` [kvar]
+    (largest first), or None if no combination does."""
+    vals = _clean_ratings(ratings)
+    g, ints = _grid(vals)
+    q = Fraction(size_kvar).limit_denominator(10**9) / g
+    s = round(q)
+    if abs(q - s) > Fraction(1, 10**6) or s < 0 or s > max_states:
+        return None
+    count, last = _min_count_table(ints, s)
+    if count[s] < 0:
+        return None
+    return tuple(sorted((vals[i] for i in _walk(last, ints, s)), reverse=True))
+
+
+PATTERNS = ("equal", "one_two", "binary", "custom")
+
+
+def step_weights(pattern: str, n_steps: int = 1, custom=None) -> list[int]:
+    """Relative step sizes: 'equal' 1:1:…; 'one_two' 1:2:2:…; 'binary' 1:2:4:…;
+    'custom' the given ratios, reduced to whole numbers with no common factor (ratios must
+    be whole-number multiples of each other within 0.01 %). Common practice for automatic
+    banks."""
+    if pattern == "custom":
+        vals = list(custom or [])
+        if not vals:
+            raise InputError("Enter the step ratios, e.g. 1:2:2:4.")
+        if len(vals) > MAX_STEPS:
+            raise InputError(f"At most {MAX_STEPS} steps.")
+        for v in vals:
+            if not (isinstance(v, (int, float)) and math.isfinite(v)) or v <= 0:
+                raise InputError("Every step ratio must be above zero.")
+        lo = min(vals)
+        # express each as a multiple of a common measure: try denominators 1..64 of the smallest
+        for d in range(1, 65):
+            unit = lo / d
+            ks = [v / unit for v in vals]
+            if all(abs(k - round(k)) <= 1e-4 * k for k in ks):
+                w = [int(round(k)) for k in ks]
+                g = 0
+                for x in w:
+                    g = math.gcd(g, x)
+                w = [x // g for x in w]
+                if sum(w) > 4096:
+                    break
+                return w
+        raise InputError("Step ratios must be whole-number multiples of each other, e.g. 1:2:2:4 or 25:50:50.")
+    if not isinstance(n_steps, int) or n_steps < 1 or n_steps > MAX_STEPS:
+        raise InputError(f"Number of steps must be 1 to {MAX_STEPS}.")
+    if pattern == "equal":
+        return [1] * n_steps
+    if pattern == "one_two":
+        return [1] + [2] * (n_steps - 1)
+    if pattern == "binary":
+        return [2**i for i in range(n_steps)]
+    raise InputError("Unknown step pattern.")
+
+
+@dataclass(frozen=True)
+class StepPlan:
+    """An automatic bank: ``steps`` sizes [kvar], ``units`` the units in each step [kvar],
+    ``base`` the size of one pattern unit [kvar], ``total`` = Σ steps [kvar]."""
+
+    steps: tuple
+    units: tuple
+    base: float
+    total: float
+
+    def all_units(self) -> list[float]:
+        """Every unit in the bank [kvar], largest first."""
+        return sorted((u for st in self.units for u in st), reverse=True)
+
+    def counts(self) -> list[tuple[float, int]]:
+        """[(rating [kvar], how many)] over the whole bank, largest first."""
+        return Selection(tuple(self.all_units()), self.total).counts()
+
+
+def plan_steps(need_kvar: float, ratings, weights, max_states: int = MAX_STATES) -> StepPlan:
+    """Steps in proportion to ``weights`` with every step an exact sum of purchasable units
+    from ``ratings`` [kvar], total at least ``need_kvar`` [kvar] with the least excess, then
+    the fewest units. The base b is the smallest reachable unit sum with b·Σw ≥ need; step i
+    is w_i·b made from the fewest units."""
+    vals = _clean_ratings(ratings)
+    w = [int(x) for x in weights]
+    if not w or any(x < 1 for x in w):
+        raise InputError("Step weights must be whole numbers from 1.")
+    if not math.isfinite(need_kvar) or need_kvar <= 0:
+        raise InputError("The kvar needed must be above zero.")
+    wsum = sum(w)
+    _check_count(need_kvar, vals)
+    g, ints = _grid(vals)
+    kmax = max(ints)
+    # least excess: the base b is the smallest reachable unit sum with b·Σw ≥ need
+    base_sel = select_units(need_kvar / wsum, vals, max_states)
+    base = round(Fraction(base_sel.total).limit_denominator(10**9) / g)
+    top = min(max_states, base * max(w))
+    count, last = _min_count_table(ints, top)
+    steps, units = [], []
+    for x in w:
+        idx = _fewest_exact(base * x, ints, count, last, top, kmax)
+        if idx is None:  # w_i copies of the base's own units always sum exactly
+            units.append(tuple(sorted(base_sel.units * x, reverse=True)))
+        else:
+            units.append(tuple(sorted((vals[i] for i in idx), reverse=True)))
+        steps.append(float(Fraction(base * x) * g))
+    n_units = sum(len(u) for u in units)
+    if n_units > MAX_UNITS:
+        raise InputError(f"This step plan needs {n_units} units: use fewer steps, another pattern or larger unit ratings.")
+    return StepPlan(tuple(steps), tuple(units), float(Fraction(base) * g), float(Fraction(base * wsum) * g))
+
+
+def _fewest_exact(s: int, ints: list[int], count: list[int], last: list[int], top: int, kmax: int) -> list[int] | None:
+    """Unit indices summing exactly to s grid steps with the fewest units: from the table when
+    s ≤ top, else m largest units plus the best exact remainder within the table."""
+    if s <= top:
+        return _walk(last, ints, s) if count[s] >= 0 else None
+    imax = ints.index(kmax)
+    best = None
+    m = -(-(s - top) // kmax)
+    while m * kmax <= s:
+        r = s - m * kmax
+        if count[r] >= 0 and (best is None or m + count[r] < best[0]):
+            best = (m + count[r], m, r)
+        m += 1
+    if best is None:
+        return None
+    return _walk(last, ints, best[2]) + [imax] * best[1]
+
+
+def best_step_count(need_kvar: float, ratings, pattern: str, max_steps: int = MAX_STEPS) -> tuple[int, StepPlan] | None:
+    """For a built-in ``pattern`` ('equal', 'one_two', 'binary'), the number of steps (1 to
+    ``max_steps``) whose plan exceeds ``need_kvar`` [kvar] least, then the most steps (finer
+    control); None when no count gives a plan within the unit limits."""
+    best = None
+    for n in range(1, max_steps + 1):
+        try:
+            plan = plan_steps(need_kvar, ratings, step_weights(pattern, n))
+        except InputError:
+            continue
+        key = (round(plan.total - need_kvar, 6), -n)
+        if best is None or key < best[0]:
+            best = (key, n, plan)
+    return None if best is None else (best[1], best[2])
+
+
+@dataclass(frozen=True)
+class Combination:
+    """One controller position: ``on`` the step numbers switched in (1-based), ``total`` [kvar]."""
+
+    on: tuple
+    total: float
+
+
+def combinations(steps) -> list[Combination]:
+    """Every distinct total [kvar] reachable by switching subsets of ``steps`` [kvar]
+    (at most 12 steps), with the fewest steps for each total (then the lowest-numbered),
+    smallest total first; the all-off position (0 kvar) is not listed."""
+    st = [float(x) for x in steps]
+    n = len(st)
+    if n > MAX_STEPS:
+        raise InputError(f"At most {MAX_STEPS} steps.")
+    totals = [0.0] * (1 << n)
+    best: dict[float, tuple] = {}
+    for mask in range(1, 1 << n):
+        low = mask & -mask
+        totals[mask] = totals[mask ^ low] + st[low.bit_length() - 1]
+        key = round(totals[mask], 6)
+        pc = bin(mask).count("1")
+        old = best.get(key)
+        if old is not None and pc > old[0]:
+            continue
+        on = tuple(i + 1 for i in range(n) if mask >> i & 1)
+        if old is None or pc < old[0] or on < old[1]:
+            best[key] = (pc, on, totals[mask])
+    return [Combination(on, tot) for _, (_, on, tot) in sorted(best.items())]
+
+
+@dataclass(frozen=True)
+class LightLoadCheck:
+    """Outcome at the lightest load. ``full_pf``/``full_sense``: PF with every step in;
+    ``best``: the largest combination that does not lead (None if even the smallest step
+    leads); ``leave_out``: step numbers to keep off at the lightest load; ``leading``: the
+    combinations that lead."""
+
+    full_pf: float
+    full_sense: str
+    best: Combination | None
+    leave_out: tuple
+    leading: tuple
+
+
+def light_load_check(light: Load, steps, existing_kvar: float = 0.0, combos=None) -> LightLoadCheck:
+    """Power factor at the lightest load ``light`` (P [kW], Q [kvar] before the new bank)
+    with the new ``steps`` [kvar at system voltage] and ``existing_kvar`` [kvar] of further
+    capacitors switched in; a combination over-corrects when Q − Q_C < 0 (leading). ``combos``:
+    the result of :func:`combinations` for these steps, if already computed. Power triangle
+    (circuit theory)."""
+    if combos is None:
+        combos = combinations(steps)
+    q0 = light.q_kvar - existing_kvar
+    full = Load(light.p_kw, q0 - sum(steps))
+    tol = -1e-9 * max(1.0, abs(light.p_kw))
+    ok = [c for c in combos if q0 - c.total >= tol]
+    leading = tuple(c for c in combos if q0 - c.total < tol)
+    best = max(ok, key=lambda c: c.total) if ok else None
+    n = len(list(steps))
+    leave = tuple(i for i in range(1, n + 1) if best is None or i not in best.on) if leading else ()
+    return LightLoadCheck(full.pf, full.sense, best, leave, leading)

@@ -1,0 +1,183 @@
+"""pycore.banksteps: least-excess unit selection, step plans, combinations, light-load check.
+
+The reference for the selections is a brute-force enumeration written here, independent of the
+dynamic program in the module.
+"""
+
+import itertools
+import math
+
+import numpy as np
+import pytest
+
+from pycore import banksteps
+from pycore.correction import Load
+from pycore.errors import InputError
+
+STOCK = [5, 10, 12.5, 15, 20, 25, 30, 40, 50]
+
+
+def brute_least_excess(need, ratings):
+    """Smallest achievable sum ≥ need and the fewest units for it, by enumerating counts."""
+    best = None
+    rs = sorted(ratings)
+    ranges = [range(0, int(math.ceil(need / r)) + 1) for r in rs]
+    for counts in itertools.product(*ranges):
+        tot = sum(c * r for c, r in zip(counts, rs))
+        if tot + 1e-9 < need:
+            continue
+        key = (round(tot, 6), sum(counts))
+        if best is None or key < best:
+            best = key
+    return best
+
+
+@pytest.mark.parametrize(
+    "need,ratings",
+    [
+        (198.9, [12.5, 25, 40, 50]),
+        (37.6, [12.5, 25]),
+        (3.0, [5, 10]),
+        (61.0, [7.5, 20, 33.3]),
+        (150.0, [10, 25, 60]),
+        (99.9, [15, 40, 50]),
+        (1.0, [2.5]),
+        (121.0, [5, 12.5, 30, 50]),
+    ],
+)
+def test_select_units_matches_brute_force(need, ratings):
+    sel = banksteps.select_units(need, ratings)
+    ref_total, ref_count = brute_least_excess(need, ratings)
+    assert sel.total == pytest.approx(ref_total, abs=1e-6)
+    assert len(sel.units) == ref_count
+    assert sum(sel.units) == pytest.approx(sel.total)
+    assert all(u in ratings for u in sel.units)
+
+
+def test_select_units_large_need_prefill_still_exact():
+    # 5 and 10 kvar units: the least sum at or above 9000.3 kvar is 9005 kvar (arithmetic)
+    sel = banksteps.select_units(9000.3, [5, 10], max_states=100)
+    assert sel.total == pytest.approx(9005.0)
+    assert len(sel.units) == 901  # 900 × 10 + 1 × 5, the fewest
+
+
+def test_too_many_units_refused():
+    with pytest.raises(InputError):
+        banksteps.select_units(1_000_000, [5, 10])
+    with pytest.raises(InputError):
+        banksteps.plan_steps(2000, [1.001, 50], banksteps.step_weights("binary", 12))
+
+
+def test_select_nothing_needed():
+    assert banksteps.select_units(0, STOCK).units == ()
+
+
+@pytest.mark.parametrize("bad", [[], [0], [-5], [float("nan")]])
+def test_bad_ratings(bad):
+    with pytest.raises(InputError):
+        banksteps.select_units(10, bad)
+
+
+def test_step_weights_patterns():
+    assert banksteps.step_weights("equal", 4) == [1, 1, 1, 1]
+    assert banksteps.step_weights("one_two", 5) == [1, 2, 2, 2, 2]
+    assert banksteps.step_weights("binary", 4) == [1, 2, 4, 8]
+    assert banksteps.step_weights("custom", custom=[25, 50, 50, 100]) == [1, 2, 2, 4]
+    assert banksteps.step_weights("custom", custom=[1, 1.5]) == [2, 3]
+    with pytest.raises(InputError):
+        banksteps.step_weights("custom", custom=[1, math.pi])
+    with pytest.raises(InputError):
+        banksteps.step_weights("equal", 13)
+    with pytest.raises(InputError):
+        banksteps.step_weights("equal", 0)
+
+
+def _buildable(ratings, upto):
+    """All sums of units up to ``upto`` (brute force, on a 0.01 kvar lattice)."""
+    reach = {0}
+    frontier = {0}
+    while frontier:
+        nxt = set()
+        for s in frontier:
+            for r in ratings:
+                t = round(s + r * 100)
+                if t <= upto * 100 and t not in reach:
+                    nxt.add(t)
+        reach |= nxt
+        frontier = nxt
+    return sorted(x / 100 for x in reach if x > 0)
+
+
+@pytest.mark.parametrize(
+    "need,pattern,n",
+    [(198.9, "one_two", 6), (198.9, "equal", 4), (198.9, "binary", 4), (75.0, "equal", 3), (301.0, "one_two", 8)],
+)
+def test_plan_steps_least_excess_against_enumeration(need, pattern, n):
+    w = banksteps.step_weights(pattern, n)
+    plan = banksteps.plan_steps(need, STOCK, w)
+    # reference: the smallest buildable base b with b·Σw ≥ need
+    cands = [b for b in _buildable(STOCK, need / sum(w) + max(STOCK)) if b * sum(w) >= need - 1e-9]
+    b_ref = min(cands)
+    assert plan.base == pytest.approx(b_ref)
+    assert plan.total == pytest.approx(b_ref * sum(w))
+    for size, units, wi in zip(plan.steps, plan.units, w):
+        assert size == pytest.approx(wi * b_ref)
+        assert sum(units) == pytest.approx(size)
+        assert all(u in STOCK for u in units)
+
+
+def test_plan_prefers_single_units():
+    # 220 kvar as 1:2:2:2:2:2 → 20 + 5 × 40: each step one purchasable unit (fewest units)
+    plan = banksteps.plan_steps(198.9, STOCK, [1, 2, 2, 2, 2, 2])
+    assert [len(u) for u in plan.units] == [1] * 6
+
+
+@pytest.mark.parametrize("steps,count", [([20, 40, 40, 40, 40, 40], 11), ([15, 30, 60, 120], 15), ([25] * 5, 5), ([10, 25], 3)])
+def test_combination_count(steps, count):
+    # distinct totals: 1:2:2… gives every multiple of the base up to Σw; binary 2ⁿ − 1; equal n
+    combos = banksteps.combinations(steps)
+    assert len(combos) == count
+    assert all(c.total == pytest.approx(sum(steps[i - 1] for i in c.on)) for c in combos)
+    assert [c.total for c in combos] == sorted(c.total for c in combos)
+
+
+def test_light_load_check_against_numpy():
+    light = Load(90.0, 90.0 * np.tan(np.arccos(0.70)))  # 90 kW at 0.70 lagging
+    steps = [20, 40, 40, 40, 40, 40]
+    res = banksteps.light_load_check(light, steps)
+    q_all = light.q_kvar - sum(steps)
+    assert res.full_pf == pytest.approx(90 / np.hypot(90, q_all), rel=1e-12)
+    assert res.full_sense == "leading"
+    # the largest reachable total not above Q_min = 91.8 kvar is 80 kvar (numpy over all subsets)
+    totals = {sum(s for s, m in zip(steps, mask) if m) for mask in itertools.product([0, 1], repeat=6)}
+    ok = max(t for t in totals if t <= light.q_kvar)
+    assert res.best.total == pytest.approx(ok)
+    assert set(res.leave_out) == set(range(1, 7)) - set(res.best.on)
+    assert all(light.q_kvar - c.total < 0 for c in res.leading)
+
+
+def test_light_load_smallest_step_already_leads():
+    res = banksteps.light_load_check(Load(10, 5), [20, 40])
+    assert res.best is None
+    assert res.leave_out == (1, 2)
+
+
+def test_light_load_no_overcorrection():
+    res = banksteps.light_load_check(Load(300, 250), [20, 40, 40])
+    assert res.leading == ()
+    assert res.leave_out == ()
+
+
+def test_best_step_count_against_enumeration():
+    # 13.8 kvar from 2.5 and 5 kvar units in 1:2:2… steps: enumerate every count independently
+    need, stock = 13.8, [2.5, 5]
+    totals = {}
+    for n in range(1, 13):
+        wsum = 1 + 2 * (n - 1)
+        b = min(x for x in _buildable(stock, need / wsum + 5) if x * wsum >= need - 1e-9)
+        totals[n] = b * wsum
+    least = min(totals.values())
+    n_ref = max(n for n, t in totals.items() if abs(t - least) < 1e-9)
+    n, plan = banksteps.best_step_count(need, stock, "one_two")
+    assert n == n_ref
+    assert plan.total == pytest.approx(least)
