@@ -1,0 +1,374 @@
+"""Bank health worksheet: nameplate plus field readings → per-phase capacitance, % of expected,
+verdict per phase against a tolerance band, real kvar at system voltage and phase imbalance."""
+
+from __future__ import annotations
+
+import math
+
+from pycore import bankhealth as bh
+from pycore.errors import InputError
+
+from .. import cautions, fmt
+from ..sheet import Field, FieldError, Worksheet
+from ..svg import Svg
+
+SRC_CIRCUIT = "Circuit theory: Q = 2πf·C·V² per element, series/parallel capacitance, Y–Δ transformation (Alexander & Sadiku)"
+SRC_PRACTICE = "Common practice (no single published source)"
+
+# A reading this many times the expected value is taken as an entry error, not a measurement.
+ABSURD_RATIO = 2.5
+
+_PAIR_FIELDS = ("m12", "m23", "m31")
+_PHASE_FIELDS = ("c1", "c2", "c3")
+_CURRENT_FIELDS = ("i1", "i2", "i3")
+
+FIELDS = [
+    Field("q_rated", "Rated output", unit="kvar", default="50", min=0, min_open=True, max=1e6,
+          group="Nameplate", help="Total nameplate kvar of the bank (or of the three-phase unit) at its rated voltage and frequency."),
+    Field("v_rated", "Rated voltage", unit="V", default="400", min=1, max=1e6,
+          suggest=["400", "415", "440", "480", "525", "690"],
+          help="Nameplate voltage, line-to-line. Type 13.8 kV for a medium-voltage bank."),
+    Field("f_rated", "Rated frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
+    Field("connection", "Connection", kind="choice", default="delta",
+          options=[("delta", "Delta"), ("wye", "Wye, star point floating"), ("wye_n", "Wye, star point to neutral or earth")],
+          help="Most low-voltage banks and three-phase cans are delta inside. Wye banks are usual at medium voltage."),
+    Field("mode", "What you measured", kind="choice", default="between", group="Measurements",
+          options=[("between", "Capacitance between terminals (third one floating)"),
+                   ("phase", "Capacitance of each phase on its own"),
+                   ("current", "Line currents with the bank in service")],
+          help="A capacitance meter across two terminals of a three-phase unit reads one element in parallel with the "
+               "other two in series; the sheet converts the three readings to per-phase values."),
+    Field("m12", "C between L1 and L2", unit="µF", default="482.7", min=0, min_open=True, max=1e9,
+          show_when={"field": "mode", "in": ["between"]},
+          help="Meter across L1 and L2, L3 floating. Type nF or µF as the meter shows it."),
+    Field("m23", "C between L2 and L3", unit="µF", default="481.1", min=0, min_open=True, max=1e9,
+          show_when={"field": "mode", "in": ["between"]}, help="Meter across L2 and L3, L1 floating."),
+    Field("m31", "C between L3 and L1", unit="µF", default="454.0", min=0, min_open=True, max=1e9,
+          show_when={"field": "mode", "in": ["between"]}, help="Meter across L3 and L1, L2 floating."),
+    Field("c1", "C of phase 1", unit="µF", default="329", min=0, min_open=True, max=1e9,
+          show_when={"field": "mode", "in": ["phase"]},
+          help="Delta: the element between L1 and L2. Wye: L1 to the star point. For several cans per phase, their sum."),
+    Field("c2", "C of phase 2", unit="µF", default="327", min=0, min_open=True, max=1e9,
+          show_when={"field": "mode", "in": ["phase"]}, help="Delta: the element between L2 and L3. Wye: L2 to the star point."),
+    Field("c3", "C of phase 3", unit="µF", default="290", min=0, min_open=True, max=1e9,
+          show_when={"field": "mode", "in": ["phase"]}, help="Delta: the element between L3 and L1. Wye: L3 to the star point."),
+    Field("i1", "Current in L1", unit="A", default="68.1", min=0, min_open=True, max=1e6,
+          show_when={"field": "mode", "in": ["current"]},
+          help="True-rms clamp on the line conductor to the bank, bank fully switched in."),
+    Field("i2", "Current in L2", unit="A", default="72.0", min=0, min_open=True, max=1e6,
+          show_when={"field": "mode", "in": ["current"]}),
+    Field("i3", "Current in L3", unit="A", default="67.9", min=0, min_open=True, max=1e6,
+          show_when={"field": "mode", "in": ["current"]}),
+    Field("v_meas", "Voltage while measuring", unit="V", default="405", min=0, min_open=True, max=1e6,
+          show_when={"field": "mode", "in": ["current"]},
+          help="Line-to-line voltage at the bank at the time of the current readings (average of the three)."),
+    Field("v_sys", "System voltage", unit="V", default="", required=False, min=0, min_open=True, max=1e6,
+          group="At the site", placeholder="same as rated",
+          help="Line-to-line voltage the bank runs at, for its real kvar. Blank: the rated voltage."),
+    Field("f_sys", "System frequency", unit="Hz", default="", required=False, min=10, max=1000,
+          suggest=["50", "60"], placeholder="same as rated", help="Blank: the rated frequency."),
+    Field("band", "Tolerance band", kind="choice", default="iec60831", group="Verdict",
+          options=[(k, b.label) for k, b in bh.BANDS.items()] + [("custom", "My own limits")],
+          help="The as-made capacitance tolerance of the standard the bank was built to. IEC 60831-1 for "
+               "self-healing units up to 1000 V; IEEE Std 18 for North American units."),
+    Field("band_lo", "Lowest acceptable", unit="%", default="-8", min=-99, max=100,
+          show_when={"field": "band", "in": ["custom"]},
+          help="Deviation from rated capacitance, e.g. −8 for a maker's replacement limit of 8 % loss."),
+    Field("band_hi", "Highest acceptable", unit="%", default="10", min=-99, max=200,
+          show_when={"field": "band", "in": ["custom"]}),
+]
+
+
+def _reading(ins, name: str, what: str):
+    """Read one of the three per-phase inputs with a message that says which phase is missing."""
+    if not ins.text(name).strip():
+        ins.fail(name, f"Missing reading: enter {what}. All three phases are needed to resolve the bank.")
+        return None
+    return ins.num(name)
+
+
+def _signed(x: float) -> str:
+    return ("+" if x > 0 else "") + fmt.sig(x, 3)
+
+
+def _ratio_words(ratio: float) -> str:
+    """'999× the' for large ratios, '260 % of the' otherwise."""
+    return f"{fmt.sig(ratio, 3)}× the" if ratio >= 10 else f"{fmt.sig(100 * ratio, 3)} % of the"
+
+
+def _check_absurd(ins, names, values, expected_value, unit_label, what, hint):
+    """Put a message on every field whose value is far above what the nameplate allows."""
+    for name, v in zip(names, values):
+        if v is None:
+            continue
+        ratio = v / expected_value
+        if ratio > ABSURD_RATIO:
+            ins.fail(name, f"This is {_ratio_words(ratio)} {unit_label(expected_value)} {what}: "
+                           f"{hint}")
+
+
+def _bars(names, percents, verdicts, band):
+    """Horizontal bars: each phase as % of expected, with the tolerance band shaded."""
+    w, row, top, left, right = 400, 46, 34, 84, 64
+    h = top + row * len(names) + 40
+    lo_pct, hi_pct = 100 + band.lo, 100 + band.hi
+    finite = [p for p in percents if math.isfinite(p)]
+    x_max = max([hi_pct + 5, 120] + [p + 5 for p in finite])
+    x_min = 0.0
+    pw = w - left - right
+
+    def px(v):
+        return left + (min(max(v, x_min), x_max) - x_min) / (x_max - x_min) * pw
+
+    desc = "; ".join(f"{n}: {fmt.sig(p, 3)} % of expected, {bh.VERDICT_WORDS[v].lower()}" for n, p, v in zip(names, percents, verdicts))
+    svg = Svg(w, h, "Each phase as % of expected", desc + f". Band {fmt.sig(lo_pct, 3)} % to {fmt.sig(hi_pct, 3)} %.")
+    svg.rect(0, 0, w, h, "fp-bg")
+    svg.text(left, 20, "Capacitance, % of expected", size=13, weight="600")
+    svg.rect(px(lo_pct), top - 6, px(hi_pct) - px(lo_pct), row * len(names) + 6, "fp-band")
+    for i, (n, p, v) in enumerate(zip(names, percents, verdicts)):
+        y = top + i * row
+        svg.text(left - 8, y + 22, n, anchor="end", size=13)
+        svg.rect(left, y + 8, max(1.0, px(p) - left), 20, "fp-s1-fill" if v == "ok" else "fp-s3-fill")
+        svg.text(px(p) + 6, y + 22, f"{fmt.sig(p, 3)} %", size=12)
+    y_axis = top + row * len(names)
+    svg.line(left, y_axis, left + pw, y_axis, "fp-axis")
+    svg.line(left, top - 6, left, y_axis, "fp-axis")
+    for t in (0, 50, 100):
+        svg.line(px(t), y_axis, px(t), y_axis + 5, "fp-axis")
+        svg.text(px(t), y_axis + 18, f"{t} %", anchor="middle", size=11)
+    svg.line(px(100), top - 6, px(100), y_axis, "fp-mark", dash="4 3", width=1.5)
+    svg.text(left, h - 6, f"Shaded: the band, {_signed(band.lo)} % to {_signed(band.hi)} %", size=11)
+    return str(svg)
+
+
+def compute(ins, out):
+    q_rated = ins.num("q_rated")
+    v_rated = ins.num("v_rated")
+    f_rated = ins.num("f_rated")
+    conn = ins.choice("connection")
+    mode = ins.choice("mode")
+    if mode == "between":
+        raw = [_reading(ins, n, f"the reading between {p}") for n, p in zip(_PAIR_FIELDS, bh.TERMINAL_PAIRS)]
+        raw = [None if v is None else v * 1e-6 for v in raw]
+    elif mode == "phase":
+        raw = [_reading(ins, n, f"the capacitance of phase {k}") for k, n in enumerate(_PHASE_FIELDS, 1)]
+        raw = [None if v is None else v * 1e-6 for v in raw]
+    else:
+        raw = [_reading(ins, n, f"the current in L{k}") for k, n in enumerate(_CURRENT_FIELDS, 1)]
+    v_meas = ins.num("v_meas") if mode == "current" else None
+    v_sys_in = ins.num("v_sys")
+    f_sys_in = ins.num("f_sys")
+    band_key = ins.choice("band")
+    lo = hi = None
+    if band_key == "custom":
+        lo, hi = ins.num("band_lo"), ins.num("band_hi")
+    if ins.errors:
+        return
+
+    if band_key == "custom":
+        if lo >= hi:
+            raise FieldError("band_hi", "The highest acceptable deviation must be above the lowest.")
+        band = bh.custom_band(lo, hi)
+    else:
+        band = bh.BANDS[band_key]
+    v_sys = v_rated if v_sys_in is None else v_sys_in
+    f_sys = f_rated if f_sys_in is None else f_sys_in
+    for name, v, basis in (("v_sys", v_sys_in, "system"), ("v_meas", v_meas, "measured")):
+        if v is None:
+            continue
+        r = v / v_rated
+        if r > 2.0 or r < 0.2:
+            raise FieldError(name, f"The {basis} voltage is {_ratio_words(r)} rated {fmt.sig(v_rated)} V: "
+                                   "check V against kV, and that both are line-to-line.")
+        if name == "v_meas" and (r > 1.5 or r < 0.5):
+            raise FieldError(name, f"The measured voltage is {_ratio_words(r)} rated voltage; a bank "
+                                   "is not run there. Check the value and that it is line-to-line.")
+        if abs(r * math.sqrt(3.0) - 1.0) < 0.04:
+            out.warn(f"The {basis} voltage is close to the rated voltage ÷ √3: enter the line-to-line voltage, "
+                     "not phase-to-neutral.")
+
+    exp = bh.expected(q_rated, v_rated, f_rated, conn)
+    if not all(0.0 < x < math.inf for x in (exp.c_phase, exp.c_between, exp.i_line, exp.i_element)):
+        raise FieldError("q_rated", "The rated output is too small or too large to work with: enter it in kvar.")
+    names = bh.PHASE_NAMES[conn]
+    si_f = lambda x: fmt.si(x, "F", 4)  # noqa: E731
+
+    # --- plausibility: a reading far above what the nameplate can give is an entry error
+    if mode == "between":
+        _check_absurd(ins, _PAIR_FIELDS, raw, exp.c_between, si_f, "expected between terminals of this bank",
+                      "check the unit (µF or nF), the nameplate data and the connection.")
+    elif mode == "phase":
+        hint = "check the unit (µF or nF), the nameplate data and the connection."
+        if conn == "delta":
+            hint += " A wye bank has three times the per-phase capacitance of a delta: if it is wye, choose wye."
+        _check_absurd(ins, _PHASE_FIELDS, raw, exp.c_phase, si_f, "expected per phase", hint)
+    else:
+        i_exp = bh.rated_output_at(q_rated, v_rated, f_rated, v_meas, f_sys) * 1000.0 / (math.sqrt(3.0) * v_meas)
+        _check_absurd(ins, _CURRENT_FIELDS, raw, i_exp, lambda x: fmt.si(x, "A", 4),
+                      "expected line current at the measured voltage",
+                      "check the clamp range (A or kA), that only the bank's cables are inside the clamp, and the nameplate.")
+    if ins.errors:
+        return
+
+    # --- per-phase capacitances
+    try:
+        if mode == "between":
+            c = bh.per_phase_from_between(raw, conn)
+            how = ("elastances s = 1/M; star S1 = (s12 + s31 − s23)/2 and round; "
+                   + ("delta c12 = S3/N, N = S1·S2 + S2·S3 + S3·S1 (Y–Δ)" if conn == "delta" else "wye C_k = 1/S_k"))
+        elif mode == "phase":
+            c = tuple(raw)
+            how = "measured on each phase"
+        else:
+            c = bh.per_phase_from_currents(raw, v_meas, f_sys, conn)
+            how = {"delta": "element currents from the line currents (120° apart: |I1|² = y12² + y31² + y12·y31), C = y/(2πf·V)",
+                   "wye": "as the equivalent delta, then Δ→Y: c1 = (c12·c23 + c23·c31 + c31·c12)/c23",
+                   "wye_n": "C = I/(2πf·V/√3)"}[conn]
+        if not all(0.0 <= x < math.inf for x in c):
+            raise InputError("The readings are far outside any usable range: check the units.")
+    except InputError as e:
+        first = {"between": "m12", "phase": "c1", "current": "i1"}[mode]
+        raise FieldError(first, str(e)) from None
+
+    pct = [100.0 * ck / exp.c_phase for ck in c]
+    verdicts = [bh.verdict(p, band) for p in pct]
+    open_wye = conn == "wye" and min(c) <= 0.0
+    first = {"between": "m12", "phase": "c1", "current": "i1"}[mode]
+    if max(c) <= 0.0:
+        raise FieldError(first, "Every phase reads as zero: check the readings and their units.")
+    try:
+        q_ph = (0.0, 0.0, 0.0) if open_wye else bh.phase_kvar(c, v_sys, f_sys, conn)
+    except InputError as e:
+        raise FieldError(first, str(e)) from None
+    q_tot = sum(q_ph)
+    q_exp_sys = bh.rated_output_at(q_rated, v_rated, f_rated, v_sys, f_sys)
+
+    # --- expected
+    g = "Expected from the nameplate"
+    conn_word = "delta" if conn == "delta" else "wye"
+    out.result("c_expected", "Capacitance per phase", exp.c_phase, "F", si=True, group=g,
+               method=("C = Q/(3·2πf·V²), each element across the line voltage" if conn == "delta"
+                       else "C = Q/(2πf·V²), each phase across V/√3"), source=SRC_CIRCUIT)
+    if mode == "between":
+        out.result("c_between_expected", "Reading between two terminals", exp.c_between, "F", si=True, group=g,
+                   method=("1.5 × C per phase: one element in parallel with two in series" if conn == "delta"
+                           else "0.5 × C per phase: two phases in series"), source=SRC_CIRCUIT)
+    out.result("i_line_rated", "Rated line current", exp.i_line, "A", group=g,
+               method="I = Q/(√3·V)", source=SRC_CIRCUIT)
+    if conn == "delta":
+        out.result("i_element_rated", "Rated current in each element", exp.i_element, "A", group=g,
+                   method="I = Q/(3·V) = line current/√3", source=SRC_CIRCUIT)
+    if mode == "current":
+        out.result("i_expected", f"Expected line current at {fmt.sig(v_meas)} V", i_exp, "A", group=g,
+                   method="I = Q_r·(V/V_r)²·(f/f_r)/(√3·V)", source=SRC_CIRCUIT)
+    out.result("q_expected_sys", f"Nameplate output at {fmt.sig(v_sys)} V, {fmt.sig(f_sys)} Hz", q_exp_sys, "kvar", group=g,
+               method="Q = Q_r·(V/V_r)²·(f/f_r)", source=SRC_CIRCUIT)
+
+    # --- per phase
+    g = "Each phase"
+    out.result("band", "Tolerance band", None, "%", display=band.label, group=g,
+               method="deviation of measured from expected capacitance, edges inside the band", source=band.source)
+    for k, (n, ck, p, v, q) in enumerate(zip(names, c, pct, verdicts, q_ph), 1):
+        status = {"ok": "ok", "high": "warn"}.get(v, "fail")
+        dev = p - 100.0
+        out.result(f"verdict_{k}", f"Phase {n}", p, "%", key=True, status=status, group=g,
+                   display=f"{bh.VERDICT_WORDS[v]}: {fmt.si(ck, 'F', 4)}, {fmt.sig(p, 4)} % of expected "
+                           f"({'+' if dev >= 0 else '−'}{fmt.sig(abs(dev), 3)} %)",
+                   method=f"% = 100·C/C_expected; C {how}", source=band.source if v != "open" else SRC_PRACTICE)
+        out.result(f"c_{k}", f"C of phase {n}", ck, "F", si=True, group=g, method=how, source=SRC_CIRCUIT)
+        if not open_wye:
+            out.result(f"q_{k}", f"Output of phase {n} at {fmt.sig(v_sys)} V", q, "kvar", group=g,
+                       method="Q = 2πf·C·V_element² (a floating star point moves when phases differ)", source=SRC_CIRCUIT)
+
+    # --- whole bank
+    g = "Whole bank"
+    if open_wye:
+        out.warn("A phase of this floating wye reads open: the other two are then in series across one line voltage, "
+                 "and the bank delivers little. Replace the failed phase.")
+    share = 100.0 * q_tot / q_exp_sys
+    out.result("q_total", f"Bank output at {fmt.sig(v_sys)} V", q_tot, "kvar", key=True, group=g,
+               status="ok" if all(v == "ok" for v in verdicts) else "warn",
+               display=f"{fmt.sig(q_tot, 4)} kvar ({fmt.sig(share, 3)} % of the nameplate's {fmt.sig(q_exp_sys, 4)} kvar there)",
+               method="Σ 2πf·C·V_element² over the three phases", source=SRC_CIRCUIT)
+    if min(c) > 0:
+        imb = bh.imbalance_percent(c)
+        ratio = bh.max_min_ratio(c)
+        out.result("imbalance", "Imbalance between phases", imb, "%", group=g, digits=3,
+                   method="largest deviation from the mean ÷ mean", source=SRC_PRACTICE + "; the definition NEMA MG 1 uses for voltage unbalance")
+        out.result("ratio", "Largest ÷ smallest phase", ratio, "", group=g, digits=4,
+                   status="ok" if ratio <= bh.IEC_RATIO_LIMIT else "warn",
+                   method=f"C_max/C_min; a three-phase unit is made to ≤ {bh.IEC_RATIO_LIMIT}",
+                   source="IEC 60831-1, ratio of capacitances between line terminals of a three-phase unit (from memory)")
+        if ratio > bh.IEC_RATIO_LIMIT:
+            out.warn(f"The phases differ by more than the {bh.IEC_RATIO_LIMIT} ratio a new three-phase unit is made to: "
+                     "the bank draws unequal line currents.")
+    else:
+        out.warn("One phase reads open: the bank is running on two elements.")
+
+    # --- tables
+    rows = [[n, fmt.si(ck, "F", 4), f"{fmt.sig(p, 4)} %", "—" if open_wye else f"{fmt.sig(q, 4)} kvar", bh.VERDICT_WORDS[v]]
+            for n, ck, p, q, v in zip(names, c, pct, q_ph, verdicts)]
+    out.table("Each phase", ["Phase", "Capacitance", "% of expected", f"kvar at {fmt.sig(v_sys)} V", "Verdict"], rows,
+              note=f"Band: {band.label}. Source: {band.source}.")
+    if mode == "between":
+        elem_of_pair = ("L1–L2", "L2–L3", "L3–L1") if conn == "delta" else ("L1", "L2", "L3")
+        out.table("Between-terminal readings → per phase",
+                  ["Terminals", "Reading", "Expected reading", "Element", "Per-phase C"],
+                  [[pair, fmt.si(m, "F", 4), fmt.si(exp.c_between, "F", 4), el, fmt.si(ck, "F", 4)]
+                   for pair, m, el, ck in zip(bh.TERMINAL_PAIRS, raw, elem_of_pair, c)],
+                  note=("With the third terminal floating the meter reads one element in parallel with the other two in "
+                        "series, M12 = C12 + C23·C31/(C23 + C31); the three readings are solved exactly for the three elements."
+                        if conn == "delta" else
+                        "Between two terminals of a wye the meter reads two phases in series, M12 = C1·C2/(C1 + C2); "
+                        "the three readings are solved exactly for the three phases."))
+
+    if mode != "between" and min(c) > 0:
+        back = bh.between_from_delta(*c) if conn == "delta" else bh.between_from_wye(*c)
+        out.table("What a capacitance meter would read between terminals",
+                  ["Terminals", "Reading", "Healthy bank"],
+                  [[pair, fmt.si(m, "F", 4), fmt.si(exp.c_between, "F", 4)] for pair, m in zip(bh.TERMINAL_PAIRS, back)],
+                  note="Third terminal floating; for comparing with a later test made between terminals.")
+
+    # --- plain words
+    for v in ("open", "low", "high"):
+        if v in verdicts:
+            phases = ", ".join(n for n, vv in zip(names, verdicts) if vv == v)
+            out.notes.append(f"{bh.VERDICT_WORDS[v]} ({phases}) — what it usually means (common practice): {bh.MEANINGS[v]}")
+    if all(v == "ok" for v in verdicts):
+        out.notes.append(bh.MEANINGS["ok"])
+    if mode == "phase" and conn == "delta" and all(1.4 < p / 100 < 1.6 for p in pct):
+        out.warn("Every phase reads about 150 % of expected: these look like between-terminal readings of a delta. "
+                 "Choose 'Capacitance between terminals'.")
+    if mode == "phase" and conn != "delta" and all(0.25 < p / 100 < 0.40 for p in pct):
+        out.warn("Every phase reads about a third of expected: a delta has one third of a wye's per-phase "
+                 "capacitance. Is the bank delta-connected?")
+    if mode == "current":
+        out.notes.append("Harmonic voltages raise capacitor current (each harmonic current is h times its voltage in per "
+                         "unit), so a true-rms clamp on a distorted supply overstates the capacitance; prefer the "
+                         "fundamental reading of a power-quality meter. Unequal supply voltages also skew the result "
+                         "(common practice).")
+    else:
+        out.notes.append("Capacitance meters are typically within 1–2 % (common practice); polypropylene capacitance "
+                         "changes little with temperature.")
+    if v_sys / v_rated > 1.10 + 1e-9:
+        out.warn(f"The system voltage is {fmt.sig(100 * v_sys / v_rated, 3)} % of the rated voltage, above the 110 % "
+                 "continuous limit of IEEE Std 18 (IEC 60831-1 allows 1.10·U_N only 8 h in 24 h, from memory).")
+
+    out.figure("Each phase against the band", _bars(list(names), pct, verdicts, band))
+
+
+SHEET = Worksheet(
+    id="bank_health",
+    title="Bank health check",
+    summary="From capacitance or current readings on an installed bank: per-phase capacitance, a verdict per phase "
+            "against IEC 60831-1 or IEEE Std 18 tolerance, the kvar it really delivers and the imbalance.",
+    fields=FIELDS,
+    compute=compute,
+    cautions=[cautions.STORED_CHARGE, cautions.TEST_DEENERGISED, cautions.QUALIFIED, cautions.ESTIMATE],
+    order=50,
+    references=[
+        "C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (capacitors in series and parallel, Y–Δ, three-phase)",
+        "IEEE Std 18, IEEE Standard for Shunt Power Capacitors (capacitance tolerance)",
+        "IEC 60831-1, Shunt power capacitors of the self-healing type for AC systems ≤ 1000 V (tolerance; from memory)",
+    ],
+)

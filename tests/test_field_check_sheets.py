@@ -1,0 +1,244 @@
+"""Bridge-level checks of the bank-health and motor-capacitor worksheets: answers against
+independent solutions, and bad input (zero, negative, absurd, missing, nonsense) giving a
+clear message at the field that caused it, never a crash."""
+
+import json
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+import app.bridge as bridge
+
+W50 = 2 * math.pi * 50
+
+
+def run(sheet, inputs):
+    out = json.loads(bridge.compute(sheet, json.dumps(inputs)))
+    assert "Internal error" not in out.get("error", "")
+    return out
+
+
+def value(out, name):
+    for r in out["results"]:
+        if r["name"] == name:
+            return r
+    raise KeyError(name)
+
+
+def nodal_between(c, pair):
+    """Meter reading between two delta terminals, third floating: numpy nodal solution."""
+    c12, c23, c31 = c
+    y = 1j * W50 * np.array([[c12 + c31, -c12, -c31], [-c12, c12 + c23, -c23], [-c31, -c23, c23 + c31]])
+    a, b = pair
+    keep = [k for k in range(3) if k != b]
+    inj = np.zeros(2, dtype=complex)
+    inj[keep.index(a)] = 1.0
+    v = np.linalg.solve(y[np.ix_(keep, keep)], inj)
+    return float(1.0 / (W50 * abs(v[keep.index(a)])))
+
+
+# ------------------------------------------------------------------------------ bank health
+
+
+def test_catalog_lists_both_sheets():
+    ids = [s["id"] for s in json.loads(bridge.catalog())]
+    assert "bank_health" in ids and "motor_cap" in ids
+
+
+@pytest.mark.parametrize("mode", ["between", "phase", "current"])
+@pytest.mark.parametrize("conn", ["delta", "wye", "wye_n"])
+def test_defaults_compute(mode, conn):
+    out = run("bank_health", {"mode": mode, "connection": conn})
+    # the demo readings are for a delta; on a wye nameplate they are far off and must be refused
+    # at the reading fields, never crash
+    if out["ok"]:
+        assert any(r.get("key") for r in out["results"])
+        assert out["figures"] and out["figures"][0]["svg"].startswith("<svg")
+    else:
+        assert out["field_errors"], out
+
+
+def test_between_readings_resolved_like_numpy():
+    c = (329e-6, 327e-6, 290e-6)  # invented bank, one phase low
+    m = [nodal_between(c, p) for p in ((0, 1), (1, 2), (2, 0))]
+    out = run("bank_health", {"mode": "between", "q_rated": "50", "v_rated": "400", "f_rated": "50",
+                              "connection": "delta", "m12": f"{m[0] * 1e6!r}", "m23": f"{m[1] * 1e6!r}",
+                              "m31": f"{m[2] * 1e6!r}", "band": "iec60831"})
+    assert out["ok"], out
+    for k, ck in enumerate(c, 1):
+        assert value(out, f"c_{k}")["value"] == pytest.approx(ck, rel=1e-6)
+    # expected C = Q/(3ωV²) = 331.573 µF (first principles); 290/331.573 = 87.46 % → below −5 %
+    assert value(out, "verdict_3")["status"] == "fail"
+    assert value(out, "verdict_1")["status"] == "ok"
+    # real kvar: Σ ωCV² at 400 V = 2π·50·(329 + 327 + 290) µF·400² / 1000 = 47.55 kvar
+    assert value(out, "q_total")["value"] == pytest.approx(W50 * sum(c) * 400**2 / 1000, rel=1e-6)
+
+
+def test_units_typed_in_nf():
+    out = run("bank_health", {"mode": "phase", "c1": "329000 nF", "c2": "0.327 mF", "c3": "290u"})
+    assert out["ok"], out
+    assert value(out, "c_2")["value"] == pytest.approx(327e-6)
+    assert value(out, "c_3")["value"] == pytest.approx(290e-6)
+
+
+@pytest.mark.parametrize("text", ["0", "-5", "0 µF"])
+def test_zero_or_negative_reading(text):
+    out = run("bank_health", {"mode": "between", "m23": text})
+    assert not out["ok"]
+    assert "m23" in out["field_errors"] and "above 0" in out["field_errors"]["m23"]
+
+
+def test_absurd_reading_1000x():
+    # expected between-terminal reading 1.5 × 331.6 µF = 497 µF; 497 mF is 1000×
+    out = run("bank_health", {"mode": "between", "m31": "497 mF"})
+    assert not out["ok"]
+    msg = out["field_errors"]["m31"]
+    assert "×" in msg and "unit" in msg
+    out = run("bank_health", {"mode": "phase", "c1": "331600"})
+    assert "c1" in out["field_errors"]
+    out = run("bank_health", {"mode": "current", "i2": "72000"})
+    assert "i2" in out["field_errors"]
+
+
+@pytest.mark.parametrize("mode,field", [("between", "m12"), ("phase", "c2"), ("current", "i3")])
+def test_missing_phase(mode, field):
+    out = run("bank_health", {"mode": mode, field: ""})
+    assert not out["ok"]
+    assert "Missing" in out["field_errors"][field]
+
+
+@pytest.mark.parametrize("field", ["v_rated", "q_rated"])
+def test_nameplate_zero(field):
+    out = run("bank_health", {field: "0"})
+    assert not out["ok"]
+    assert field in out["field_errors"] and "Rated" in out["field_errors"][field]
+
+
+def test_nonsense_and_impossible_readings():
+    out = run("bank_health", {"mode": "between", "m12": "abc"})
+    assert "m12" in out["field_errors"]
+    # 1/M12 > 1/M23 + 1/M31: no delta gives that
+    out = run("bank_health", {"mode": "between", "m12": "100", "m23": "480", "m31": "480"})
+    assert not out["ok"] and "cannot" in out["field_errors"]["m12"]
+    out = run("bank_health", {"mode": "current", "i1": "10", "i2": "10", "i3": "25"})
+    assert not out["ok"] and "i1" in out["field_errors"]
+
+
+def test_voltage_mistakes():
+    out = run("bank_health", {"mode": "current", "v_meas": "0.4"})  # kV typed as V
+    assert "v_meas" in out["field_errors"]
+    out = run("bank_health", {"v_sys": "4000"})
+    assert "v_sys" in out["field_errors"]
+    out = run("bank_health", {"v_sys": "231"})  # phase-to-neutral of 400 V
+    assert out["ok"] and any("line-to-line" in w for w in out["warnings"])
+    out = run("bank_health", {"v_sys": "460"})  # 115 % of rated: above the IEEE 18 110 % limit
+    assert out["ok"] and any("110 %" in w for w in out["warnings"])
+
+
+def test_custom_band():
+    out = run("bank_health", {"mode": "phase", "band": "custom", "band_lo": "-15", "band_hi": "10"})
+    assert out["ok"] and value(out, "verdict_3")["status"] == "ok"  # 87.5 % is inside −15 %
+    out = run("bank_health", {"band": "custom", "band_lo": "5", "band_hi": "2"})
+    assert "band_hi" in out["field_errors"]
+
+
+def test_open_phase_in_delta_reported():
+    c = (0.0, 327e-6, 290e-6)
+    m = [nodal_between(c, p) for p in ((0, 1), (1, 2), (2, 0))]
+    out = run("bank_health", {"mode": "between", **{k: f"{x * 1e6:.2f}" for k, x in zip(("m12", "m23", "m31"), m)}})
+    assert out["ok"], out
+    assert value(out, "verdict_1")["display"].startswith("Open")
+    assert any(n.startswith("Open") for n in out["notes"])
+
+
+# ------------------------------------------------------------------------------- motor sheet
+
+
+def test_motor_defaults_first_principles():
+    out = run("motor_cap", {"v": "400", "f": "50", "i_full": "68", "pf_full": "0.86", "basis": "i0", "i0": "24"})
+    assert out["ok"], out
+    # 0.9 × √3 × 400 × 24 / 1000 = 14.965 kvar (hand arithmetic)
+    assert value(out, "q_max")["value"] == pytest.approx(14.965, rel=1e-4)
+    # delta capacitance per phase C = Q/(3ωV²) = 14 965/(3 × 314.159 × 160 000) = 99.24 µF
+    assert value(out, "c_max")["value"] == pytest.approx(99.24e-6, rel=1e-3)
+    assert any("460.9" in n for n in out["notes"])
+
+
+def test_motor_rough_estimate_marked():
+    out = run("motor_cap", {"basis": "rated", "lr_ratio": "6"})
+    assert out["ok"]
+    r = value(out, "q_max")
+    assert "rough" in r["label"] and r["status"] == "warn"
+    assert out["warnings"]
+
+
+@pytest.mark.parametrize("inputs,field", [
+    ({"i0": "80"}, "i0"),  # no-load above full-load current
+    ({"i0": "0"}, "i0"),
+    ({"i0": ""}, "i0"),
+    ({"pf_full": "1.2"}, "pf_full"),
+    ({"pf_full": "0"}, "pf_full"),
+    ({"basis": "rated", "pf_full": "1"}, "pf_full"),
+    ({"basis": "rated", "pf_full": "0.99"}, "pf_full"),
+    ({"basis": "rated", "lr_ratio": "1"}, "lr_ratio"),
+    ({"v": "0"}, "v"),
+    ({"v": "-400"}, "v"),
+    ({"q_cap": "-3"}, "q_cap"),
+    ({"i_full": "lots"}, "i_full"),
+])
+def test_motor_bad_inputs(inputs, field):
+    out = run("motor_cap", inputs)
+    assert not out["ok"]
+    assert out["field_errors"].get(field), out
+
+
+def test_motor_check_verdicts():
+    base = {"v": "400", "i_full": "68", "pf_full": "0.86", "i0": "24"}  # Q0 = 16.628 kvar
+    assert value(run("motor_cap", {**base, "q_cap": "14"}), "check")["status"] == "ok"
+    assert value(run("motor_cap", {**base, "q_cap": "15.5"}), "check")["status"] == "warn"
+    out = run("motor_cap", {**base, "q_cap": "17"})
+    assert value(out, "check")["status"] == "fail" and out["warnings"]
+
+
+# --------------------------------------------------------------------------- never crashes
+
+_text = st.one_of(st.sampled_from(["", "0", "-1", "1e308", "1e-300", "5e-324", "nan", "1e-12", "9e15"]),
+                  st.text(max_size=12), st.floats(allow_nan=True, allow_infinity=True).map(repr))
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.dictionaries(st.sampled_from(["q_rated", "v_rated", "f_rated", "connection", "mode", "m12", "m23", "m31",
+                                        "c1", "c2", "c3", "i1", "i2", "i3", "v_meas", "v_sys", "f_sys", "band",
+                                        "band_lo", "band_hi"]), _text))
+def test_bank_health_never_crashes(inputs):
+    out = run("bank_health", inputs)
+    assert out["ok"] or out["field_errors"] or out.get("error")
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.dictionaries(st.sampled_from(["v", "f", "i_full", "pf_full", "basis", "i0", "lr_ratio", "q_cap", "cap_conn"]), _text))
+def test_motor_cap_never_crashes(inputs):
+    out = run("motor_cap", inputs)
+    assert out["ok"] or out["field_errors"] or out.get("error")
+
+
+@settings(max_examples=100, deadline=None)
+@given(st.tuples(*[st.floats(1e-9, 1e-2)] * 3), st.sampled_from(["delta", "wye", "wye_n"]),
+       st.sampled_from(["between", "phase"]))
+def test_bank_health_any_positive_readings(c, conn, mode):
+    names = ("m12", "m23", "m31") if mode == "between" else ("c1", "c2", "c3")
+    out = run("bank_health", {"mode": mode, "connection": conn, **{n: f"{x!r} F" for n, x in zip(names, c)}})
+    assert out["ok"] or out["field_errors"]
+
+
+def test_connection_mix_up_hints():
+    # A wye of the same kvar has 3× the per-phase capacitance of a delta (C = Q/(ωV²) against
+    # Q/(3ωV²), first principles): wye-sized readings on a delta nameplate are refused with a hint…
+    out = run("bank_health", {"mode": "phase", "connection": "delta", "c1": "995", "c2": "990", "c3": "996"})
+    assert not out["ok"] and "wye" in out["field_errors"]["c1"]
+    # …and delta-sized readings on a wye nameplate read about a third, with a warning
+    out = run("bank_health", {"mode": "phase", "connection": "wye", "c1": "330", "c2": "331", "c3": "329"})
+    assert out["ok"] and any("delta-connected" in w for w in out["warnings"])
