@@ -113,7 +113,7 @@ def report(job_json: str, fmt: str, options_json: str = "{}") -> str:
         if not isinstance(opts, dict):
             return json.dumps({"ok": False, "error": "The report options could not be read."})
         if fmt not in _report.FORMATS:
-            return json.dumps({"ok": False, "error": f"Unknown report format (use html, text or csv)."})
+            return json.dumps({"ok": False, "error": "Unknown report format (use html, text or csv)."})
         date = str(opts.get("date") or now_stamp()[:10])[:40]
         app_version = str(opts.get("app_version") or __version__)[:50]
         entry_id = opts.get("entry_id")
