@@ -62,10 +62,11 @@ class Svg:
     def rect(self, x, y, w, h, cls="fp-band"):
         self.parts.append(f'<rect x="{_n(x)}" y="{_n(y)}" width="{_n(w)}" height="{_n(h)}" class="{cls}"/>')
 
-    def text(self, x, y, s, anchor="start", cls="fp-text", size: int = 13, weight: str = ""):
+    def text(self, x, y, s, anchor="start", cls="fp-text", size: int = 13, weight: str = "", rotate: float = 0.0):
         wt = f' font-weight="{weight}"' if weight else ""
+        rot = f' transform="rotate({_n(rotate)} {_n(x)} {_n(y)})"' if rotate else ""
         self.parts.append(
-            f'<text x="{_n(x)}" y="{_n(y)}" text-anchor="{anchor}" font-size="{size}" class="{cls}"{wt}>{esc(s)}</text>'
+            f'<text x="{_n(x)}" y="{_n(y)}" text-anchor="{anchor}" font-size="{size}" class="{cls}"{wt}{rot}>{esc(s)}</text>'
         )
 
     def __str__(self) -> str:
@@ -199,7 +200,7 @@ def xy_chart(
     svg.line(left, top + ph, left + pw, top + ph, "fp-axis")
     svg.line(left, top, left, top + ph, "fp-axis")
     svg.text(left + pw / 2, height - 10, x_label, anchor="middle", size=12)
-    svg.text(14, top + ph / 2, y_label, anchor="middle", size=12)
+    svg.text(16, top + ph / 2, y_label, anchor="middle", size=12, rotate=-90)
     for m in markers:
         if ok(m["x"], 10 ** y0 if log_y else y0 + 1e-300) or (not log_x and math.isfinite(m["x"])):
             if (10 ** x0 if log_x else x0) <= m["x"] <= (10 ** x1 if log_x else x1):

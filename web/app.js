@@ -90,22 +90,47 @@ function showResult(res) {
 }
 
 // ---- saving what is typed ---------------------------------------------------------------------
-let saveTimer = 0;
+// Every edit is written at once to a synchronous journal (localStorage), then to IndexedDB; a
+// write in flight is followed by one more with the newest inputs. A reload or a killed tab
+// therefore loses nothing, even in the milliseconds before IndexedDB commits.
+const JOURNAL = "fp-journal";
+let saving = false;
+let saveAgain = false;
+function journalWrite() {
+  try {
+    localStorage.setItem(JOURNAL, JSON.stringify({ sheet: state.sheet.id, target: state.target, inputs: state.inputs }));
+  } catch { /* storage off or full: IndexedDB (or memory) still holds the inputs */ }
+}
+function journalFor(sheetId, target) {
+  try {
+    const j = JSON.parse(localStorage.getItem(JOURNAL) || "null");
+    if (j && j.sheet === sheetId && JSON.stringify(j.target || null) === JSON.stringify(target || null)) return j.inputs;
+  } catch { /* unreadable journal: ignore */ }
+  return null;
+}
 function scheduleSave() {
-  clearTimeout(saveTimer);
+  journalWrite();
   jobs.markDirty();
-  saveTimer = setTimeout(saveNow, 250);
+  saveNow();
 }
 async function saveNow() {
-  clearTimeout(saveTimer);
   if (!state.sheet) return;
-  const inputs = { ...state.inputs };
+  if (saving) { saveAgain = true; return; }
+  saving = true;
   try {
-    if (state.target) await jobs.saveEntryInputs(state.target, inputs, state.lastResult);
-    else await store.putDraft(state.sheet.id, inputs);
-    jobs.markSaved();
-  } catch (err) {
-    jobs.markSaveFailed(err);
+    do {
+      saveAgain = false;
+      const inputs = { ...state.inputs };
+      try {
+        if (state.target) await jobs.saveEntryInputs(state.target, inputs);
+        else await store.putDraft(state.sheet.id, inputs);
+        jobs.markSaved();
+      } catch (err) {
+        jobs.markSaveFailed(err);
+      }
+    } while (saveAgain);
+  } finally {
+    saving = false;
   }
 }
 addEventListener("pagehide", saveNow);
@@ -124,6 +149,9 @@ async function openSheet(id, { inputs = null, target = null } = {}) {
   if (!saved && !target) {
     try { saved = await store.getDraft(decl.id); } catch { saved = null; }
   }
+  const journal = journalFor(decl.id, target);
+  const recovered = journal && JSON.stringify(journal) !== JSON.stringify(saved || {});
+  if (journal && (!inputs || target)) saved = journal; // the journal is never older than the store
   state.inputs = saved && typeof saved === "object" ? { ...saved } : {};
   $("sheet-title").textContent = decl.title;
   $("sheet-summary").textContent = decl.summary;
@@ -137,9 +165,9 @@ async function openSheet(id, { inputs = null, target = null } = {}) {
   clear($("results-body")).append(h("p", { class: "muted", text: engine.state === "ready" ? "Computing…" : "The engine is starting; results appear here in a moment. You can type now." }));
   jobs.showBar(target);
   showView("sheet");
-  const want = `#/sheet/${decl.id}`;
-  if (!target && location.hash !== want) history.replaceState(null, "", want);
-  if (inputs && !target) scheduleSave();
+  const want = target ? `#/entry/${target.jobId}/${target.entryId}` : `#/sheet/${decl.id}`;
+  if (location.hash !== want) history.replaceState(null, "", want);
+  if ((inputs && !target) || recovered) scheduleSave();
   scheduleCompute(0);
 }
 
@@ -155,7 +183,7 @@ function showView(which) {
 const jobs = new Jobs({ engine, store, $, openSheet, showView, getState: () => state, saveNow });
 
 $("sheet-pick").addEventListener("change", (e) => openSheet(e.target.value));
-$("jobs-btn").addEventListener("click", () => { saveNow(); jobs.show(); history.replaceState(null, "", "#/jobs"); });
+$("jobs-btn").addEventListener("click", () => { saveNow(); jobs.show(state.target ? state.target.jobId : null); });
 $("form").addEventListener("submit", (e) => e.preventDefault());
 
 // ---- start -----------------------------------------------------------------------------------
@@ -164,9 +192,14 @@ async function start() {
   const pick = $("sheet-pick");
   for (const s of state.catalog) pick.append(h("option", { value: s.id, text: s.title }));
   const m = location.hash.match(/^#\/sheet\/([\w-]+)/);
-  if (location.hash === "#/jobs") {
+  const e = location.hash.match(/^#\/entry\/([\w-]+)\/([\w-]+)/);
+  const entry = e && (await jobs.find(e[1], e[2]));
+  if (entry) {
+    await openSheet(entry.worksheet, { inputs: entry.inputs, target: { jobId: e[1], entryId: e[2] } });
+  } else if (location.hash.startsWith("#/job")) {
+    const j = location.hash.match(/^#\/job\/([\w-]+)/);
     await openSheet(DEFAULT_SHEET);
-    jobs.show();
+    await jobs.show(j ? j[1] : null);
   } else {
     await openSheet(m ? m[1] : DEFAULT_SHEET);
   }

@@ -33,6 +33,13 @@ export class Jobs {
     this.showBar(this.ctx.getState().target);
   }
 
+  /** The entry with these ids, or null (after the jobs have loaded). */
+  async find(jobId, entryId) {
+    await this.loaded;
+    const job = this.jobs.get(jobId);
+    return (job && job.entries.find((e) => e.id === entryId)) || null;
+  }
+
   // ---- saving -----------------------------------------------------------------------------------
   _persist(job) {
     job.updated = nowIso();
@@ -121,8 +128,9 @@ export class Jobs {
   }
 
   // ---- the jobs view ----------------------------------------------------------------------------
-  async show() {
+  async show(jobId = null) {
     await this.loaded;
+    if (jobId && this.jobs.has(jobId)) this.openJobId = jobId;
     this.ctx.showView("jobs");
     if (this.openJobId && this.jobs.has(this.openJobId)) this._renderJob(this.jobs.get(this.openJobId));
     else this._renderList();
@@ -136,6 +144,7 @@ export class Jobs {
 
   _renderList() {
     this.openJobId = null;
+    if (location.hash !== "#/jobs") history.replaceState(null, "", "#/jobs");
     const v = this._view();
     const jobs = [...this.jobs.values()].sort((a, b) => (b.updated || "").localeCompare(a.updated || ""));
     const fileInput = h("input", { type: "file", accept: ".json,application/json", id: "import-file", class: "sr-only", "aria-label": "Choose a jobs file to import" });
@@ -176,7 +185,7 @@ export class Jobs {
     if (!job) return this._renderList();
     this.openJobId = id;
     this.ctx.showView("jobs");
-    history.replaceState(null, "", "#/jobs");
+    history.replaceState(null, "", `#/job/${id}`);
     this._renderJob(job);
   }
 
@@ -358,8 +367,8 @@ export class Jobs {
     this._msg(`Imported ${incoming.length} job${incoming.length === 1 ? "" : "s"}.`);
   }
 
-  async _report(job, format, entryId) {
-    const options = entryId ? { entry_id: entryId } : {};
+  async _report(job, format, entryId, extra = {}) {
+    const options = { ...(entryId ? { entry_id: entryId } : {}), ...extra };
     const res = await this.ctx.engine.json("report", { job, format, options });
     if (!res.ok) throw new Error(res.error);
     return res;
@@ -386,7 +395,7 @@ export class Jobs {
   async shareReport(job, entryId) {
     let html, text;
     try {
-      [html, text] = await Promise.all([this._report(job, "html", entryId), this._report(job, "text", entryId)]);
+      [html, text] = await Promise.all([this._report(job, "html", entryId), this._report(job, "text", entryId, { detail: "brief" })]);
     } catch (err) {
       this._msg(`The report could not be made: ${err.message}`, true);
       return;
@@ -403,7 +412,7 @@ export class Jobs {
     }
     const { url, cut } = mailtoFor(html.title, text.text);
     this.lastMailto = url;
-    location.href = url;
+    (window.fieldphasor.openMailto || ((u) => { location.href = u; }))(url); // tests replace the opener
     const msg = cut
       ? "Your mail app opens with a shortened summary (mail links have a length limit). Download the full report below and attach it."
       : "Your mail app opens with the summary. The message waits in its outbox until there is signal.";

@@ -56,11 +56,16 @@ self.addEventListener("fetch", (event) => {
   if (url.origin !== self.location.origin) return;
   event.respondWith((async () => {
     const cache = await caches.open(CACHE);
-    let key = url.origin + url.pathname;
-    if (req.mode === "navigate" || key === scope) key = new URL("index.html", scope).href;
+    const key = url.origin + url.pathname;
     // The cached response itself (not a copy), so Chromium can reuse compiled wasm kept beside it.
-    const hit = await cache.match(key);
+    const hit = await cache.match(key === scope ? new URL("index.html", scope).href : key);
     if (hit) return hit;
-    return fetch(req);
+    try {
+      return await fetch(req);
+    } catch (err) {
+      // Offline and not part of the build: a page address still opens the app.
+      if (req.mode === "navigate") return cache.match(new URL("index.html", scope).href);
+      throw err;
+    }
   })());
 });

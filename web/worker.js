@@ -12,13 +12,14 @@ function hex(buffer) {
 
 const ready = (async () => {
   mark("worker-start");
+  // Boot the interpreter at once; meanwhile read the build facts and fetch the app wheel.
+  const booting = loadPyodide({ indexURL: here("./pyodide/"), stdout: () => {}, stderr: (s) => console.warn(s) });
   const info = await (await fetch(here("./engine.json"))).json();
-  // Fetch the app wheel while the interpreter boots.
   const appWheel = fetch(here(`./wheels/${info.app_wheel}`)).then((r) => {
     if (!r.ok) throw new Error(`app package missing (${r.status})`);
     return r.arrayBuffer();
   });
-  const pyodide = await loadPyodide({ indexURL: here("./pyodide/"), stdout: () => {}, stderr: (s) => console.warn(s) });
+  const pyodide = await booting;
   mark("python-ready");
   await pyodide.loadPackage(info.wheels.map((w) => here(`./wheels/${w}`)), { messageCallback: () => {} });
   const buf = await appWheel;

@@ -1,0 +1,253 @@
+#!/usr/bin/env python3
+"""Fieldphasor benchmark: start-up and response figures in Debian's Chromium, printed with targets.
+
+Run through `python3 build.py bench [--runs N] [--out FILE]`. One Chromium session against the built
+dist/ on a local server: a first visit installs the service worker and fills its cache, then the
+network is cut (context offline) and every measured load comes from the warm cache.
+
+Figures (milliseconds from navigation start unless noted):
+  bare_boot_ms           a reference page with no app code: loadPyodide() in a module worker (baseline)
+  first_paint_ms         first contentful paint of the app
+  input_ready_ms         the worksheet form rendered and accepting input
+  engine_ready_ms        Pyodide up and the app package importable in the worker
+  first_result_ms        the first computed result on screen
+  recompute_*_ms         input event → result painted, after the debounce (which is printed separately)
+  throttled_*            the same main-thread figures with CDP CPU throttling 4× (the worker is not slowed)
+  precache_bytes         total bytes the service worker precaches
+  js_heap_bytes          main-thread JS heap after the first result (the worker's wasm memory is separate)
+Speed targets are printed beside the figures; nothing here fails a test.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import statistics
+import sys
+import tempfile
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+ROOT = os.path.dirname(os.path.dirname(HERE))
+sys.path.insert(0, ROOT)
+import build  # noqa: E402
+
+ARGS = [
+    "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
+    "--disable-sync", "--disable-quic", "--no-first-run",
+]
+
+BARE_HTML = """<!doctype html><meta charset="utf-8"><title>bare pyodide boot</title>
+<script type="module" src="bare.js"></script><p>bare boot</p>"""
+BARE_JS = """
+const w = new Worker(new URL('./bare-worker.js', import.meta.url), {type: 'module'});
+w.onmessage = (e) => { window.__bare = performance.now(); document.body.dataset.done = '1'; };
+"""
+BARE_WORKER = """
+import { loadPyodide } from '../pyodide/pyodide.mjs';
+const py = await loadPyodide({ indexURL: new URL('../pyodide/', import.meta.url).href });
+py.runPython('1+1');
+postMessage('ready');
+"""
+
+SHEET = "correction"  # the worksheet that opens first
+EDIT_FIELD_CANDIDATES = ["p_kw", "f", "v_ll"]
+
+
+def median(xs):
+    return statistics.median(xs) if xs else None
+
+
+def pct(xs, q):
+    if not xs:
+        return None
+    xs = sorted(xs)
+    k = max(0, min(len(xs) - 1, int(round(q / 100 * (len(xs) - 1)))))
+    return xs[k]
+
+
+def measure(args) -> dict:
+    from playwright.sync_api import sync_playwright
+
+    dist = args.dist
+    bench_dir = os.path.join(dist, "__bench")
+    os.makedirs(bench_dir, exist_ok=True)
+    for name, text in (("bare.html", BARE_HTML), ("bare.js", BARE_JS), ("bare-worker.js", BARE_WORKER)):
+        with open(os.path.join(bench_dir, name), "w") as fh:
+            fh.write(text)
+    srv, url = build.serve_in_thread(dist)
+    profile = tempfile.mkdtemp(prefix="fp-bench-")
+    out: dict = {}
+    try:
+        with sync_playwright() as p:
+            ctx = p.chromium.launch_persistent_context(profile, executable_path=build.CHROMIUM, args=ARGS,
+                                                       viewport={"width": 390, "height": 844})
+            page = ctx.new_page()
+            # First visit: install the service worker and precache; also cache the bare page.
+            page.goto(url + f"#/sheet/{SHEET}")
+            page.wait_for_selector("#engine[data-state=ready]", timeout=120_000)
+            page.evaluate("async () => { await navigator.serviceWorker.ready; }")
+            page.wait_for_function("() => !!navigator.serviceWorker.controller", timeout=60_000)
+            page.evaluate("""async () => {
+                const keys = await caches.keys();
+                const c = await caches.open(keys.find(k => k.startsWith('fieldphasor-')));
+                for (const f of ['bare.html', 'bare.js', 'bare-worker.js']) {
+                    const u = new URL('__bench/' + f, location.href).href;
+                    await c.put(u, await fetch(u));
+                }
+            }""")
+            precache = page.evaluate("""async () => {
+                const keys = await caches.keys();
+                const c = await caches.open(keys.find(k => k.startsWith('fieldphasor-')));
+                let n = 0;
+                for (const r of await c.keys()) {
+                    if (r.url.includes('/__bench/')) continue;
+                    n += (await (await c.match(r)).arrayBuffer()).byteLength;
+                }
+                return n;
+            }""")
+            page.close()
+            ctx.set_offline(True)
+
+            bare, fp, ready_in, eng, first, heap = [], [], [], [], [], []
+            for _ in range(args.runs):
+                # baseline and app alternate so both see the same machine state
+                pg = ctx.new_page()
+                pg.goto(url + "__bench/bare.html")
+                pg.wait_for_selector("body[data-done='1']", timeout=120_000)
+                bare.append(pg.evaluate("window.__bare"))
+                pg.close()
+
+                pg = ctx.new_page()
+                pg.goto(url + f"#/sheet/{SHEET}")
+                pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=120_000)
+                perf = pg.evaluate("""() => {
+                    const p = window.fieldphasor.perf;
+                    const fcp = performance.getEntriesByName('first-contentful-paint')[0];
+                    return {fcp: fcp ? fcp.startTime : null, input: p.inputReady, engine: p.engineReady, first: p.firstResult};
+                }""")
+                fp.append(perf["fcp"])
+                ready_in.append(perf["input"])
+                eng.append(perf["engine"])
+                first.append(perf["first"])
+                cdp = ctx.new_cdp_session(pg)
+                cdp.send("Performance.enable")
+                metrics = {m["name"]: m["value"] for m in cdp.send("Performance.getMetrics")["metrics"]}
+                heap.append(metrics.get("JSHeapUsedSize"))
+                pg.close()
+
+            # Recompute latency on one page: edits to a numeric field, input → painted.
+            pg = ctx.new_page()
+            pg.goto(url + f"#/sheet/{SHEET}")
+            pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=120_000)
+            field = pg.evaluate(
+                "(cands) => cands.find(n => document.getElementById('in-' + n)) || ''", EDIT_FIELD_CANDIDATES
+            )
+            lat = pg.evaluate("""async ([field, n]) => {
+                const f = window.fieldphasor, s = f.state;
+                const el = document.getElementById('in-' + field);
+                const base = parseFloat(el.value) || 100;
+                const out = [];
+                for (let i = 0; i < n; i++) {
+                    el.value = String(base + (i % 7) + 1);
+                    const t0 = performance.now();
+                    el.dispatchEvent(new Event('input', {bubbles: true}));
+                    await new Promise(res => { (function poll() { if (s.shownSeq === s.editSeq) res(); else setTimeout(poll, 1); })(); });
+                    await new Promise(res => requestAnimationFrame(() => res()));
+                    out.push(performance.now() - t0);
+                }
+                return out;
+            }""", [field, args.edits])
+            debounce = pg.evaluate("() => 120")
+            pg.close()
+
+            # Main-thread figures at 4× CPU throttling (CDP slows only the page's main thread).
+            t_fp, t_in = [], []
+            for _ in range(args.runs):
+                pg = ctx.new_page()
+                cdp = ctx.new_cdp_session(pg)
+                cdp.send("Emulation.setCPUThrottlingRate", {"rate": 4})
+                pg.goto(url + f"#/sheet/{SHEET}")
+                pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.inputReady", timeout=120_000)
+                pg.wait_for_timeout(200)
+                r = pg.evaluate("""() => {
+                    const fcp = performance.getEntriesByName('first-contentful-paint')[0];
+                    return {fcp: fcp ? fcp.startTime : null, input: window.fieldphasor.perf.inputReady};
+                }""")
+                t_fp.append(r["fcp"])
+                t_in.append(r["input"])
+                pg.close()
+            ctx.close()
+
+        after = [x - debounce for x in lat]
+        out = {
+            "runs": args.runs,
+            "edits": len(lat),
+            "bare_boot_ms": median(bare),
+            "first_paint_ms": median(fp),
+            "input_ready_ms": median(ready_in),
+            "engine_ready_ms": median(eng),
+            "first_result_ms": median(first),
+            "recompute_debounce_ms": debounce,
+            "recompute_total_median_ms": median(lat),
+            "recompute_median_ms": median(after),
+            "recompute_p95_ms": pct(after, 95),
+            "throttled_first_paint_ms": median(t_fp),
+            "throttled_input_ready_ms": median(t_in),
+            "precache_bytes": precache,
+            "js_heap_bytes": median(heap),
+        }
+        out["first_result_ratio"] = out["first_result_ms"] / out["bare_boot_ms"] if out["bare_boot_ms"] else None
+        out["engine_ready_ratio"] = out["engine_ready_ms"] / out["bare_boot_ms"] if out["bare_boot_ms"] else None
+        out["samples"] = {"bare_boot_ms": bare, "first_result_ms": first, "engine_ready_ms": eng}
+    finally:
+        srv.shutdown()
+        import shutil
+
+        shutil.rmtree(profile, ignore_errors=True)
+        shutil.rmtree(bench_dir, ignore_errors=True)
+    return out
+
+
+def report(r: dict) -> str:
+    b = r["bare_boot_ms"] or 1
+    rows = [
+        ("bare Pyodide boot (baseline)", r["bare_boot_ms"], "ms", "—", None),
+        ("first paint", r["first_paint_ms"], "ms", "≤ 300 ms", r["first_paint_ms"] <= 300),
+        ("form accepts input", r["input_ready_ms"], "ms", "≤ 300 ms", r["input_ready_ms"] <= 300),
+        ("engine ready", r["engine_ready_ms"], "ms", "—", None),
+        ("first result", r["first_result_ms"], "ms", f"≤ 1.15 × bare = {1.15 * b:.0f} ms", r["first_result_ms"] <= 1.15 * b),
+        ("recompute median (after debounce)", r["recompute_median_ms"], "ms", "≤ 16 ms", r["recompute_median_ms"] <= 16),
+        ("recompute p95 (after debounce)", r["recompute_p95_ms"], "ms", "≤ 50 ms", r["recompute_p95_ms"] <= 50),
+        ("debounce", r["recompute_debounce_ms"], "ms", "—", None),
+        ("first paint, 4× CPU throttle", r["throttled_first_paint_ms"], "ms", "≤ 300 ms", r["throttled_first_paint_ms"] <= 300),
+        ("form ready, 4× CPU throttle", r["throttled_input_ready_ms"], "ms", "≤ 300 ms", r["throttled_input_ready_ms"] <= 300),
+        ("precached", r["precache_bytes"] / 1e6, "MB", "≤ 16 MB", r["precache_bytes"] <= 16e6),
+        ("JS heap after first result", r["js_heap_bytes"] / 1e6, "MB", "—", None),
+    ]
+    lines = [f"{'figure':38} {'value':>10}  {'× bare':>7}  {'target':28} met"]
+    for name, v, unit, target, ok in rows:
+        ratio = f"{v / b:6.2f}×" if unit == "ms" and name not in ("debounce",) and "recompute" not in name else ""
+        mark = "" if ok is None else ("yes" if ok else "NO")
+        lines.append(f"{name:38} {v:8.1f} {unit:2} {ratio:>8}  {target:28} {mark}")
+    lines.append(f"(median of {r['runs']} runs for start-up; {r['edits']} edits for recompute; warm service-worker cache, network off)")
+    return "\n".join(lines)
+
+
+def main():
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--dist", default=build.DIST)
+    ap.add_argument("--runs", type=int, default=5)
+    ap.add_argument("--edits", type=int, default=60)
+    ap.add_argument("--out", default="")
+    args = ap.parse_args()
+    r = measure(args)
+    print(report(r))
+    path = args.out or os.path.join(args.dist, "bench.json")
+    with open(path, "w") as fh:
+        json.dump(r, fh, indent=2)
+    print(f"written: {path}")
+
+
+if __name__ == "__main__":
+    main()
