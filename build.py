@@ -417,13 +417,25 @@ def build(quiet: bool = False) -> str:
     with open(os.path.join(tmp, "engine.json"), "w", encoding="utf-8") as fh:
         json.dump(engine, fh, indent=2, sort_keys=True)
 
-    # Precache list: every file with its content hash; VERSION is the hash of that list.
+    assets, cache_version = write_service_worker(tmp, version)
+    shutil.rmtree(DIST, ignore_errors=True)
+    os.rename(tmp, DIST)
+    if not quiet:
+        total = sum(os.path.getsize(os.path.join(DIST, a)) for a, _ in assets)
+        log(f"dist/ ready: {len(assets)} files, {total / 1e6:.2f} MB precached, cache {cache_version}")
+    return DIST
+
+
+def write_service_worker(folder: str, version: str) -> tuple[list, str]:
+    """Write ``folder``/sw.js from web/sw.js with the precache list of every other file in
+    ``folder`` and its SHA-256; VERSION is the hash of that list. Returns (assets, VERSION)."""
     assets = []
-    for folder, dirs, names in os.walk(tmp):
+    for sub, dirs, names in os.walk(folder):
         dirs.sort()
         for n in sorted(names):
-            rel = os.path.relpath(os.path.join(folder, n), tmp).replace(os.sep, "/")
-            assets.append([rel, sha256_file(os.path.join(folder, n))])
+            rel = os.path.relpath(os.path.join(sub, n), folder).replace(os.sep, "/")
+            if rel != "sw.js":
+                assets.append([rel, sha256_file(os.path.join(sub, n))])
     assets.sort()
     cache_version = hashlib.sha256(json.dumps(assets).encode()).hexdigest()[:16]
     with open(os.path.join(WEB, "sw.js"), encoding="utf-8") as fh:
@@ -431,14 +443,9 @@ def build(quiet: bool = False) -> str:
     sw = sw.replace("/*@ASSETS@*/[]", json.dumps(assets, separators=(",", ":")))
     sw = sw.replace('"@VERSION@"', json.dumps(cache_version))
     sw = sw.replace('"@APP_VERSION@"', json.dumps(version))
-    with open(os.path.join(tmp, "sw.js"), "w", encoding="utf-8") as fh:
+    with open(os.path.join(folder, "sw.js"), "w", encoding="utf-8") as fh:
         fh.write(sw)
-    shutil.rmtree(DIST, ignore_errors=True)
-    os.rename(tmp, DIST)
-    if not quiet:
-        total = sum(os.path.getsize(os.path.join(DIST, a)) for a, _ in assets)
-        log(f"dist/ ready: {len(assets)} files, {total / 1e6:.2f} MB precached, cache {cache_version}")
-    return DIST
+    return assets, cache_version
 
 
 # ---- serving -------------------------------------------------------------------------------
@@ -477,10 +484,14 @@ class Server(socketserver.ThreadingMixIn, http.server.HTTPServer):
 def make_server(directory: str, host: str = "127.0.0.1", port: int = 0) -> Server:
     """An HTTP server for ``directory`` (port 0 = any free port); call serve_forever in a thread."""
 
-    def handler(*a, **kw):
-        return Handler(*a, directory=directory, **kw)
+    holder = {"dir": directory}  # tests may point a running server at another build
 
-    return Server((host, port), handler)
+    def handler(*a, **kw):
+        return Handler(*a, directory=holder["dir"], **kw)
+
+    srv = Server((host, port), handler)
+    srv.holder = holder
+    return srv
 
 
 def serve_in_thread(directory: str, host: str = "127.0.0.1", port: int = 0) -> tuple[Server, str]:
@@ -614,7 +625,11 @@ def main(argv=None) -> int:
     b.add_argument("--out", default="")
     b.set_defaults(fn=cmd_bench)
     sub.add_parser("clean").set_defaults(fn=cmd_clean)
-    args = ap.parse_args(argv)
+    args, extra = ap.parse_known_args(argv)
+    if extra and args.cmd != "test":
+        ap.error(f"unrecognized arguments: {' '.join(extra)}")
+    if args.cmd == "test":
+        args.pytest_args = extra + list(args.pytest_args)
     return args.fn(args)
 
 

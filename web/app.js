@@ -83,6 +83,11 @@ function showResult(res) {
   state.lastShown = text;
   state.lastResult = res;
   renderResults($("results-body"), res, { onLink: followLink });
+  // The headline answer sits above the form, so a phone user sees it without scrolling.
+  const first = (res.results || []).find((r) => r.key);
+  const head = $("headline");
+  head.hidden = !res.ok || !first;
+  if (first) head.textContent = `${first.label}: ${first.display} — all results ↓`;
   const nErr = Object.keys(res.field_errors || {}).length;
   const key = (res.results || []).filter((r) => r.key).map((r) => `${r.label} ${r.display}`).join("; ");
   $("announce").textContent = res.ok ? `Updated. ${key}` : `${nErr || "An"} input${nErr === 1 ? "" : "s"} need${nErr === 1 ? "s" : ""} attention. ${Object.values(res.field_errors || {}).join(" ")} ${res.error || ""}`;
@@ -144,6 +149,7 @@ async function openSheet(id, { inputs = null, target = null } = {}) {
   state.target = target;
   state.lastShown = "";
   state.lastResult = null;
+  $("headline").hidden = true;
   state.editSeq++;
   let saved = inputs;
   if (!saved && !target) {
@@ -181,6 +187,7 @@ function showView(which) {
 }
 
 const jobs = new Jobs({ engine, store, $, openSheet, showView, getState: () => state, saveNow });
+window.fieldphasor.jobs = jobs;
 
 $("sheet-pick").addEventListener("change", (e) => openSheet(e.target.value));
 $("jobs-btn").addEventListener("click", () => { saveNow(); jobs.show(state.target ? state.target.jobId : null); });

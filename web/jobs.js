@@ -21,6 +21,10 @@ export class Jobs {
   }
 
   async _load() {
+    if (!(await this.ctx.store.available())) {
+      this._storageProblem(new Error("IndexedDB cannot be opened"));
+      return;
+    }
     try {
       for (const j of (await this.ctx.store.listJobs()) || []) this.jobs.set(j.id, j);
     } catch (err) {
@@ -132,7 +136,7 @@ export class Jobs {
     await this.loaded;
     if (jobId && this.jobs.has(jobId)) this.openJobId = jobId;
     this.ctx.showView("jobs");
-    if (this.openJobId && this.jobs.has(this.openJobId)) this._renderJob(this.jobs.get(this.openJobId));
+    if (this.openJobId && this.jobs.has(this.openJobId)) this.openJob(this.openJobId);
     else this._renderList();
   }
 
