@@ -32,6 +32,23 @@ def _load() -> dict[str, Worksheet]:
     return _SHEETS
 
 
+def sheet(worksheet_id: str) -> Worksheet | None:
+    """One worksheet by id, importing only its own module (``app/sheets/<id>.py``) when the
+    catalog has not been loaded: the first result needs only the worksheet on screen."""
+    if worksheet_id in _SHEETS:
+        return _SHEETS[worksheet_id]
+    if not _SHEETS and isinstance(worksheet_id, str) and worksheet_id.isidentifier() and not worksheet_id.startswith("_"):
+        try:
+            mod = importlib.import_module(f"{__package__}.sheets.{worksheet_id}")
+        except ImportError:
+            return None
+        found = getattr(mod, "SHEET", None)
+        if isinstance(found, Worksheet) and found.id == worksheet_id:
+            return found
+        return None
+    return _load().get(worksheet_id)
+
+
 def sheets() -> dict[str, Worksheet]:
     """All worksheets by id, in display order."""
     return _load()
@@ -45,8 +62,8 @@ def catalog() -> str:
 def compute(worksheet_id: str, inputs: str) -> str:
     """Compute one worksheet from a JSON object of field name → typed text. Never raises."""
     try:
-        sheet = _load().get(worksheet_id)
-        if sheet is None:
+        ws = sheet(worksheet_id)
+        if ws is None:
             return json.dumps(_failure(f"Unknown worksheet '{worksheet_id}'."), ensure_ascii=False)
         try:
             raw = json.loads(inputs) if isinstance(inputs, str) else dict(inputs)
@@ -54,7 +71,7 @@ def compute(worksheet_id: str, inputs: str) -> str:
             return json.dumps(_failure("The inputs could not be read."), ensure_ascii=False)
         if not isinstance(raw, dict):
             return json.dumps(_failure("The inputs could not be read."), ensure_ascii=False)
-        return json.dumps(sheet.run(raw), ensure_ascii=False, allow_nan=False)
+        return json.dumps(ws.run(raw), ensure_ascii=False, allow_nan=False)
     except Exception as exc:  # the contract: never raise across the bridge
         traceback.print_exc()
         return json.dumps(

@@ -87,3 +87,16 @@ def test_bridge_never_raises():
     assert json.loads(bridge.compute("impedance", "[1,2"))["ok"] is False
     assert json.loads(bridge.compute("impedance", "[]"))["ok"] is False
     assert json.loads(bridge.compute("impedance", json.dumps({"mode": 5, "z": None})))["ok"] in (True, False)
+
+
+def test_each_worksheet_module_is_named_for_its_id():
+    # compute() imports only app/sheets/<id>.py for the first result; the names must agree.
+    import importlib
+
+    for sid in bridge.sheets():
+        assert importlib.import_module(f"app.sheets.{sid}").SHEET.id == sid
+
+
+def test_lazy_lookup_matches_catalog():
+    assert bridge.sheet("impedance") is bridge.sheets()["impedance"]
+    assert bridge.sheet("__init__") is None and bridge.sheet("../x") is None and bridge.sheet("nope") is None

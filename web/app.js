@@ -6,7 +6,9 @@ import { renderForm, renderResults } from "./render.js";
 import { store } from "./store.js";
 import { Jobs } from "./jobs.js";
 
-const engine = new Engine("./worker.js"); // first thing: the interpreter boots while the page paints
+// First thing: the interpreter boots while the page paints. "?installer=micropip" in the page
+// address selects the micropip install path (measured in DEVELOPERS.md).
+const engine = new Engine(`./worker.js${new URLSearchParams(location.search).get("installer") === "micropip" ? "?installer=micropip" : ""}`);
 const $ = (id) => document.getElementById(id);
 const DEBOUNCE_MS = 120;
 const DEFAULT_SHEET = "correction";

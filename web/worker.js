@@ -3,6 +3,8 @@
 import { loadPyodide } from "./pyodide/pyodide.mjs";
 
 const here = (path) => new URL(path, import.meta.url).href;
+// How the app wheel is installed: "unpack" (default) or "micropip" (worker.js?installer=micropip).
+const INSTALLER = new URL(import.meta.url).searchParams.get("installer") === "micropip" ? "micropip" : "unpack";
 const marks = {};
 const mark = (name) => { marks[name] = performance.now(); postMessage({ type: "status", stage: name, t: marks[name] }); };
 
@@ -21,19 +23,71 @@ const ready = (async () => {
   });
   const pyodide = await booting;
   mark("python-ready");
-  await pyodide.loadPackage(info.wheels.map((w) => here(`./wheels/${w}`)), { messageCallback: () => {} });
   const buf = await appWheel;
   const digest = hex(await crypto.subtle.digest("SHA-256", buf));
   if (digest !== info.app_wheel_sha256) throw new Error("the app package failed its integrity check; reload to fetch it again");
-  pyodide.FS.mkdirTree("/tmp/wheels");
-  pyodide.FS.writeFile(`/tmp/wheels/${info.app_wheel}`, new Uint8Array(buf));
-  const micropip = pyodide.pyimport("micropip");
-  await micropip.install.callKwargs(`emfs:/tmp/wheels/${info.app_wheel}`, { deps: false });
+  if (INSTALLER === "micropip") {
+    // micropip path: load micropip from its shipped wheel and let it install ours (costs ~0.6 s).
+    await pyodide.loadPackage(info.wheels.map((w) => here(`./wheels/${w}`)), { messageCallback: () => {} });
+    pyodide.FS.mkdirTree("/tmp/wheels");
+    pyodide.FS.writeFile(`/tmp/wheels/${info.app_wheel}`, new Uint8Array(buf));
+    const micropip = pyodide.pyimport("micropip");
+    await micropip.install.callKwargs(`emfs:/tmp/wheels/${info.app_wheel}`, { deps: false });
+  } else {
+    // Default: unpack the verified wheel straight into site-packages, as micropip would after
+    // resolving it, without loading micropip itself (see DEVELOPERS.md for the figures).
+    const site = pyodide.runPython("import sysconfig\nsysconfig.get_paths()['purelib']");
+    pyodide.unpackArchive(buf, "wheel", { extractDir: site });
+  }
   mark("app-installed");
+  await restoreBytecode(pyodide, info);
+  pyodide.runPython("import sys\n__fp_baseline = set(sys.modules)");
   const bridge = pyodide.pyimport("app.bridge");
   mark("engine-ready");
+  engine = { pyodide, info };
   return bridge;
 })();
+
+// ---- bytecode cache (see app/bytecache.py): compile once per build, not on every start ----
+const BYTECODE_CACHE = "fp-bytecode";
+let engine = null;
+let savedModules = 0;
+let saveTimer = 0;
+const bytecodeKey = (info) => here(`./__bytecode/${info.app_wheel_sha256}-${info.pyodide}.zip`);
+
+async function restoreBytecode(pyodide, info) {
+  try {
+    const hit = await (await caches.open(BYTECODE_CACHE)).match(bytecodeKey(info));
+    if (!hit) return;
+    pyodide.unpackArchive(await hit.arrayBuffer(), "zip", { extractDir: "/" });
+    pyodide.runPython("import sys, importlib\nsys.path.insert(0, '/lib/fp-pyc')\nimportlib.invalidate_caches()");
+    mark("bytecode-restored");
+  } catch (err) {
+    console.warn("bytecode cache not used:", err);
+  }
+}
+
+function scheduleBytecodeSave() {
+  if (!engine || !self.caches) return;
+  const n = engine.pyodide.runPython("import sys\nlen(sys.modules)");
+  if (n === savedModules) return;
+  clearTimeout(saveTimer);
+  saveTimer = setTimeout(async () => {
+    try {
+      const { pyodide, info } = engine;
+      savedModules = pyodide.runPython("import sys\nlen(sys.modules)");
+      const proxy = pyodide.runPython("from app import bytecache\nbytecache.archive(__fp_baseline)");
+      const bytes = proxy.toJs();
+      proxy.destroy();
+      const cache = await caches.open(BYTECODE_CACHE);
+      const key = bytecodeKey(info);
+      await cache.put(key, new Response(bytes, { headers: { "Content-Type": "application/zip" } }));
+      for (const req of await cache.keys()) if (req.url !== key) await cache.delete(req); // keep only this build's
+    } catch (err) {
+      console.warn("bytecode cache not saved:", err);
+    }
+  }, 1500);
+}
 
 ready.then(
   () => postMessage({ type: "ready", marks }),
@@ -58,6 +112,7 @@ self.onmessage = async (event) => {
     if (!fn) throw new Error(`unknown operation '${op}'`);
     const result = fn(bridge, msg);
     postMessage({ id, result: typeof result === "string" ? result : String(result) });
+    if (op === "compute") scheduleBytecodeSave();
   } catch (err) {
     postMessage({ id, error: String((err && err.message) || err) });
   }

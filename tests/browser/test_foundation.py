@@ -143,3 +143,25 @@ def test_tablet_layout_puts_inputs_beside_results(tablet):
     res = tablet.locator("#results").bounding_box()
     assert res["x"] >= form["x"] + form["width"] - 1  # side by side, not stacked
     shot(tablet, "impedance-tablet")
+
+
+def test_second_start_uses_bytecode_cache_and_gives_same_answers(browser, site):
+    ctx = browser.new_context(viewport=PHONE)
+    try:
+        page = ctx.new_page()
+        page.goto(site + "#/sheet/correction")
+        wait_ready(page)
+        settle(page)
+        # the worker saves compiled bytecode shortly after the first result
+        page.wait_for_function("async () => (await (await caches.open('fp-bytecode')).keys()).length === 1", timeout=30_000)
+        page.close()
+        page = ctx.new_page()
+        page.goto(site + "#/sheet/correction")
+        wait_ready(page)
+        settle(page)
+        assert "bytecode-restored" in page.evaluate("() => window.fieldphasor.engine.marks")
+        res = page.evaluate("() => window.fieldphasor.state.lastResult")
+        ref = cpython_compute("correction", page.evaluate("() => ({...window.fieldphasor.state.inputs})"))
+        assert [(r["name"], r["display"]) for r in res["results"]] == [(r["name"], r["display"]) for r in ref["results"]]
+    finally:
+        ctx.close()
