@@ -83,6 +83,7 @@ function scheduleBytecodeSave() {
       const key = bytecodeKey(info);
       await cache.put(key, new Response(bytes, { headers: { "Content-Type": "application/zip" } }));
       for (const req of await cache.keys()) if (req.url !== key) await cache.delete(req); // keep only this build's
+      mark("bytecode-saved");
     } catch (err) {
       console.warn("bytecode cache not saved:", err);
     }

@@ -153,7 +153,7 @@ def test_second_start_uses_bytecode_cache_and_gives_same_answers(browser, site):
         wait_ready(page)
         settle(page)
         # the worker saves compiled bytecode shortly after the first result
-        page.wait_for_function("async () => (await (await caches.open('fp-bytecode')).keys()).length === 1", timeout=30_000)
+        page.wait_for_function("() => 'bytecode-saved' in window.fieldphasor.engine.marks", timeout=30_000)
         page.close()
         page = ctx.new_page()
         page.goto(site + "#/sheet/correction")

@@ -89,6 +89,8 @@ def measure(args) -> dict:
             page.wait_for_selector("#engine[data-state=ready]", timeout=120_000)
             page.evaluate("async () => { await navigator.serviceWorker.ready; }")
             page.wait_for_function("() => !!navigator.serviceWorker.controller", timeout=60_000)
+            # the worker stores compiled bytecode after the first result; later starts use it
+            page.wait_for_function("() => 'bytecode-saved' in window.fieldphasor.engine.marks", timeout=60_000)
             page.evaluate("""async () => {
                 const keys = await caches.keys();
                 const c = await caches.open(keys.find(k => k.startsWith('fieldphasor-')));
