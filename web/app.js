@@ -191,6 +191,7 @@ function showView(which) {
 
 const jobs = new Jobs({ engine, store, $, openSheet, showView, getState: () => state, saveNow });
 window.fieldphasor.jobs = jobs;
+window.fieldphasor.open = openSheet; // used by links between worksheets, and by tests
 
 $("sheet-pick").addEventListener("change", (e) => openSheet(e.target.value));
 $("jobs-btn").addEventListener("click", () => { saveNow(); jobs.show(state.target ? state.target.jobId : null); });

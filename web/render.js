@@ -163,7 +163,7 @@ function renderTable(f, value, set, describedBy) {
     set(JSON.stringify(rows));
   };
   const head = h("div", { class: "tbl-row tbl-head", "aria-hidden": "true" },
-    cols.map((c) => h("span", { class: "tbl-cell", text: c.label + unitText(c.unit) })), h("span", { class: "tbl-act" }));
+    cols.map((c) => h("span", { class: "tbl-cell", "data-kind": c.kind, text: c.label + unitText(c.unit) })), h("span", { class: "tbl-act" }));
   function rowEl(i) {
     const r = rows[i];
     const el = h("div", { class: "tbl-row" });
@@ -179,7 +179,7 @@ function renderTable(f, value, set, describedBy) {
         inp = h("input", { type: "text", value: r[j] ?? "", "aria-label": lab, inputmode: c.kind === "number" ? "decimal" : "text", spellcheck: "false", autocapitalize: "off" });
         inp.addEventListener("input", () => { rows[i][j] = inp.value; emit(); });
       }
-      el.append(h("span", { class: "tbl-cell", "data-col": c.label + unitText(c.unit) }, inp));
+      el.append(h("span", { class: "tbl-cell", "data-kind": c.kind, "data-col": c.label + unitText(c.unit) }, inp));
     });
     el.append(h("span", { class: "tbl-act" }, h("button", {
       type: "button", class: "btn ghost small", "aria-label": `Remove row ${i + 1}`,

@@ -70,3 +70,15 @@ def test_labels_carry_units_and_numeric_fields_use_decimal_keypad(phone):
                 if f["unit"]:
                     label = phone.locator(f"{sel} label[for='in-{f['name']}']").text_content()
                     assert f["unit"] in label, f"{s['id']}.{f['name']}: unit missing from label"
+
+
+@pytest.mark.parametrize("sheet_id", ["lc_resonance", "bus_scan", "detuned"])
+def test_resonance_plots_mark_the_resonance_on_a_phone(phone, sheet_id):
+    phone.goto(phone.site + f"#/sheet/{sheet_id}")
+    wait_ready(phone)
+    settle(phone)
+    fig = phone.locator("#results-body figure svg").first
+    assert fig.is_visible()
+    assert fig.locator(".fp-mark").count() >= 1  # the marker line at the resonance / tuning order
+    box = fig.bounding_box()
+    assert box["width"] <= 390 and box["height"] > 100
