@@ -1,13 +1,13 @@
 // The one object that owns the Python worker: id-matched calls, status, and a coalescing
 // compute queue so only the newest edit is computed when typing is fast.
 export class Engine extends EventTarget {
-  constructor(url = "./worker.js") {
+  constructor(url = "./worker.js", options = {}) {
     super();
     this.state = "starting";
     this.marks = {};
     this.nextId = 1;
     this.pending = new Map();
-    this.worker = new Worker(new URL(url, import.meta.url), { type: "module" });
+    this.worker = new Worker(new URL(url, import.meta.url), { type: "module", name: options.name || "engine" });
     this.worker.onmessage = (e) => this._onMessage(e.data);
     this.worker.onerror = (e) => this._setState("failed", e.message || "the engine could not start");
   }

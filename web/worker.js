@@ -3,8 +3,9 @@
 import { loadPyodide } from "./pyodide/pyodide.mjs";
 
 const here = (path) => new URL(path, import.meta.url).href;
-// How the app wheel is installed: "unpack" (default) or "micropip" (worker.js?installer=micropip).
-const INSTALLER = new URL(import.meta.url).searchParams.get("installer") === "micropip" ? "micropip" : "unpack";
+// How the app wheel is installed: "unpack" (default) or "micropip" (the worker's name says which;
+// a URL query would be lost when the service worker answers with the cached script).
+const INSTALLER = self.name === "installer=micropip" ? "micropip" : "unpack";
 const marks = {};
 const mark = (name) => { marks[name] = performance.now(); postMessage({ type: "status", stage: name, t: marks[name] }); };
 
@@ -40,6 +41,7 @@ const ready = (async () => {
     pyodide.unpackArchive(buf, "wheel", { extractDir: site });
   }
   mark("app-installed");
+  mark(`installed-with-${INSTALLER}`);
   await restoreBytecode(pyodide, info);
   pyodide.runPython("import sys\n__fp_baseline = set(sys.modules)");
   const bridge = pyodide.pyimport("app.bridge");

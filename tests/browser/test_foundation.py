@@ -165,3 +165,27 @@ def test_second_start_uses_bytecode_cache_and_gives_same_answers(browser, site):
         assert [(r["name"], r["display"]) for r in res["results"]] == [(r["name"], r["display"]) for r in ref["results"]]
     finally:
         ctx.close()
+
+
+def test_micropip_install_path_works_offline(browser, site):
+    """The wheel can also be installed by micropip from the wheels shipped in dist/."""
+    ctx = browser.new_context(viewport=PHONE)
+    guard = Guard(origin_of(site))
+    try:
+        page = ctx.new_page()
+        guard.attach(page)
+        page.goto(site + "?installer=micropip#/sheet/impedance")
+        wait_ready(page)
+        page.evaluate("async () => { await navigator.serviceWorker.ready; }")
+        page.wait_for_function("() => !!navigator.serviceWorker.controller", timeout=30_000)
+        ctx.set_offline(True)
+        page.reload()
+        wait_ready(page)
+        assert "installed-with-micropip" in page.evaluate("() => window.fieldphasor.engine.marks")
+        page.click("label[for='in-mode-z']")
+        page.fill("#in-z", "3 + j4")
+        settle(page)
+        assert page.inner_text("[data-result='z_mag'] .a-value").strip() == "5 Ω"
+        guard.check(page)
+    finally:
+        ctx.close()
