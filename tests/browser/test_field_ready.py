@@ -249,3 +249,40 @@ def test_update_installs_beside_old_and_switches_when_complete(browser, dist, tm
     finally:
         ctx.close()
         srv.shutdown()
+
+
+def test_landscape_phone_has_no_sideways_scroll(browser, site):
+    ctx = browser.new_context(viewport={"width": 844, "height": 390}, is_mobile=True, has_touch=True)
+    page = ctx.new_page()
+    try:
+        page.goto(site)
+        wait_ready(page)
+        for sid in SHEETS:
+            pick(page, sid)
+            over = page.evaluate("() => document.documentElement.scrollWidth - document.documentElement.clientWidth")
+            assert over <= 0, f"{sid} scrolls sideways in landscape by {over}px"
+        pick(page, "correction")
+        shot(page, "landscape-correction-phone")
+    finally:
+        ctx.close()
+
+
+def test_bad_input_in_every_worksheet_keeps_text_and_recovers(phone):
+    phone.goto(phone.site)
+    wait_ready(phone)
+    for s in json.loads(bridge.catalog()):
+        pick(phone, s["id"])
+        field = next(f for f in s["fields"] if f["kind"] == "number" and f["required"]
+                     and phone.is_visible(f"#in-{f['name']}"))
+        sel = f"#in-{field['name']}"
+        good = phone.input_value(sel)
+        for bad in ("12..5", "<b>5</b>", "abc"):
+            phone.fill(sel, bad)
+            settle(phone)
+            err = phone.locator(f"#err-{field['name']}")
+            assert err.is_visible() and err.inner_text().strip(), f"{s['id']}.{field['name']} gave no message for {bad!r}"
+            assert phone.input_value(sel) == bad  # nothing typed is lost
+            assert phone.locator("b", has_text="5").count() == 0  # markup stays text
+        phone.fill(sel, good)
+        settle(phone)
+        assert phone.evaluate("() => window.fieldphasor.state.lastResult.ok"), f"{s['id']} did not recover"
