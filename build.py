@@ -110,7 +110,7 @@ def fetch_wheels() -> str:
             dist_name, version = name.split("-")[:2]
             log(f"downloading {name} from PyPI")
             subprocess.run(
-                [sys.executable, "-m", "pip", "download", "--quiet", "--no-deps", "--python-version", "3.14",
+                [*pip_command(), "download", "--quiet", "--no-deps", "--python-version", "3.14",
                  "--only-binary=:all:", f"{dist_name}=={version}", "-d", dest],
                 check=True,
             )
@@ -118,6 +118,14 @@ def fetch_wheels() -> str:
             os.remove(path)
             sys.exit(f"{name}: SHA-256 mismatch; removed, run again")
     return dest
+
+
+def pip_command() -> list[str]:
+    """This Python's pip, or the pip of a bare .venv when this Python has none (Debian's python3)."""
+    if subprocess.run([sys.executable, "-m", "pip", "--version"], capture_output=True).returncode == 0:
+        return [sys.executable, "-m", "pip"]
+    make_venv()
+    return [venv_python(), "-m", "pip"]
 
 
 def sha256_file(path: str) -> str:
@@ -555,9 +563,7 @@ def ensure_venv() -> str:
     want = "\n".join(reqs)
     if os.path.exists(stamp) and open(stamp).read() == want:
         return venv_python()
-    if not os.path.exists(venv_python()):
-        log("creating .venv")
-        subprocess.run([sys.executable, "-m", "venv", VENV], check=True)
+    make_venv()
     log("installing test tools into .venv")
     subprocess.run([venv_python(), "-m", "pip", "install", "--quiet", "--disable-pip-version-check", *reqs], check=True)
     with open(stamp, "w") as fh:
@@ -565,8 +571,20 @@ def ensure_venv() -> str:
     return venv_python()
 
 
-def in_venv() -> bool:
-    return os.path.realpath(sys.prefix) == os.path.realpath(VENV)
+def make_venv() -> None:
+    """Create .venv (with pip) if it is missing; on Debian, install python3-venv first if needed."""
+    if os.path.exists(venv_python()):
+        return
+    log("creating .venv")
+    if subprocess.run([sys.executable, "-m", "venv", VENV]).returncode != 0:
+        shutil.rmtree(VENV, ignore_errors=True)
+        if os.geteuid() == 0 and shutil.which("apt-get"):
+            env = dict(os.environ, DEBIAN_FRONTEND="noninteractive")
+            subprocess.run(["apt-get", "update", "-qq"], check=True, env=env)
+            subprocess.run(["apt-get", "install", "-y", "-qq", "python3-venv"], check=True, env=env)
+            subprocess.run([sys.executable, "-m", "venv", VENV], check=True)
+        else:
+            sys.exit("Python's venv module is missing: run 'sudo apt-get install -y python3-venv' and try again.")
 
 
 # ---- commands --------------------------------------------------------------------------------
