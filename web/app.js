@@ -46,11 +46,11 @@ engine.addEventListener("state", () => {
 
 // ---- theme -----------------------------------------------------------------------------------
 const THEMES = ["auto", "light", "dark", "sun"];
-const THEME_NAMES = { auto: "auto", light: "light", dark: "dark", sun: "sunlight" };
+const THEME_NAMES = { auto: "Auto", light: "Light", dark: "Dark", sun: "Sunlight" };
 function applyTheme(t) {
   document.documentElement.dataset.theme = t;
   const b = $("theme-btn");
-  b.textContent = `Theme: ${THEME_NAMES[t]}`;
+  b.textContent = `◐ ${THEME_NAMES[t]}`;
   b.setAttribute("aria-label", `Colour theme: ${THEME_NAMES[t]}. Change theme`);
 }
 $("theme-btn").addEventListener("click", () => {
@@ -189,6 +189,7 @@ function followLink(link) {
 function showView(which) {
   $("sheet-view").hidden = which !== "sheet";
   $("jobs-view").hidden = which !== "jobs";
+  $("job-bar").hidden = which !== "sheet";
 }
 
 const jobs = new Jobs({ engine, store, $, openSheet, showView, getState: () => state, saveNow });

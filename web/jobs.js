@@ -61,9 +61,10 @@ export class Jobs {
   markSaveFailed(err) { this.lastSaveError = String((err && err.message) || err); this._setSave("failed"); }
   _setSave(s) {
     this.saveState = s;
-    const el = document.getElementById("save-state");
-    if (el) el.textContent = this._saveText();
-    if (el) el.dataset.state = s;
+    for (const el of document.querySelectorAll(".save-state")) {
+      el.textContent = this._saveText();
+      el.dataset.state = s;
+    }
   }
   _saveText() {
     return {
@@ -204,6 +205,7 @@ export class Jobs {
         : h("input", { id, type: attrs.type || "text", value: job[key] || "", maxlength: 200 });
       inp.addEventListener("input", () => {
         job[key] = inp.value;
+        if (key === "site") document.getElementById("jobs-title").textContent = inp.value || "Untitled job";
         clearTimeout(this._jobTimer);
         this.markDirty();
         this._jobTimer = setTimeout(() => this._persist(job), 200);
@@ -215,7 +217,7 @@ export class Jobs {
     v.append(
       h("p", {}, h("button", { type: "button", class: "btn ghost small", onclick: () => this._renderList() }, "‹ All jobs")),
       h("h1", { id: "jobs-title", text: job.site || "Untitled job" }),
-      h("span", { id: "save-state", class: "save-state", role: "status", text: this._saveText() }),
+      h("span", { id: "job-save-state", class: "save-state", role: "status", "data-state": this.saveState, text: this._saveText() }),
       h("div", { class: "job-fields" }, text("Site name", "site"), text("Date", "date", { type: "date" }), text("Notes", "notes")),
       h("h2", { text: "Entries" }),
     );

@@ -204,7 +204,7 @@ def test_delete_entry_has_undo(phone):
     n = phone.locator(".entry-card").count()
     first = phone.input_value(".entry-card >> nth=0 >> input")
     phone.click(".entry-card >> nth=0 >> text=Delete")
-    assert phone.locator(".entry-card").count() == n - 1
+    phone.wait_for_function(f"() => document.querySelectorAll('.entry-card').length === {n - 1}")
     phone.click("#toast >> text=Undo")
     phone.wait_for_function(f"() => document.querySelectorAll('.entry-card').length === {n}")
     assert phone.input_value(".entry-card >> nth=0 >> input") == first
