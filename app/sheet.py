@@ -21,6 +21,17 @@ from . import fmt
 # Field kinds the shell knows how to render.
 KINDS = ("number", "complex", "choice", "table", "text", "list")
 
+# No quantity of this trade lies outside this band of magnitudes in its field's own unit
+# (zero aside): such a value is a wrong exponent or unit, refused at the field rather than
+# carried into the arithmetic, where it would overflow or underflow.
+MAGNITUDE_BAND = (1e-18, 1e18)
+OUT_OF_RANGE_MESSAGE = "That value is out of range here (far too large or too small): check the unit and the exponent."
+
+
+def out_of_range(v: float) -> bool:
+    """True for a non-zero magnitude outside :data:`MAGNITUDE_BAND`."""
+    return v != 0 and not (MAGNITUDE_BAND[0] <= abs(v) <= MAGNITUDE_BAND[1])
+
 
 @dataclass
 class Column:
@@ -173,6 +184,9 @@ class Inputs:
         except InputError as e:
             self.fail(name, str(e))
             return None
+        if out_of_range(v):
+            self.fail(name, OUT_OF_RANGE_MESSAGE)
+            return None
         return self._check_range(f, v, name)
 
     def cplx(self, name: str) -> Optional[complex]:
@@ -189,6 +203,9 @@ class Inputs:
             return None
         if not (math.isfinite(z.real) and math.isfinite(z.imag)):
             self.fail(name, "Enter a finite value.")
+            return None
+        if out_of_range(abs(z)):
+            self.fail(name, OUT_OF_RANGE_MESSAGE)
             return None
         return z
 
@@ -235,6 +252,9 @@ class Inputs:
                 v = parse_quantity(item, f.unit)
             except InputError as e:
                 self.fail(name, f"Item {i} ('{item[:20]}'): {e}")
+                return None
+            if out_of_range(v):
+                self.fail(name, f"Item {i}: {OUT_OF_RANGE_MESSAGE}")
                 return None
             if self._check_range(f, v, name) is None:
                 msg = self.errors.pop(name)
@@ -292,6 +312,9 @@ class Inputs:
                         v = parse_quantity(cell, c.unit)
                     except InputError as e:
                         self.fail(name, f"Row {r}, {c.label}: {e}")
+                        return None
+                    if out_of_range(v):
+                        self.fail(name, f"Row {r}, {c.label}: {OUT_OF_RANGE_MESSAGE}")
                         return None
                     if c.min is not None and v < c.min or c.max is not None and v > c.max:
                         lo = "" if c.min is None else f"from {fmt.sig(c.min)}"

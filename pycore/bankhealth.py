@@ -26,7 +26,7 @@ import math
 from dataclasses import dataclass
 
 from .capacitor import capacitance_uf, element_voltage, line_current, output_at
-from .errors import InputError
+from .errors import InputError, guarded
 
 SQRT3 = math.sqrt(3.0)
 TWO_PI = 2.0 * math.pi
@@ -101,6 +101,7 @@ class Expected:
     c_between: float
 
 
+@guarded
 def expected(q_rated_kvar: float, v_rated: float, f_rated: float, connection: str) -> Expected:
     """Expected per-phase values of a healthy three-phase bank from its nameplate.
 
@@ -121,6 +122,7 @@ def expected(q_rated_kvar: float, v_rated: float, f_rated: float, connection: st
     return Expected(c, v_el, i_el, i_line, q_rated_kvar / 3.0, c_between)
 
 
+@guarded
 def rated_output_at(q_rated_kvar: float, v_rated: float, f_rated: float, v: float, f: float) -> float:
     """Nameplate output [kvar] re-rated to the system voltage v [V] and frequency f [Hz]:
     Q = Q_r·(V/V_r)²·(f/f_r) (circuit theory; X_C = 1/(2πfC))."""
@@ -130,6 +132,7 @@ def rated_output_at(q_rated_kvar: float, v_rated: float, f_rated: float, v: floa
 # ------------------------------------------------------------------ between-terminal readings
 
 
+@guarded
 def between_from_delta(c12: float, c23: float, c31: float) -> tuple[float, float, float]:
     """Readings [F] of a capacitance meter between L1–L2, L2–L3, L3–L1 of a delta of
     elements c12, c23, c31 [F], the third terminal floating each time.
@@ -145,6 +148,7 @@ def between_from_delta(c12: float, c23: float, c31: float) -> tuple[float, float
     )
 
 
+@guarded
 def between_from_wye(c1: float, c2: float, c3: float) -> tuple[float, float, float]:
     """Readings [F] between L1–L2, L2–L3, L3–L1 of a wye of c1, c2, c3 [F] (star point not
     reached by the meter): two phases in series, M12 = c1·c2/(c1 + c2). Circuit theory."""
@@ -171,6 +175,7 @@ def _star_elastances(m12: float, m23: float, m31: float) -> tuple[list[float], f
     return [max(0.0, s) for s in star], scale
 
 
+@guarded
 def delta_from_between(m12: float, m23: float, m31: float) -> tuple[float, float, float]:
     """Element capacitances c12, c23, c31 [F] of a delta from readings M12, M23, M31 [F]
     taken between L1–L2, L2–L3, L3–L1 with the third terminal floating.
@@ -193,6 +198,7 @@ def delta_from_between(m12: float, m23: float, m31: float) -> tuple[float, float
     return (S3 / n, S1 / n, S2 / n)
 
 
+@guarded
 def wye_from_between(m12: float, m23: float, m31: float) -> tuple[float, float, float]:
     """Phase capacitances c1, c2, c3 [F] of a wye from readings M12, M23, M31 [F] between
     L1–L2, L2–L3, L3–L1 (star point not reached): c_k = 1/S_k with the star elastances of
@@ -210,6 +216,7 @@ def wye_from_between(m12: float, m23: float, m31: float) -> tuple[float, float, 
     return c  # type: ignore[return-value]
 
 
+@guarded
 def per_phase_from_between(readings, connection: str) -> tuple[float, float, float]:
     """Per-phase capacitances [F] from three between-terminal readings [F] (L1–L2, L2–L3,
     L3–L1, third terminal floating) for a ``delta`` or a wye (``wye``/``wye_n``) bank.
@@ -228,6 +235,7 @@ def _supply(v_line: float) -> tuple[complex, complex, complex]:
     return (cmath.rect(vp, 0.0), cmath.rect(vp, -2.0 * math.pi / 3.0), cmath.rect(vp, 2.0 * math.pi / 3.0))
 
 
+@guarded
 def element_voltages(c_phase, v_line: float, f: float, connection: str) -> tuple[complex, complex, complex]:
     """Voltage phasors [V] across each element of a bank with per-phase capacitances
     c_phase [F] on a balanced supply of v_line [V] at f [Hz]. In a floating wye the star
@@ -248,6 +256,7 @@ def element_voltages(c_phase, v_line: float, f: float, connection: str) -> tuple
     return (va - vn, vb - vn, vc - vn)
 
 
+@guarded
 def line_currents(c_phase, v_line: float, f: float, connection: str) -> tuple[complex, complex, complex]:
     """Line current phasors [A] into L1, L2, L3 of a bank with per-phase capacitances c_phase
     [F] (delta elements may be 0 for an open element) on a balanced positive-sequence supply
@@ -271,6 +280,7 @@ def _heron_area(a: float, b: float, c: float) -> float:
     return 0.25 * math.sqrt(p)
 
 
+@guarded
 def delta_element_currents(i1: float, i2: float, i3: float) -> tuple[float, float, float]:
     """Element current magnitudes y12, y23, y31 [A] of a capacitor delta from its line
     current magnitudes i1, i2, i3 [A] on a balanced supply.
@@ -319,6 +329,7 @@ def delta_element_currents(i1: float, i2: float, i3: float) -> tuple[float, floa
     return tuple(ys)  # type: ignore[return-value]
 
 
+@guarded
 def delta_to_wye_capacitance(c12: float, c23: float, c31: float) -> tuple[float, float, float]:
     """Star equivalent c1, c2, c3 [F] of a capacitor delta [F]: capacitances behave as
     admittances, so c1 = (c12·c23 + c23·c31 + c31·c12)/c23 etc. (Y–Δ transformation,
@@ -329,6 +340,7 @@ def delta_to_wye_capacitance(c12: float, c23: float, c31: float) -> tuple[float,
     return (n / c23, n / c31, n / c12)
 
 
+@guarded
 def per_phase_from_currents(currents, v_line: float, f: float, connection: str) -> tuple[float, float, float]:
     """Per-phase capacitances [F] of a bank from its three line current magnitudes [A],
     measured at a line voltage v_line [V] and frequency f [Hz], supply assumed balanced.
@@ -358,6 +370,7 @@ def per_phase_from_currents(currents, v_line: float, f: float, connection: str) 
 # ------------------------------------------------------------------------ output and balance
 
 
+@guarded
 def phase_kvar(c_phase, v_line: float, f: float, connection: str) -> tuple[float, float, float]:
     """Output [kvar] of each element of a bank with per-phase capacitances c_phase [F] on a
     balanced supply of v_line [V] at f [Hz]: Q = 2πf·C·|V_element|², with the element
@@ -368,21 +381,27 @@ def phase_kvar(c_phase, v_line: float, f: float, connection: str) -> tuple[float
     return tuple(w * c * abs(v) ** 2 / 1000.0 for c, v in zip(c_phase, vs))  # type: ignore[return-value]
 
 
+@guarded
 def imbalance_percent(values) -> float:
     """Largest deviation from the mean as a percentage of the mean [%] (the same definition
     NEMA MG 1 uses for voltage unbalance, applied here to capacitance; common practice)."""
     vals = [float(v) for v in values]
+    if not vals:
+        raise InputError("Enter at least one value.")
     mean = sum(vals) / len(vals)
     if mean <= 0:
         raise InputError("The mean of the values must be above zero.")
     return 100.0 * max(abs(v - mean) for v in vals) / mean
 
 
+@guarded
 def max_min_ratio(values) -> float:
     """Ratio of largest to smallest value (dimensionless); infinite when one is zero.
     IEC 60831-1 limits it to 1.08 for the capacitance between the line terminals of a
     three-phase unit (from memory)."""
     vals = [float(v) for v in values]
+    if not vals:
+        raise InputError("Enter at least one value.")
     lo = min(vals)
     return math.inf if lo <= 0 else max(vals) / lo
 
@@ -421,6 +440,7 @@ BANDS = {
 }
 
 
+@guarded
 def custom_band(lo: float, hi: float) -> Band:
     """A band of the user's own, lo..hi [%] deviation (e.g. a maker's replacement limit)."""
     if not (math.isfinite(lo) and math.isfinite(hi)) or lo >= hi:
@@ -433,6 +453,7 @@ def custom_band(lo: float, hi: float) -> Band:
 _EDGE = 1e-9  # % — a reading exactly on a band edge counts as inside
 
 
+@guarded
 def verdict(percent_of_expected: float, band: Band) -> str:
     """Verdict for one phase: ``"open"`` (below 10 % of expected: reads as open),
     ``"low"`` (below the band), ``"ok"`` (inside, edges included) or ``"high"`` (above).

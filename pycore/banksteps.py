@@ -21,11 +21,12 @@ from dataclasses import dataclass
 from fractions import Fraction
 
 from .correction import Load
-from .errors import InputError
+from .errors import InputError, guarded
 
 MAX_STATES = 60_000  # size of the dynamic-programming table before pre-filling with large units
 MAX_STEPS = 12
 MAX_UNITS = 1000  # more units than this in one bank is a sign of a wrong unit or rating list
+MAX_GRID_FACTOR = 4  # the largest rating may span at most this many tables of MAX_STATES grid steps
 
 
 def _grid(ratings: list[float]) -> tuple[Fraction, list[int]]:
@@ -104,6 +105,7 @@ class Selection:
         return sorted(out.items(), key=lambda t: -t[0])
 
 
+@guarded
 def select_units(need_kvar: float, ratings, max_states: int = MAX_STATES) -> Selection:
     """Units from ``ratings`` [kvar] (any number of each) summing to at least ``need_kvar``
     [kvar] with the least excess, then the fewest units. Exact on the ratings' common grid;
@@ -117,8 +119,14 @@ def select_units(need_kvar: float, ratings, max_states: int = MAX_STATES) -> Sel
         return Selection((), 0.0)
     _check_count(need_kvar, vals)
     g, ints = _grid(vals)
-    target = math.ceil(Fraction(need_kvar).limit_denominator(10**9) / g - Fraction(1, 10**9))
+    # at least one grid step: a need far below the common measure still needs a unit
+    target = max(1, math.ceil(Fraction(need_kvar).limit_denominator(10**9) / g - Fraction(1, 10**9)))
     kmax = max(ints)
+    if kmax > MAX_GRID_FACTOR * max_states:
+        raise InputError(
+            "The unit ratings have no usable common step (for example 0.001 kvar beside 500 kvar): "
+            "round them to fewer decimals or leave out the smallest."
+        )
     prefill = 0
     if target + kmax > max_states:
         prefill = (target + kmax - max_states) // kmax + 1
@@ -138,6 +146,7 @@ def select_units(need_kvar: float, ratings, max_states: int = MAX_STATES) -> Sel
     return Selection(units, float(sum(Fraction(ints[i]) * g for i in idx)))
 
 
+@guarded
 def exact_units(size_kvar: float, ratings, max_states: int = MAX_STATES) -> tuple | None:
     """The fewest units from ``ratings`` [kvar] summing exactly to ``size_kvar`` [kvar]
     (largest first), or None if no combination does."""
@@ -156,6 +165,7 @@ def exact_units(size_kvar: float, ratings, max_states: int = MAX_STATES) -> tupl
 PATTERNS = ("equal", "one_two", "binary", "custom")
 
 
+@guarded
 def step_weights(pattern: str, n_steps: int = 1, custom=None) -> list[int]:
     """Relative step sizes: 'equal' 1:1:…; 'one_two' 1:2:2:…; 'binary' 1:2:4:…;
     'custom' the given ratios, reduced to whole numbers with no common factor (ratios must
@@ -215,6 +225,7 @@ class StepPlan:
         return Selection(tuple(self.all_units()), self.total).counts()
 
 
+@guarded
 def plan_steps(need_kvar: float, ratings, weights, max_states: int = MAX_STATES) -> StepPlan:
     """Steps in proportion to ``weights`` with every step an exact sum of purchasable units
     from ``ratings`` [kvar], total at least ``need_kvar`` [kvar] with the least excess, then
@@ -267,6 +278,7 @@ def _fewest_exact(s: int, ints: list[int], count: list[int], last: list[int], to
     return _walk(last, ints, best[2]) + [imax] * best[1]
 
 
+@guarded
 def best_step_count(need_kvar: float, ratings, pattern: str, max_steps: int = MAX_STEPS) -> tuple[int, StepPlan] | None:
     """For a built-in ``pattern`` ('equal', 'one_two', 'binary'), the number of steps (1 to
     ``max_steps``) whose plan exceeds ``need_kvar`` [kvar] least, then the most steps (finer
@@ -291,6 +303,7 @@ class Combination:
     total: float
 
 
+@guarded
 def combinations(steps) -> list[Combination]:
     """Every distinct total [kvar] reachable by switching subsets of ``steps`` [kvar]
     (at most 12 steps), with the fewest steps for each total (then the lowest-numbered),
@@ -329,6 +342,7 @@ class LightLoadCheck:
     leading: tuple
 
 
+@guarded
 def light_load_check(light: Load, steps, existing_kvar: float = 0.0, combos=None) -> LightLoadCheck:
     """Power factor at the lightest load ``light`` (P [kW], Q [kvar] before the new bank)
     with the new ``steps`` [kvar at system voltage] and ``existing_kvar`` [kvar] of further

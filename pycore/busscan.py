@@ -24,7 +24,7 @@ import math
 from dataclasses import dataclass, field
 from typing import Optional, Sequence
 
-from .errors import InputError
+from .errors import InputError, guarded
 from .supply import resonance_order, transformer_short_circuit_kva
 
 H_MIN = 1.0
@@ -52,6 +52,7 @@ def _finite_positive(v, what: str) -> float:
     return float(v)
 
 
+@guarded
 def bus_model(
     v_ll_v: float,
     f_hz: float,
@@ -96,12 +97,14 @@ def bus_model(
     return BusModel(v, f, r_t, x_t + x_up, r_load, s_sc)
 
 
+@guarded
 def capacitor_reactance(v_ll_v: float, q_kvar: float) -> float:
     """Capacitive reactance per phase at the fundamental X_C = V_LL²/Q [Ω] of a three-phase
     bank of Q [kvar] at V_LL [V] (kvar at the system voltage)."""
     return _finite_positive(v_ll_v, "System voltage") ** 2 / (_finite_positive(q_kvar, "Capacitor kvar") * 1000.0)
 
 
+@guarded
 def bus_admittance(model: BusModel, q_kvar: float, h: float) -> complex:
     """Admittance Y [S per phase] seen at the bus at harmonic order h (h·f Hz) with Q [kvar] in."""
     y = 1.0 / complex(model.r_src, h * model.x_src)
@@ -112,6 +115,7 @@ def bus_admittance(model: BusModel, q_kvar: float, h: float) -> complex:
     return y
 
 
+@guarded
 def bus_impedance(model: BusModel, q_kvar: float, h: float) -> complex:
     """Impedance Z [Ω per phase] seen at the bus at harmonic order h with Q [kvar] in
     (``complex(inf, 0)`` at an undamped resonance)."""
@@ -121,6 +125,7 @@ def bus_impedance(model: BusModel, q_kvar: float, h: float) -> complex:
     return 1.0 / y
 
 
+@guarded
 def cumulative_steps(steps: Sequence[float]) -> list[float]:
     """Total kvar with steps 1, 1+2, 1+2+3… switched in, in the order given [kvar]."""
     out, total = [], 0.0
@@ -153,6 +158,7 @@ class Peak:
     points: list = field(default_factory=list)
 
 
+@guarded
 def find_peak(model: BusModel, q_kvar: float, h_lo: float = H_MIN, h_hi: float = H_MAX, grid: float = 0.02) -> Peak:
     """Locate the |Z| peak of the bus with Q [kvar] in between orders h_lo and h_hi:
     a grid search at ``grid`` orders, then a golden-section search on |Y| (minimum) to
@@ -189,12 +195,14 @@ def find_peak(model: BusModel, q_kvar: float, h_lo: float = H_MIN, h_hi: float =
     return Peak(q, h, "", h * model.f_hz, z_peak, z_sup, est)
 
 
+@guarded
 def scan_orders(h_lo: float = H_MIN, h_hi: float = H_MAX, step: float = 0.1) -> list[float]:
     """Harmonic orders from h_lo to h_hi inclusive at ``step`` orders (for plots and tables)."""
     n = max(1, int(round((h_hi - h_lo) / step)))
     return [h_lo + (h_hi - h_lo) * i / n for i in range(n + 1)]
 
 
+@guarded
 def scan(model: BusModel, steps: Sequence[float], h_lo: float = H_MIN, h_hi: float = H_MAX, step: float = 0.1) -> list[Peak]:
     """|Z| at the bus [Ω] against harmonic order for each cumulative step combination.
 
@@ -214,6 +222,7 @@ def scan(model: BusModel, steps: Sequence[float], h_lo: float = H_MIN, h_hi: flo
     return out
 
 
+@guarded
 def supply_scan(model: BusModel, h_lo: float = H_MIN, h_hi: float = H_MAX, step: float = 0.1) -> list[tuple[float, float]]:
     """[(h, |Z| Ω)] of the bus with no capacitors in: the supply and the load alone."""
     return [(h, abs(bus_impedance(model, 0.0, h))) for h in scan_orders(h_lo, h_hi, step)]

@@ -15,7 +15,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 SQRT3 = math.sqrt(3.0)
 
@@ -39,6 +39,7 @@ def _pos(v: float, what: str) -> None:
         raise InputError(f"{what} must be above zero.")
 
 
+@guarded
 def output_factor(v: float, v_rated: float, f: float, f_rated: float) -> float:
     """Ratio of a capacitor's output at (V, f) to its rated output at (V_r, f_r):
     (V/V_r)²·(f/f_r) (dimensionless), from Q = 2πf·C·V² (circuit theory). V, V_r [V];
@@ -48,18 +49,21 @@ def output_factor(v: float, v_rated: float, f: float, f_rated: float) -> float:
     return (v / v_rated) ** 2 * (f / f_rated)
 
 
+@guarded
 def output_at(q_rated_kvar: float, v: float, v_rated: float, f: float, f_rated: float) -> float:
     """Output [kvar] of a capacitor rated Q_r [kvar] at V_r [V], f_r [Hz] when run at V [V],
     f [Hz]: Q = Q_r·(V/V_r)²·(f/f_r). Circuit theory (X_C = 1/(2πfC))."""
     return q_rated_kvar * output_factor(v, v_rated, f, f_rated)
 
 
+@guarded
 def rating_for(q_at_system_kvar: float, v: float, v_rated: float, f: float, f_rated: float) -> float:
     """Rated kvar [kvar] at (V_r [V], f_r [Hz]) that delivers Q [kvar] at (V [V], f [Hz]):
     Q_r = Q·(V_r/V)²·(f_r/f). Inverse of :func:`output_at`."""
     return q_at_system_kvar / output_factor(v, v_rated, f, f_rated)
 
 
+@guarded
 def capacitance_uf(q_kvar: float, v_ll: float, f: float, connection: str = "delta", phases: int = 3) -> float:
     """Capacitance per phase [µF] of a bank giving Q [kvar] at V [V] and f [Hz].
 
@@ -83,6 +87,7 @@ def capacitance_uf(q_kvar: float, v_ll: float, f: float, connection: str = "delt
     return c * 1e6
 
 
+@guarded
 def kvar_from_uf(c_uf: float, v_ll: float, f: float, connection: str = "delta", phases: int = 3) -> float:
     """Output [kvar] of a bank with C [µF] per phase at V [V], f [Hz]; inverse of
     :func:`capacitance_uf`."""
@@ -90,11 +95,13 @@ def kvar_from_uf(c_uf: float, v_ll: float, f: float, connection: str = "delta", 
     return c_uf / capacitance_uf(1.0, v_ll, f, connection, phases)
 
 
+@guarded
 def element_voltage(v_ll: float, connection: str = "delta", phases: int = 3) -> float:
     """Voltage across each capacitor element [V]: V_LL for delta or single-phase, V_LL/√3 for wye."""
     return v_ll / SQRT3 if (phases == 3 and connection == "wye") else v_ll
 
 
+@guarded
 def line_current(q_kvar: float, v_ll: float, phases: int = 3) -> float:
     """Line current [A] of a bank of Q [kvar] at V [V]: Q/(√3·V) three-phase, Q/V single-phase.
     (For a delta the current in each capacitor is this divided by √3.) Circuit theory."""
@@ -125,6 +132,7 @@ class Duty:
         return bad
 
 
+@guarded
 def duty(v: float, v_rated: float, f: float, f_rated: float) -> Duty:
     """Duty of a capacitor at V [V], f [Hz] against its rating V_r [V], f_r [Hz], fundamental
     only: V/V_r, Q/Q_r = (V/V_r)²(f/f_r), I/I_r = (V/V_r)(f/f_r). Compare with IEEE Std 18 limits."""
@@ -132,6 +140,7 @@ def duty(v: float, v_rated: float, f: float, f_rated: float) -> Duty:
     return Duty(v / v_rated, k, (v / v_rated) * (f / f_rated))
 
 
+@guarded
 def conductor_basis(i_rated_a: float, profile: str = "nec") -> dict:
     """Minimum current ratings [A] for conductors and switching devices from the rated
     capacitor current I_N [A].
@@ -155,6 +164,7 @@ def conductor_basis(i_rated_a: float, profile: str = "nec") -> dict:
     raise InputError("Code profile must be 'nec' or 'iec'.")
 
 
+@guarded
 def protection_range(i_rated_a: float) -> tuple[float, float]:
     """A protective-device rating range [A] around the rated current I_N [A]: 1.35–1.65·I_N.
     Common practice only; confirm against the capacitor and device makers' instructions."""

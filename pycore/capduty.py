@@ -17,7 +17,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 IEEE18_EDITION = "IEEE Std 18-2002 (the 2012 revision is believed to keep the same limits, from memory)"
 
@@ -48,6 +48,7 @@ IEEE519_VOLTAGE_LIMITS = (
 from memory)."""
 
 
+@guarded
 def ieee519_voltage_limits(u_bus_v: float) -> tuple[float, float, str]:
     """(individual harmonic limit [%], THD limit [%], voltage band) for a bus of u_bus_v [V]
     line-to-line, from IEEE Std 519-2014 Table 1."""
@@ -59,12 +60,14 @@ def ieee519_voltage_limits(u_bus_v: float) -> tuple[float, float, str]:
     raise AssertionError("unreachable")  # pragma: no cover
 
 
+@guarded
 def thd_percent(spectrum_percent: dict[int, float]) -> float:
     """Total harmonic distortion [%] = √Σ(V_h/V_1)² over the harmonic orders given, each
     entered as % of the fundamental (IEEE Std 519-2014 definition)."""
     return math.sqrt(sum(v * v for v in spectrum_percent.values()))
 
 
+@guarded
 def check_spectrum(spectrum_percent: dict[int, float]) -> None:
     """Raise InputError unless every order is a whole number from 2 to 50 and every value
     is from 0 to 100 % of the fundamental."""
@@ -101,6 +104,7 @@ class Duty:
         return rows
 
 
+@guarded
 def duty_from_capacitor_voltages(v_pu: dict, f_ratio: float = 1.0) -> tuple[float, float, float, float]:
     """(V_rms, V_peak, I_rms, Q) in per unit of rating from capacitor voltages v_pu
     {order h: V_h [pu of rated rms voltage]} with f_ratio = f_system/f_rated [-]:
@@ -114,6 +118,7 @@ def duty_from_capacitor_voltages(v_pu: dict, f_ratio: float = 1.0) -> tuple[floa
     return v_rms, v_peak, i_rms, q
 
 
+@guarded
 def capacitor_duty(
     u_rated_v: float,
     u_bus_v: float,
@@ -175,6 +180,7 @@ def capacitor_duty(
     )
 
 
+@guarded
 def rated_current_a(q_rated_kvar: float, u_rated_v: float, phases: int = 3) -> float:
     """Rated current [A] of a capacitor of q_rated_kvar [kvar] at u_rated_v [V]: line current
     Q/(√3·U) for a three-phase unit (U line-to-line), Q/U for a single-phase unit."""

@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 HP_KW = 0.745699872
 """Kilowatts per mechanical horsepower (550 ft·lbf/s; common practice)."""
@@ -83,6 +83,7 @@ class Load:
         return Load(self.p_kw, self.q_kvar - q_cap_kvar)
 
 
+@guarded
 def pf_sense(q_kvar: float, p_kw: float = 1.0) -> str:
     """'lagging' when Q > 0 (inductive), 'leading' when Q < 0, 'unity' when |Q| is
     negligible (below 1e-9 of P) [Q in kvar, P in kW]."""
@@ -94,12 +95,14 @@ def pf_sense(q_kvar: float, p_kw: float = 1.0) -> str:
     return "unity"
 
 
+@guarded
 def tan_phi(pf: float) -> float:
     """tan φ = √(1 − PF²)/PF for a power factor PF (0 < PF ≤ 1), dimensionless."""
     _check_pf(pf)
     return math.sqrt(max(0.0, 1.0 - pf * pf)) / pf
 
 
+@guarded
 def kvar_per_kw(pf_present: float, pf_target: float) -> float:
     """Multiplier k = tan(acos PF₁) − tan(acos PF₂) [kvar per kW] to raise a lagging load
     from PF₁ to PF₂ (both lagging). IEEE Std 141 (Red Book), power-factor chapter,
@@ -107,6 +110,7 @@ def kvar_per_kw(pf_present: float, pf_target: float) -> float:
     return tan_phi(pf_present) - tan_phi(pf_target)
 
 
+@guarded
 def required_kvar(p_kw: float, pf_present: float, pf_target: float) -> float:
     """Capacitor kvar at system voltage [kvar] to raise P [kW] from PF₁ to PF₂ (lagging):
     Q_C = P·(tan φ₁ − tan φ₂). IEEE Std 141, power-factor chapter."""
@@ -114,6 +118,7 @@ def required_kvar(p_kw: float, pf_present: float, pf_target: float) -> float:
     return p_kw * kvar_per_kw(pf_present, pf_target)
 
 
+@guarded
 def line_current(s_kva: float, v_ll: float, phases: int = 3) -> float:
     """Line current [A] for apparent power S [kVA] at voltage V [V] (line-to-line for three
     phases): I = 1000·S/(√3·V), or 1000·S/V for single phase. Circuit theory."""
@@ -121,6 +126,7 @@ def line_current(s_kva: float, v_ll: float, phases: int = 3) -> float:
     return 1000.0 * s_kva / (_phase_factor(phases) * v_ll)
 
 
+@guarded
 def apparent_from_vi(v_ll: float, i_a: float, phases: int = 3) -> float:
     """Apparent power S [kVA] = √3·V·I/1000 (three-phase, V line-to-line [V], I line [A])
     or V·I/1000 (single-phase). Circuit theory."""
@@ -134,6 +140,7 @@ def _q_from(p_kw: float, pf: float, lagging: bool) -> float:
     return q if lagging else -q
 
 
+@guarded
 def load_from_p_pf(p_kw: float, pf: float, lagging: bool = True) -> Load:
     """Load from active power P [kW] and power factor PF (lagging unless told). Q = P·tan φ."""
     _check_positive(p_kw, "Active power")
@@ -141,6 +148,7 @@ def load_from_p_pf(p_kw: float, pf: float, lagging: bool = True) -> Load:
     return Load(p_kw, _q_from(p_kw, pf, lagging))
 
 
+@guarded
 def load_from_s_pf(s_kva: float, pf: float, lagging: bool = True) -> Load:
     """Load from apparent power S [kVA] and PF: P = S·PF, Q = S·sin φ."""
     _check_positive(s_kva, "Apparent power")
@@ -149,6 +157,7 @@ def load_from_s_pf(s_kva: float, pf: float, lagging: bool = True) -> Load:
     return Load(s_kva * pf, q if lagging else -q)
 
 
+@guarded
 def load_from_p_q(p_kw: float, q_kvar: float) -> Load:
     """Load from active power P [kW] and reactive power Q [kvar] (positive lagging)."""
     _check_positive(p_kw, "Active power")
@@ -157,12 +166,14 @@ def load_from_p_q(p_kw: float, q_kvar: float) -> Load:
     return Load(p_kw, q_kvar)
 
 
+@guarded
 def load_from_v_i_pf(v_ll: float, i_a: float, pf: float, phases: int = 3, lagging: bool = True) -> Load:
     """Load from measured voltage V [V] (line-to-line for three phases), line current I [A] and
     PF: S = √3·V·I (or V·I), P = S·PF."""
     return load_from_s_pf(apparent_from_vi(v_ll, i_a, phases), pf, lagging)
 
 
+@guarded
 def load_from_v_i_p(v_ll: float, i_a: float, p_kw: float, phases: int = 3, lagging: bool = True) -> Load:
     """Load from measured V [V], I [A] and active power P [kW]: PF = P/S with S = √3·V·I.
     Raises InputError when P exceeds S (the readings do not fit together)."""
@@ -175,6 +186,7 @@ def load_from_v_i_p(v_ll: float, i_a: float, p_kw: float, phases: int = 3, laggi
     return Load(p, q if lagging else -q)
 
 
+@guarded
 def pf_from_energy(kwh: float, kvarh: float) -> float:
     """Average power factor over a billing period from active energy [kWh] and reactive
     energy [kvarh]: PF = kWh/√(kWh² + kvarh²) (utility billing practice; the power triangle
@@ -185,6 +197,7 @@ def pf_from_energy(kwh: float, kvarh: float) -> float:
     return kwh / math.hypot(kwh, kvarh)
 
 
+@guarded
 def load_from_energy(kwh: float, kvarh: float, hours: float | None = None, demand_kw: float | None = None) -> Load:
     """Load from a utility bill's kWh and (lagging) kvarh over a billing period.
 
@@ -203,6 +216,7 @@ def load_from_energy(kwh: float, kvarh: float, hours: float | None = None, deman
     return Load(p, p * tan_phi(pf))
 
 
+@guarded
 def load_from_demand(peak_kw: float, peak_kva: float) -> Load:
     """Load from a bill's peak demand in kW [kW] and in kVA [kVA]: PF = kW/kVA, Q = √(kVA² − kW²)
     (utility billing practice). Raises InputError when kW exceeds kVA."""
@@ -214,6 +228,7 @@ def load_from_demand(peak_kw: float, peak_kva: float) -> Load:
     return Load(p, math.sqrt(max(0.0, peak_kva**2 - p * p)))
 
 
+@guarded
 def hp_to_kw(hp: float) -> float:
     """Mechanical horsepower [hp] to kilowatts [kW]: 1 hp = 550 ft·lbf/s = 0.7457 kW
     (common practice). For a motor this is shaft output; its electrical input is this
@@ -221,11 +236,13 @@ def hp_to_kw(hp: float) -> float:
     return hp * HP_KW
 
 
+@guarded
 def kva_released(load: Load, corrected: Load) -> float:
     """Apparent power released [kVA] by correction: ΔS = S₁ − S₂ = P(1/PF₁ − 1/PF₂). Circuit theory."""
     return load.s_kva - corrected.s_kva
 
 
+@guarded
 def current_reduction_fraction(pf_before: float, pf_after: float) -> float:
     """Fractional reduction of line current at constant P and voltage: 1 − PF₁/PF₂
     (dimensionless). Circuit theory."""
@@ -234,6 +251,7 @@ def current_reduction_fraction(pf_before: float, pf_after: float) -> float:
     return 1.0 - pf_before / pf_after
 
 
+@guarded
 def loss_reduction_fraction(pf_before: float, pf_after: float) -> float:
     """Fractional reduction of I²R loss in upstream conductors at constant P and voltage:
     1 − (PF₁/PF₂)² (dimensionless), since I ∝ 1/PF. Circuit theory."""

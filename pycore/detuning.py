@@ -20,7 +20,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 TWO_PI = 2.0 * math.pi
 
@@ -44,6 +44,7 @@ TUNING_CLEARANCE = 0.10
 for capacitance tolerance and ageing, which raise the tuning frequency (common practice)."""
 
 
+@guarded
 def tuning_order(p: float) -> float:
     """Tuning order n = 1/√p (dimensionless) for a detuning factor p = X_L/X_C at the
     fundamental, p as a fraction (0.07 for 7 %). Circuit theory: X_L·n = X_C/n."""
@@ -52,6 +53,7 @@ def tuning_order(p: float) -> float:
     return 1.0 / math.sqrt(p)
 
 
+@guarded
 def detuning_factor(n: float) -> float:
     """Detuning factor p = 1/n² (fraction) for a tuning order n = f_tuning/f_system (> 1)."""
     if not (n > 1.0) or not math.isfinite(n):
@@ -59,6 +61,7 @@ def detuning_factor(n: float) -> float:
     return 1.0 / (n * n)
 
 
+@guarded
 def capacitor_voltage(u_v: float, p: float) -> float:
     """Fundamental voltage [V] across the capacitor of a detuned branch on a bus of u_v [V]:
     U_C = U/(1 − p) (voltage divider of −jX_C and j(X_L − X_C); circuit theory)."""
@@ -66,6 +69,7 @@ def capacitor_voltage(u_v: float, p: float) -> float:
     return u_v / (1.0 - p)
 
 
+@guarded
 def capacitor_rated_kvar(q_wanted_kvar: float, u_v: float, p: float, u_rated_v: float) -> float:
     """Capacitor rated power [kvar] at its rated voltage u_rated_v [V] (and the system
     frequency) for a branch that delivers q_wanted_kvar [kvar] on a bus of u_v [V]:
@@ -76,6 +80,7 @@ def capacitor_rated_kvar(q_wanted_kvar: float, u_v: float, p: float, u_rated_v: 
     return q_wanted_kvar * (1.0 - p) * (u_rated_v / u_v) ** 2
 
 
+@guarded
 def branch_output_kvar(q_rated_kvar: float, u_v: float, u_rated_v: float, p: float) -> float:
     """Fundamental reactive output [kvar] of a detuned branch on a bus of u_v [V], built from a
     capacitor of q_rated_kvar [kvar] at u_rated_v [V]: Q = Q_rated·(U/U_rated)²/(1 − p)
@@ -86,6 +91,7 @@ def branch_output_kvar(q_rated_kvar: float, u_v: float, u_rated_v: float, p: flo
     return q_rated_kvar * (u_v / u_rated_v) ** 2 / (1.0 - p)
 
 
+@guarded
 def choose_rated_voltage(u_needed_v: float, margin_percent: float = DEFAULT_VOLTAGE_MARGIN_PERCENT,
                          ratings=COMMON_LV_CAPACITOR_RATINGS_V) -> float | None:
     """The lowest rating [V] in ``ratings`` that is at least u_needed_v·(1 + margin/100) [V],
@@ -128,6 +134,7 @@ class DetunedBranch:
         return 100.0 * self.u_cap_v / self.u_rated_v
 
 
+@guarded
 def design_branch(u_v: float, f_hz: float, q_kvar: float, p: float, u_rated_v: float) -> DetunedBranch:
     """Design a three-phase detuned branch.
 
@@ -166,6 +173,7 @@ def design_branch(u_v: float, f_hz: float, q_kvar: float, p: float, u_rated_v: f
     )
 
 
+@guarded
 def branch_impedance(h: float, x_c_ohm: float, p: float) -> complex:
     """Impedance [Ω] per phase of a lossless detuned branch at harmonic order h:
     Z(h) = j(h·X_L − X_C/h) with X_L = p·X_C, X_C [Ω] at the fundamental. Capacitive
@@ -175,6 +183,7 @@ def branch_impedance(h: float, x_c_ohm: float, p: float) -> complex:
     return complex(0.0, h * p * x_c_ohm - x_c_ohm / h)
 
 
+@guarded
 def bus_impedance(h: float, x_s_ohm: float, x_c_ohm: float, p: float) -> complex:
     """Impedance [Ω] per phase seen at the bus at harmonic order h: the supply's reactance
     x_s_ohm [Ω at the fundamental] in parallel with a lossless branch (X_C [Ω], detuning p;
@@ -187,6 +196,7 @@ def bus_impedance(h: float, x_s_ohm: float, x_c_ohm: float, p: float) -> complex
     return zs * zb / tot
 
 
+@guarded
 def bus_resonance_order(q_cap_at_bus_kvar: float, s_sc_kva: float, p: float) -> float:
     """Parallel-resonance order h (dimensionless) of a lossless detuned branch with the supply:
     h = 1/√(Q_C/S_sc + p), where Q_C [kvar] is what the capacitor alone would deliver at the

@@ -1,4 +1,7 @@
-"""The one exception the core raises for input it cannot use."""
+"""The one exception the core raises for input it cannot use, and the guard that keeps
+arithmetic failures from escaping as anything else."""
+
+import functools
 
 
 class InputError(ValueError):
@@ -7,3 +10,45 @@ class InputError(ValueError):
     The message is written for the person who typed the value: it says what was
     wrong and what would be accepted.
     """
+
+
+OUT_OF_RANGE = (
+    "These values are too large or too small to work with: check the units and the size of each value."
+)
+
+
+def _has_nan(value, depth: int = 0) -> bool:
+    """True when a float, a complex, or a tuple/list/dict/dataclass of them holds NaN."""
+    if isinstance(value, (float, complex)):
+        return value != value
+    if depth >= 4 or isinstance(value, (str, bytes, int)) or value is None:
+        return False
+    if isinstance(value, (tuple, list)):
+        return any(_has_nan(v, depth + 1) for v in value)
+    if isinstance(value, dict):
+        return any(_has_nan(v, depth + 1) for v in value.values())
+    names = getattr(value, "__dataclass_fields__", None)
+    if names:
+        return any(_has_nan(getattr(value, n), depth + 1) for n in names)
+    return False
+
+
+def guarded(fn):
+    """Decorator for public core functions: the contract is a value without NaN or an
+    :class:`InputError`. Arithmetic that overflows or divides by zero on extreme finite
+    input (ArithmeticError, or a math domain ValueError), or a result that holds NaN,
+    becomes ``InputError(OUT_OF_RANGE)``; an InputError passes through unchanged."""
+
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        try:
+            out = fn(*args, **kwargs)
+        except InputError:
+            raise
+        except (ArithmeticError, ValueError):
+            raise InputError(OUT_OF_RANGE) from None
+        if _has_nan(out):
+            raise InputError(OUT_OF_RANGE)
+        return out
+
+    return wrapper

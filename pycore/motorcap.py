@@ -21,7 +21,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 SQRT3 = math.sqrt(3.0)
 
@@ -41,6 +41,7 @@ def _pf(pf: float) -> float:
     return float(pf)
 
 
+@guarded
 def magnetising_kvar(v_line: float, i_noload: float) -> float:
     """No-load magnetising reactive power [kvar] of a three-phase motor: Q0 = √3·V·I0 with
     v_line [V] and no-load current i_noload [A]. The no-load current is almost all
@@ -49,6 +50,7 @@ def magnetising_kvar(v_line: float, i_noload: float) -> float:
     return SQRT3 * _pos(v_line, "Rated voltage") * _pos(i_noload, "No-load current") / 1000.0
 
 
+@guarded
 def magnetising_kvar_estimate(v_line: float, i_full: float, pf_full: float, lr_ratio: float = LOCKED_ROTOR_RATIO) -> float:
     """Rough estimate of the no-load magnetising kvar [kvar] from rated data when the no-load
     current is unknown: v_line [V], full-load current i_full [A], full-load power factor
@@ -75,6 +77,7 @@ def magnetising_kvar_estimate(v_line: float, i_full: float, pf_full: float, lr_r
     return q0
 
 
+@guarded
 def max_capacitor_kvar(q_magnetising_kvar: float, margin: float = MARGIN) -> float:
     """Largest motor-terminal capacitor [kvar] at rated voltage: margin × Q0, with Q0 the
     no-load magnetising kvar [kvar] and margin (dimensionless, 0.9 as common practice)."""
@@ -103,6 +106,7 @@ class WithCapacitor:
     i_reduction: float
 
 
+@guarded
 def full_load_with_capacitor(v_line: float, i_full: float, pf_full: float, q_cap_kvar: float) -> WithCapacitor:
     """Full-load power factor and line current with a capacitor of q_cap_kvar [kvar] (at the
     motor's rated voltage v_line [V]) on the terminals of a motor drawing i_full [A] at
@@ -127,6 +131,7 @@ def full_load_with_capacitor(v_line: float, i_full: float, pf_full: float, q_cap
     return WithCapacitor(p, q, qn, pf_new, sense, i_new, 100.0 * (1.0 - i_new / i_full))
 
 
+@guarded
 def capacitor_current(q_cap_kvar: float, v_line: float) -> float:
     """Rated line current [A] of a three-phase capacitor of q_cap_kvar [kvar] at v_line [V]:
     I = Q/(√3·V) (circuit theory). NEC 460.8 asks for conductors of at least 135 % of it."""

@@ -14,11 +14,12 @@ import cmath
 import math
 from typing import Iterable, Sequence
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 TWO_PI = 2.0 * math.pi
 
 
+@guarded
 def to_polar(z: complex) -> tuple[float, float]:
     """Rectangular → polar: return ``(magnitude, angle)`` with the angle in degrees (−180, 180]."""
     mag = abs(z)
@@ -28,11 +29,13 @@ def to_polar(z: complex) -> tuple[float, float]:
     return mag, ang
 
 
+@guarded
 def from_polar(magnitude: float, angle_deg: float) -> complex:
     """Polar → rectangular: magnitude [any unit] at ``angle_deg`` [°]."""
     return cmath.rect(magnitude, math.radians(angle_deg))
 
 
+@guarded
 def admittance(z: complex) -> complex:
     """Admittance Y = 1/Z [S] of an impedance Z [Ω]. Raises InputError for Z = 0 (a short)."""
     if z == 0:
@@ -40,6 +43,7 @@ def admittance(z: complex) -> complex:
     return 1.0 / z
 
 
+@guarded
 def impedance(y: complex) -> complex:
     """Impedance Z = 1/Y [Ω] of an admittance Y [S]. Raises InputError for Y = 0 (an open circuit)."""
     if y == 0:
@@ -47,11 +51,13 @@ def impedance(y: complex) -> complex:
     return 1.0 / y
 
 
+@guarded
 def reactance_inductor(l_henry: float, f_hz: float) -> float:
     """Inductive reactance X_L = 2πfL [Ω] of L [H] at f [Hz]."""
     return TWO_PI * f_hz * l_henry
 
 
+@guarded
 def reactance_capacitor(c_farad: float, f_hz: float) -> float:
     """Capacitive reactance as a signed value X_C = −1/(2πfC) [Ω] of C [F] at f [Hz]."""
     if c_farad <= 0 or f_hz <= 0:
@@ -59,6 +65,7 @@ def reactance_capacitor(c_farad: float, f_hz: float) -> float:
     return -1.0 / (TWO_PI * f_hz * c_farad)
 
 
+@guarded
 def series(impedances: Iterable[complex]) -> complex:
     """Series combination: Z = ΣZ_k [Ω] (Kirchhoff's voltage law)."""
     total = 0j
@@ -71,6 +78,7 @@ def series(impedances: Iterable[complex]) -> complex:
     return total
 
 
+@guarded
 def parallel(impedances: Iterable[complex]) -> complex:
     """Parallel combination through admittances: Z = 1/Σ(1/Z_k) [Ω].
 
@@ -88,6 +96,7 @@ def parallel(impedances: Iterable[complex]) -> complex:
     return 1.0 / y
 
 
+@guarded
 def delta_to_wye(z_ab: complex, z_bc: complex, z_ca: complex) -> tuple[complex, complex, complex]:
     """Δ → Y (Kennelly): return (Z_a, Z_b, Z_c) [Ω] from the delta branches Z_ab, Z_bc, Z_ca [Ω].
 
@@ -99,6 +108,7 @@ def delta_to_wye(z_ab: complex, z_bc: complex, z_ca: complex) -> tuple[complex, 
     return z_ab * z_ca / s, z_ab * z_bc / s, z_bc * z_ca / s
 
 
+@guarded
 def wye_to_delta(z_a: complex, z_b: complex, z_c: complex) -> tuple[complex, complex, complex]:
     """Y → Δ (Kennelly): return (Z_ab, Z_bc, Z_ca) [Ω] from the wye legs Z_a, Z_b, Z_c [Ω].
 
@@ -110,11 +120,13 @@ def wye_to_delta(z_a: complex, z_b: complex, z_c: complex) -> tuple[complex, com
     return p / z_c, p / z_a, p / z_b
 
 
+@guarded
 def series_equivalent(z: complex) -> tuple[float, float]:
     """Equivalent series R_s, X_s [Ω] — the rectangular parts of Z."""
     return z.real, z.imag
 
 
+@guarded
 def parallel_equivalent(z: complex) -> tuple[float, float]:
     """Equivalent parallel R_p, X_p [Ω]: R_p = (R²+X²)/R, X_p = (R²+X²)/X.
 
@@ -127,6 +139,7 @@ def parallel_equivalent(z: complex) -> tuple[float, float]:
     return rp, xp
 
 
+@guarded
 def element_for_reactance(x_ohm: float, f_hz: float) -> tuple[str, float]:
     """The single L or C that has reactance ``x_ohm`` [Ω] at ``f_hz`` [Hz].
 
@@ -141,11 +154,13 @@ def element_for_reactance(x_ohm: float, f_hz: float) -> tuple[str, float]:
     return "", 0.0
 
 
+@guarded
 def phase_angle(z: complex) -> float:
     """Impedance angle φ [°] = arg Z; positive when current lags voltage (inductive)."""
     return to_polar(z)[1]
 
 
+@guarded
 def power_factor(z: complex) -> tuple[float, str]:
     """Power factor cos φ of an impedance and the word 'lagging', 'leading' or 'unity'.
 
@@ -160,6 +175,7 @@ def power_factor(z: complex) -> tuple[float, str]:
     return pf, ("lagging" if z.imag > 0 else "leading")
 
 
+@guarded
 def branch_impedance(kind: str, value: float, f_hz: float) -> complex:
     """Impedance [Ω] of one ideal element at f [Hz]: kind 'R' (Ω), 'L' (H) or 'C' (F)."""
     if value <= 0 or not math.isfinite(value):
@@ -175,6 +191,7 @@ def branch_impedance(kind: str, value: float, f_hz: float) -> complex:
     raise InputError(f"Unknown element '{kind}': use R, L or C.")
 
 
+@guarded
 def network_impedance(elements: Sequence[tuple[str, float]], f_hz: float, topology: str) -> complex:
     """Impedance [Ω] of R, L, C elements all in 'series' or all in 'parallel' at f [Hz]."""
     zs = [branch_impedance(k, v, f_hz) for k, v in elements]

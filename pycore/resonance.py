@@ -17,7 +17,7 @@ import math
 from dataclasses import dataclass
 from typing import Iterable, Optional
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 TWO_PI = 2.0 * math.pi
 TOPOLOGIES = ("series", "parallel")
@@ -50,6 +50,7 @@ def _resistance(r_ohm: Optional[float], topology: str) -> float:
     return float(r_ohm)
 
 
+@guarded
 def resonant_frequency(l_henry: float, c_farad: float) -> float:
     """Resonant frequency f₀ = 1/(2π√(LC)) [Hz] of L [H] and C [F] (series or parallel,
     ideal elements). Alexander & Sadiku, frequency response: ω₀ = 1/√(LC)."""
@@ -58,6 +59,7 @@ def resonant_frequency(l_henry: float, c_farad: float) -> float:
     return 1.0 / (TWO_PI * math.sqrt(l_henry * c_farad))
 
 
+@guarded
 def characteristic_impedance(l_henry: float, c_farad: float) -> float:
     """Characteristic impedance Z₀ = √(L/C) [Ω] = X_L = |X_C| at resonance, of L [H] and C [F]."""
     l_henry = _positive(l_henry, "Inductance")
@@ -65,6 +67,7 @@ def characteristic_impedance(l_henry: float, c_farad: float) -> float:
     return math.sqrt(l_henry / c_farad)
 
 
+@guarded
 def capacitance_for(f0_hz: float, l_henry: float) -> float:
     """The C [F] that resonates with L [H] at f₀ [Hz]: C = 1/((2πf₀)² L). From ω₀ = 1/√(LC)."""
     f0_hz = _positive(f0_hz, "Frequency")
@@ -72,6 +75,7 @@ def capacitance_for(f0_hz: float, l_henry: float) -> float:
     return 1.0 / ((TWO_PI * f0_hz) ** 2 * l_henry)
 
 
+@guarded
 def inductance_for(f0_hz: float, c_farad: float) -> float:
     """The L [H] that resonates with C [F] at f₀ [Hz]: L = 1/((2πf₀)² C). From ω₀ = 1/√(LC)."""
     f0_hz = _positive(f0_hz, "Frequency")
@@ -79,6 +83,7 @@ def inductance_for(f0_hz: float, c_farad: float) -> float:
     return 1.0 / ((TWO_PI * f0_hz) ** 2 * c_farad)
 
 
+@guarded
 def quality_factor(r_ohm: Optional[float], l_henry: float, c_farad: float, topology: str) -> float:
     """Quality factor Q (dimensionless) of the ideal circuit: series Q = ω₀L/R = Z₀/R,
     parallel Q = R/(ω₀L) = R/Z₀. R [Ω], L [H], C [F]. Returns ``math.inf`` when lossless
@@ -91,6 +96,7 @@ def quality_factor(r_ohm: Optional[float], l_henry: float, c_farad: float, topol
     return math.inf if r == math.inf else r / z0
 
 
+@guarded
 def half_power_frequencies(r_ohm: Optional[float], l_henry: float, c_farad: float, topology: str) -> tuple[float, float]:
     """Lower and upper half-power (−3 dB) frequencies (f₁, f₂) [Hz].
 
@@ -112,6 +118,7 @@ def half_power_frequencies(r_ohm: Optional[float], l_henry: float, c_farad: floa
     return w0sq / (root + a) / TWO_PI, (root + a) / TWO_PI
 
 
+@guarded
 def impedance(r_ohm: Optional[float], l_henry: float, c_farad: float, f_hz: float, topology: str) -> complex:
     """Driving-point impedance Z [Ω] at f [Hz]: series R + jωL + 1/(jωC);
     parallel 1/(1/R + 1/(jωL) + jωC). Returns ``complex(inf, 0)`` for an ideal parallel
@@ -130,6 +137,7 @@ def impedance(r_ohm: Optional[float], l_henry: float, c_farad: float, f_hz: floa
     return 1.0 / y
 
 
+@guarded
 def phase_deg(z: complex) -> float:
     """Phase of Z [°]: positive = inductive (current lags), negative = capacitive (current leads)."""
     if not (math.isfinite(z.real) and math.isfinite(z.imag)):
@@ -137,6 +145,7 @@ def phase_deg(z: complex) -> float:
     return math.degrees(math.atan2(z.imag, z.real))
 
 
+@guarded
 def log_space(f_lo: float, f_hi: float, n: int) -> list[float]:
     """``n`` frequencies [Hz] spaced evenly on a log scale from f_lo to f_hi inclusive."""
     f_lo = _positive(f_lo, "Lowest frequency")
@@ -147,6 +156,7 @@ def log_space(f_lo: float, f_hi: float, n: int) -> list[float]:
     return [f_lo * math.exp(k * i) for i in range(n)]
 
 
+@guarded
 def response(r_ohm: Optional[float], l_henry: float, c_farad: float, freqs: Iterable[float], topology: str) -> list[tuple[float, complex]]:
     """(f [Hz], Z [Ω]) at each frequency: the data for a |Z| and phase plot."""
     return [(f, impedance(r_ohm, l_henry, c_farad, f, topology)) for f in freqs]
@@ -175,6 +185,7 @@ class Resonance:
     z_at_f0: float
 
 
+@guarded
 def analyse(r_ohm: Optional[float], l_henry: float, c_farad: float, topology: str) -> Resonance:
     """All the resonance figures of an ideal series or parallel R-L-C circuit.
     R [Ω] (series: None/0 = lossless; parallel: None = no resistor), L [H], C [F].

@@ -15,7 +15,7 @@ import math
 from typing import Optional
 
 from .correction import loss_reduction_fraction
-from .errors import InputError
+from .errors import InputError, guarded
 from .survey import reactive_per_kw
 
 MONTHS_PER_YEAR = 12
@@ -34,6 +34,7 @@ def _check_pf(pf: float, what: str) -> None:
         raise InputError(f"{what} lies above 0 and at most 1.")
 
 
+@guarded
 def kva_demand(p_kw: float, pf: float) -> float:
     """Billed apparent demand S = P/PF [kVA] for a peak real demand P [kW] at PF [dimensionless]."""
     _check_pf(pf, "The power factor")
@@ -42,6 +43,7 @@ def kva_demand(p_kw: float, pf: float) -> float:
     return p_kw / pf
 
 
+@guarded
 def kva_demand_saving(p_kw: float, pf1: float, pf2: float, price_per_kva_month: float) -> float:
     """Monthly saving [money/month] on a demand charge billed on kVA when PF rises from pf1 to
     pf2 at the same peak P [kW]: price [money per kVA-month] × P(1/pf1 − 1/pf2).
@@ -51,6 +53,7 @@ def kva_demand_saving(p_kw: float, pf1: float, pf2: float, price_per_kva_month: 
     return price_per_kva_month * (kva_demand(p_kw, pf1) - kva_demand(p_kw, pf2))
 
 
+@guarded
 def penalty_steps(pf: float, threshold: float, rounding: str = "part", step: float = 0.01) -> float:
     """How many steps of ``step`` [PF, 0.01 by default] the PF lies below the threshold.
 
@@ -74,6 +77,7 @@ def penalty_steps(pf: float, threshold: float, rounding: str = "part", step: flo
     return x
 
 
+@guarded
 def pf_penalty(
     pf: float,
     threshold: float,
@@ -100,6 +104,7 @@ def pf_penalty(
     raise InputError(f"Unknown penalty mode '{mode}'.")
 
 
+@guarded
 def kvarh_for_pf(kwh: float, pf: float) -> float:
     """Reactive energy [kvarh] that goes with real energy [kWh] at an average lagging PF:
     kWh·tan(acos PF) (power triangle; IEEE Std 141, power factor chapter)."""
@@ -108,6 +113,7 @@ def kvarh_for_pf(kwh: float, pf: float) -> float:
     return kwh * reactive_per_kw(pf)
 
 
+@guarded
 def kvarh_chargeable(kwh: float, kvarh: float, threshold: float) -> float:
     """Reactive energy charged [kvarh]: the kvarh above what the threshold PF allows for the
     period's kWh, max(0, kvarh − kWh·tan(acos PF_threshold)). Common tariff structure
@@ -117,6 +123,7 @@ def kvarh_chargeable(kwh: float, kvarh: float, threshold: float) -> float:
     return max(0.0, kvarh - kvarh_for_pf(kwh, threshold))
 
 
+@guarded
 def loss_after_kw(loss_kw: float, pf1: float, pf2: float) -> float:
     """Series (I²R) losses [kW] after correction, from losses ``loss_kw`` [kW] at pf1, at the
     same real power and voltage: loss·(pf1/pf2)² (I ∝ 1/PF; circuit theory). Only losses
@@ -126,6 +133,7 @@ def loss_after_kw(loss_kw: float, pf1: float, pf2: float) -> float:
     return loss_kw * (1.0 - loss_reduction_fraction(pf1, pf2))
 
 
+@guarded
 def loss_saving(loss_kw: float, pf1: float, pf2: float, hours_per_month: float, price_per_kwh: float) -> tuple[float, float]:
     """Energy [kWh/month] and money [money/month] saved by reduced I²R losses:
     ΔL = L(1 − (pf1/pf2)²) [kW] over ``hours_per_month`` [h] at ``price_per_kwh`` [money/kWh]."""
@@ -136,11 +144,13 @@ def loss_saving(loss_kw: float, pf1: float, pf2: float, hours_per_month: float, 
     return kwh, kwh * price_per_kwh
 
 
+@guarded
 def yearly(monthly: float) -> float:
     """Yearly amount [money/year] from a monthly one [money/month]: 12 billing months."""
     return monthly * MONTHS_PER_YEAR
 
 
+@guarded
 def simple_payback_years(installed_cost: float, yearly_saving: float) -> float:
     """Simple payback [years] = installed cost [money] / yearly saving [money/year]; infinite
     when nothing is saved. No interest, inflation, maintenance or the capacitors' own

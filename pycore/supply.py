@@ -7,9 +7,10 @@ from __future__ import annotations
 
 import math
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 
+@guarded
 def transformer_short_circuit_kva(transformer_kva: float, z_percent: float, upstream_fault_kva: float | None = None) -> float:
     """Short-circuit apparent power [kVA] at the transformer's secondary bus.
 
@@ -30,6 +31,7 @@ def transformer_short_circuit_kva(transformer_kva: float, z_percent: float, upst
     return 1.0 / (z_t + z_up)
 
 
+@guarded
 def resonance_order(s_sc_kva: float, q_cap_kvar: float) -> float:
     """Parallel-resonance harmonic order h ≈ √(S_sc/Q_cap) of a bank on a bus (dimensionless).
 
@@ -43,6 +45,7 @@ def resonance_order(s_sc_kva: float, q_cap_kvar: float) -> float:
     return math.sqrt(s_sc_kva / q_cap_kvar)
 
 
+@guarded
 def voltage_rise_percent(q_cap_kvar: float, s_sc_kva: float) -> float:
     """Steady-state voltage rise [%] when a bank of Q [kvar] is switched onto a bus of
     short-circuit level S_sc [kVA]: ΔV% ≈ 100·Q/S_sc (reactive source impedance; utility and
@@ -56,6 +59,7 @@ CHARACTERISTIC_ORDERS = (5, 7, 11, 13, 17, 19, 23, 25)
 """Characteristic harmonics of six-pulse converters (h = 6k ± 1; common practice, IEEE Std 519)."""
 
 
+@guarded
 def near_harmonic(order: float, harmonics=CHARACTERISTIC_ORDERS, margin: float = 0.5) -> int | None:
     """The characteristic harmonic within ``margin`` orders of ``order``, or None (screening rule, common practice)."""
     best = None

@@ -17,7 +17,7 @@ from dataclasses import dataclass, field
 from typing import Iterable, Optional
 
 from .correction import tan_phi
-from .errors import InputError
+from .errors import InputError, guarded
 from .numparse import split_number
 from .phasor import power_factor
 
@@ -29,6 +29,7 @@ _LEAD_WORDS = {"lead", "leading", "ld", "cap", "capacitive"}
 PF_AGREEMENT = 0.02
 
 
+@guarded
 def parse_pf(text: str) -> tuple[float, bool]:
     """Read a typed power factor: ``0.85``, ``0,85``, ``85%``, ``0.92 lead``, ``0.8 lagging``.
 
@@ -56,6 +57,7 @@ def parse_pf(text: str) -> tuple[float, bool]:
     return value, leading
 
 
+@guarded
 def reactive_per_kw(pf: float, leading: bool = False) -> float:
     """Reactive power per unit of real power, tan(acos PF) [kvar/kW], negative when leading.
 
@@ -66,6 +68,7 @@ def reactive_per_kw(pf: float, leading: bool = False) -> float:
     return -t if leading else t
 
 
+@guarded
 def correction_kvar(p_kw: float, q_kvar: float, target_pf: float) -> float:
     """Capacitor kvar [kvar] that brings a load of P [kW], Q [kvar] (+ lagging) to a lagging
     target PF [dimensionless]: max(0, Q − P·tan(acos PF_target)).
@@ -91,6 +94,7 @@ class Load:
     hours: Optional[float] = None
 
 
+@guarded
 def make_load(
     name: str,
     p_kw: float,
@@ -178,6 +182,7 @@ class SurveyTotals:
     rows_needing: int = field(default=0)
 
 
+@guarded
 def row_totals(load: Load, target_pf: float) -> RowTotals:
     """Work out one :class:`Load` against a lagging target PF [dimensionless]."""
     n = load.quantity
@@ -198,6 +203,7 @@ def row_totals(load: Load, target_pf: float) -> RowTotals:
     return RowTotals(load, p, q, s, pf, word, each, each * n, kwh, kvarh)
 
 
+@guarded
 def survey_totals(loads: Iterable[Load], target_pf: float) -> SurveyTotals:
     """Totals of a load table and the correction to a lagging target PF [dimensionless].
 

@@ -87,6 +87,7 @@ FIELDS = [
         default="150",
         required=False,
         min=0,
+        max=1e7,
         group="Load",
         help="Optional: load that damps resonance, modelled as a resistance V²/P (heaters, lighting, "
         "resistive process load). Leave out motors and drives: they give little damping. Empty or 0: no damping.",

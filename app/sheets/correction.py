@@ -43,7 +43,7 @@ _SENSE_SETS = ["p_pf", "s_pf", "vi_pf", "vi_p"]
 
 FIELDS = [
     # --- the system
-    Field("v_ll", "System voltage (line-to-line)", unit="V", default="480", min=0, min_open=True, max=100000,
+    Field("v_ll", "System voltage (line-to-line)", unit="V", default="480", min=50, max=100000,
           suggest=["208", "400", "480", "600"], group="System",
           help="Nominal voltage of the bus the bank goes on. Line-to-line for three-phase; the supply voltage for single-phase. 0.48 kV is accepted."),
     Field("f", "Frequency", unit="Hz", default="60", min=16.7, max=400, suggest=["50", "60"],
@@ -52,7 +52,7 @@ FIELDS = [
     # --- the load now
     Field("basis", "What you know about the load", kind="choice", default="p_pf", options=BASES, group="Load now",
           help="Pick the set of readings you have. Figures at the plant's busiest time give the bank size."),
-    Field("v_meas", "Measured voltage (line-to-line)", unit="V", default="472", min=0, min_open=True, max=100000,
+    Field("v_meas", "Measured voltage (line-to-line)", unit="V", default="472", min=50, max=100000,
           show_when={"field": "basis", "in": ["vi_pf", "vi_p"]},
           help="Voltage read at the same time as the current."),
     Field("i_meas", "Measured line current", unit="A", default="600", min=0, min_open=True, max=1e6,
@@ -97,7 +97,7 @@ FIELDS = [
           options=[("yes", "Yes: the figures above include them"), ("no", "No: the figures are for the load alone")],
           help="A meter or bill reading taken with the capacitors on already includes them."),
     # --- the capacitor
-    Field("cap_v", "Capacitor rated voltage", unit="V", default="480", min=0, min_open=True, max=100000,
+    Field("cap_v", "Capacitor rated voltage", unit="V", default="480", min=50, max=100000,
           suggest=["400", "440", "480", "525", "600"], group="Capacitor",
           help="Nameplate voltage (line-to-line for a three-phase unit). A higher-rated unit gives less kvar at system voltage: Q scales with V²."),
     Field("cap_f", "Capacitor rated frequency", unit="Hz", default="60", min=16.7, max=400, suggest=["50", "60"],

@@ -9,7 +9,7 @@ from pycore.errors import InputError
 from pycore.numparse import parse_quantity
 
 from .. import cautions, fmt
-from ..sheet import Column, Field, FieldError, Worksheet
+from ..sheet import OUT_OF_RANGE_MESSAGE, Column, Field, FieldError, Worksheet, out_of_range
 from ..svg import Svg
 
 SRC_PHASOR = "Circuit theory (Alexander & Sadiku, Fundamentals of Electric Circuits, phasors and impedance)"
@@ -76,6 +76,9 @@ FIELDS = [
 ]
 
 _ELEMENT_UNIT = {"R": "Ω", "L": "H", "C": "F"}
+# Largest L and C a power circuit holds (as the LC resonance sheet allows): above them the
+# value is a prefix typed wrong (MH for mH, MF for mF).
+_ELEMENT_MAX = {"L": 1e3, "C": 1e3}
 
 
 def _network(ins, f_hz):
@@ -91,6 +94,8 @@ def _network(ins, f_hz):
             raise FieldError("elements", f"Row {r['_row']} ({kind}): {e}") from None
         if not (v > 0 and math.isfinite(v)):
             raise FieldError("elements", f"Row {r['_row']} ({kind}): the value must be above zero.")
+        if out_of_range(v) or v > _ELEMENT_MAX.get(kind, math.inf):
+            raise FieldError("elements", f"Row {r['_row']} ({kind}): {OUT_OF_RANGE_MESSAGE}")
         elems.append((kind, v))
     if f_hz is None:
         return None
