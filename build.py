@@ -358,6 +358,113 @@ def build_icons(out_dir: str) -> None:
         shutil.copyfile(cached, os.path.join(out_dir, name))
 
 
+# ---- the opening worksheet as static HTML ------------------------------------------------------
+DEFAULT_SHEET = "correction"  # the worksheet the app opens on (web/app.js DEFAULT_SHEET)
+
+
+def _visible(f: dict, by_name: dict) -> bool:
+    sw = f.get("show_when")
+    if not sw:
+        return True
+    ctl = by_name.get(sw["field"])
+    return ctl is None or (_visible(ctl, by_name) and ctl.get("default", "") in sw["in"])
+
+
+def static_form(decl: dict) -> str | None:
+    """The form web/render.js would draw for ``decl`` with its defaults, as HTML, so the opening
+    worksheet is on screen and accepts typing in the first paint. The shell replaces it with the
+    live form once its modules run, keeping anything typed meanwhile. None if a field kind is
+    not drawn here (tables), in which case the shell draws the form alone."""
+    from html import escape as e
+
+    by_name = {f["name"]: f for f in decl["fields"]}
+    unit = lambda u: f' ({e(u)})' if u else ""  # noqa: E731
+    out, open_group = [], False
+    for f in decl["fields"]:
+        if f["kind"] == "table":
+            return None
+        if f.get("group"):
+            if open_group:
+                out.append("</fieldset>")
+            members, seen = [], False
+            for g in decl["fields"]:
+                if g is f:
+                    seen = True
+                elif seen and g.get("group"):
+                    break
+                if seen:
+                    members.append(g)
+            hidden = "" if any(_visible(g, by_name) for g in members) else " hidden"
+            out.append(f'<fieldset class="group"{hidden}><legend>{e(f["group"])}</legend>')
+            open_group = True
+        n, fid = f["name"], f'in-{f["name"]}'
+        help_id, err_id = f"help-{n}", f"err-{n}"
+        described = " ".join(x for x in ((help_id if f.get("help") else ""), err_id) if x)
+        hidden = "" if _visible(f, by_name) else " hidden"
+        help_html = f'<p class="help" id="{help_id}">{e(f["help"])}</p>' if f.get("help") else ""
+        err_html = f'<p class="err" id="{err_id}" hidden></p>'
+        value = f.get("default", "")
+        out.append(f'<div class="field kind-{f["kind"]}" data-field="{e(n)}"{hidden}>')
+        opts = f.get("options", [])
+        if f["kind"] == "choice" and len(opts) <= 4:
+            out.append(f'<fieldset class="seg" aria-describedby="{described}"><legend>{e(f["label"])}</legend><div class="seg-row">')
+            for o in opts:
+                oid = f'{fid}-{o["value"]}'
+                chk = " checked" if o["value"] == value else ""
+                out.append(f'<span class="seg-opt"><input type="radio" name="{fid}" id="{e(oid)}" value="{e(o["value"])}"{chk}>'
+                           f'<label for="{e(oid)}">{e(o["label"])}</label></span>')
+            out.append(f"</div></fieldset>{help_html}{err_html}</div>")
+            continue
+        out.append(f'<label for="{fid}">{e(f["label"])}<span class="unit">{unit(f.get("unit", ""))}</span></label>{help_html}')
+        if f["kind"] == "choice":
+            out.append(f'<select id="{fid}" aria-describedby="{described}">')
+            for o in opts:
+                sel = " selected" if o["value"] == value else ""
+                out.append(f'<option value="{e(o["value"])}"{sel}>{e(o["label"])}</option>')
+            out.append("</select>")
+        else:
+            mode = ' inputmode="decimal"' if f["kind"] == "number" else ""
+            attrs = (f'id="{fid}" type="text" aria-describedby="{described}" spellcheck="false" autocapitalize="off"'
+                     f' placeholder="{e(f.get("placeholder", ""))}" enterkeyhint="next"{mode}')
+            if f["kind"] == "text" and "notes" in n:
+                out.append(f'<textarea {attrs} rows="3">{e(value)}</textarea>')
+            else:
+                out.append(f'<input {attrs} value="{e(value)}">')
+        chips = []
+        if f["kind"] == "complex":
+            for txt, name in (("j", "imaginary j"), ("∠", "angle mark"), ("−", "minus")):
+                chips.append(f'<button type="button" class="chip" aria-label="Insert {name}">{txt}</button>')
+        for sug in f.get("suggest", []):
+            u = f.get("unit", "")
+            shown = f"{sug} {u}" if u and u != "%" else f"{sug}{u}"
+            chips.append(f'<button type="button" class="chip" aria-label="Set {e(f["label"])} to {e(sug)}{" " + e(u) if u else ""}">{e(shown)}</button>')
+        if chips:
+            out.append(f'<div class="chips">{"".join(chips)}</div>')
+        out.append(f"{err_html}</div>")
+    if open_group:
+        out.append("</fieldset>")
+    return "".join(out)
+
+
+def render_index(template: str, catalog: list) -> str:
+    """index.html with the worksheet picker and the opening worksheet's form filled in."""
+    from html import escape as e
+
+    decl = next((d for d in catalog if d["id"] == DEFAULT_SHEET), catalog[0])
+    options = "".join(f'<option value="{e(d["id"])}"{" selected" if d is decl else ""}>{e(d["title"])}</option>' for d in catalog)
+    html = template.replace('<select id="sheet-pick"></select>', f'<select id="sheet-pick">{options}</select>')
+    form = static_form(decl)
+    if form is None:
+        return html
+    html = html.replace('<h1 id="sheet-title">Loading worksheets…</h1>', f'<h1 id="sheet-title">{e(decl["title"])}</h1>')
+    html = html.replace('<p id="sheet-summary" class="summary"></p>', f'<p id="sheet-summary" class="summary">{e(decl["summary"])}</p>')
+    # elementtiming lets the benchmark read when the form was first painted
+    form = form.replace("<label ", '<label elementtiming="fp-form" ', 1)
+    html = html.replace('<form id="form" novalidate autocomplete="off"></form>',
+                        f'<form id="form" novalidate autocomplete="off" data-static="{e(decl["id"])}">{form}</form>')
+    return html
+
+
 # ---- the build -----------------------------------------------------------------------------
 def catalog_json() -> str:
     sys.path.insert(0, ROOT)
@@ -387,15 +494,20 @@ def build(quiet: bool = False) -> str:
 
     # The worksheet declarations as a JS module, fetched in parallel with the shell's own
     # modules, so the form renders before Python has started.
+    catalog = catalog_json()
     with open(os.path.join(tmp, "catalog.js"), "w", encoding="utf-8") as fh:
         fh.write("// Generated by build.py from app.bridge.catalog(); do not edit.\nexport default ")
-        fh.write(catalog_json())
+        fh.write(catalog)
         fh.write(";\n")
 
     for name in sorted(os.listdir(WEB)):
         src = os.path.join(WEB, name)
-        if os.path.isfile(src) and name not in ("sw.js", "icon.svg") and not name.startswith("."):
+        if os.path.isfile(src) and name not in ("sw.js", "icon.svg", "index.html") and not name.startswith("."):
             shutil.copyfile(src, os.path.join(tmp, name))
+    with open(os.path.join(WEB, "index.html"), encoding="utf-8") as fh:
+        index = render_index(fh.read(), json.loads(catalog))
+    with open(os.path.join(tmp, "index.html"), "w", encoding="utf-8") as fh:
+        fh.write(index)
     shutil.copyfile(os.path.join(WEB, "icon.svg"), os.path.join(tmp, "icons", "icon.svg"))
 
     manifest = {

@@ -1,14 +1,16 @@
 // The one object that owns the Python worker: id-matched calls, status, and a coalescing
 // compute queue so only the newest edit is computed when typing is fast.
 export class Engine extends EventTarget {
-  constructor(url = "./worker.js", options = {}) {
+  constructor(url = "./worker.js", options = {}, adopt = null) {
     super();
     this.state = "starting";
     this.marks = {};
     this.nextId = 1;
     this.pending = new Map();
-    this.worker = new Worker(new URL(url, import.meta.url), { type: "module", name: options.name || "engine" });
+    // Adopt a worker started earlier by boot.js (replaying what it has said so far), or start one.
+    this.worker = adopt ? adopt.worker : new Worker(new URL(url, import.meta.url), { type: "module", name: options.name || "engine" });
     this.worker.onmessage = (e) => this._onMessage(e.data);
+    if (adopt) for (const m of adopt.early.splice(0)) this._onMessage(m);
     this.worker.onerror = (e) => this._setState("failed", e.message || "the engine could not start");
   }
 

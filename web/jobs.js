@@ -14,10 +14,15 @@ export class Jobs {
   constructor(ctx) {
     this.ctx = ctx; // {engine, store, $, openSheet, showView, getState, saveNow}
     this.jobs = new Map();
-    this.loaded = this._load();
+    this._loading = null; // jobs are read from storage on first use, after the form is up
     this.writes = Promise.resolve();
     this.openJobId = null;
     this.saveState = "idle";
+  }
+
+  get loaded() {
+    if (!this._loading) this._loading = this._load();
+    return this._loading;
   }
 
   async _load() {

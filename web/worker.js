@@ -37,7 +37,8 @@ const ready = (async () => {
   } else {
     // Default: unpack the verified wheel straight into site-packages, as micropip would after
     // resolving it, without loading micropip itself (see DEVELOPERS.md for the figures).
-    const site = pyodide.runPython("import sysconfig\nsysconfig.get_paths()['purelib']");
+    // site-packages from sys.path (sysconfig would cost a module compile at every start)
+    const site = pyodide.runPython("import sys\n[p for p in sys.path if p.endswith('site-packages')][0]");
     pyodide.unpackArchive(buf, "wheel", { extractDir: site });
   }
   mark("app-installed");

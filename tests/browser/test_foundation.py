@@ -189,3 +189,31 @@ def test_micropip_install_path_works_offline(browser, site):
         guard.check(page)
     finally:
         ctx.close()
+
+
+def test_opening_form_is_usable_before_the_shell_runs_and_keeps_typing(browser, site):
+    """index.html carries the opening worksheet's form; typing there before the scripts run is kept."""
+    ctx = browser.new_context(viewport=PHONE, java_script_enabled=False)
+    try:
+        page = ctx.new_page()
+        page.goto(site)
+        assert page.is_visible("#in-p_kw") and page.input_value("#in-p_kw") != ""
+        labels = page.eval_on_selector_all("#form label", "els => els.map(e => e.textContent)")
+    finally:
+        ctx.close()
+    ctx = browser.new_context(viewport=PHONE)
+    try:
+        page = ctx.new_page()
+        # hold the shell's modules back so the static form can be typed into first
+        page.route("**/app.js", lambda route: (page.wait_for_timeout(1500), route.continue_()))
+        page.goto(site)
+        page.fill("#in-p_kw", "777")
+        wait_ready(page)
+        settle(page)
+        assert page.input_value("#in-p_kw") == "777"
+        assert page.evaluate("() => window.fieldphasor.state.inputs.p_kw") == "777"
+        # the live form has the same labels as the static one
+        live = page.eval_on_selector_all("#form label", "els => els.map(e => e.textContent)")
+        assert live == labels
+    finally:
+        ctx.close()
