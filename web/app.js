@@ -252,6 +252,7 @@ async function start() {
   }
   window.fieldphasor.perf.inputReady = performance.now();
   document.documentElement.dataset.inputReady = "1";
+  jobs.load(); // now that the form is up: read saved jobs, and say so if storage is unavailable
   showEngine();
   if (navigator.storage && navigator.storage.persist) {
     navigator.storage.persisted().then((p) => p || navigator.storage.persist()).catch(() => {});

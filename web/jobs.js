@@ -20,6 +20,11 @@ export class Jobs {
     this.saveState = "idle";
   }
 
+  /** Start reading the saved jobs (once); resolves when they are in memory. */
+  load() {
+    return this.loaded;
+  }
+
   get loaded() {
     if (!this._loading) this._loading = this._load();
     return this._loading;
