@@ -112,8 +112,8 @@ def xy_chart(
     bands: Sequence[dict] = (),
     desc: str = "",
     dots: Sequence[dict] = (),
-    width: int = 640,
-    height: int = 360,
+    width: int = 520,
+    height: int = 340,
 ) -> str:
     """A line chart. ``series``: dicts with ``points`` [(x, y)…], ``label`` and ``cls``
     (``fp-s1``…``fp-s6``). ``markers``: vertical lines ``{"x", "label", "cls"}``;
@@ -121,7 +121,7 @@ def xy_chart(
     axes) points are skipped. ``dots``: points to mark on the plot ``{"x", "y", "label",
     "cls"}`` (a filled circle with an optional short label), e.g. a resonance peak.
     """
-    left, right, top, bottom = 64, 16, 34, 52
+    left, right, top, bottom = 70, 14, 36, 56
     pw, ph = width - left - right, height - top - bottom
 
     def fx(v):
@@ -162,7 +162,7 @@ def xy_chart(
 
     svg = Svg(width, height, title, desc)
     svg.rect(0, 0, width, height, "fp-bg")
-    svg.text(left, 20, title, cls="fp-text", size=14, weight="600")
+    svg.text(left, 20, title, cls="fp-text", size=16, weight="600")
     for b in bands:
         a, c = max(b["x0"], 10 ** x0 if log_x else x0), min(b["x1"], 10 ** x1 if log_x else x1)
         if c > a:
@@ -175,14 +175,14 @@ def xy_chart(
                 svg.line(left, y, left + pw, y, "fp-grid", width=1)
                 from .fmt import si
 
-                svg.text(left - 6, y + 4, si(10.0**k, "", 3), anchor="end", size=11)
+                svg.text(left - 6, y + 4, si(10.0**k, "", 3), anchor="end", size=13)
     else:
         for t in nice_ticks(y0, y1):
             y = py(t)
             svg.line(left, y, left + pw, y, "fp-grid", width=1)
             from .fmt import sig
 
-            svg.text(left - 6, y + 4, sig(t, 3), anchor="end", size=11)
+            svg.text(left - 6, y + 4, sig(t, 3), anchor="end", size=13)
     if log_x:
         for k in range(math.floor(x0), math.ceil(x1) + 1):
             for m in (1,):
@@ -192,39 +192,37 @@ def xy_chart(
                     svg.line(x, top, x, top + ph, "fp-grid", width=1)
                     from .fmt import si
 
-                    svg.text(x, top + ph + 16, si(v, "", 3), anchor="middle", size=11)
+                    svg.text(x, top + ph + 16, si(v, "", 3), anchor="middle", size=13)
     else:
         from .fmt import sig
 
-        for t in nice_ticks(x0, x1, 8):
+        for t in nice_ticks(x0, x1, 6):
             x = px(t)
             svg.line(x, top, x, top + ph, "fp-grid", width=1)
-            svg.text(x, top + ph + 16, sig(t, 3), anchor="middle", size=11)
+            svg.text(x, top + ph + 16, sig(t, 3), anchor="middle", size=13)
     svg.line(left, top + ph, left + pw, top + ph, "fp-axis")
     svg.line(left, top, left, top + ph, "fp-axis")
-    svg.text(left + pw / 2, height - 10, x_label, anchor="middle", size=12)
-    svg.text(16, top + ph / 2, y_label, anchor="middle", size=12, rotate=-90)
+    svg.text(left + pw / 2, height - 10, x_label, anchor="middle", size=14)
+    svg.text(16, top + ph / 2, y_label, anchor="middle", size=14, rotate=-90)
     for m in markers:
         if ok(m["x"], 10 ** y0 if log_y else y0 + 1e-300) or (not log_x and math.isfinite(m["x"])):
             if (10 ** x0 if log_x else x0) <= m["x"] <= (10 ** x1 if log_x else x1):
                 x = px(m["x"])
                 svg.line(x, top, x, top + ph, m.get("cls", "fp-mark"), dash="5 4", width=2)
-                svg.text(x + 4, top + 12, m.get("label", ""), cls="fp-text", size=11)
+                svg.text(x + 4, top + 12, m.get("label", ""), cls="fp-text", size=13)
     for d in dots:
         if ok(d["x"], d["y"]):
             x, y = px(d["x"]), py(d["y"])
             if left <= x <= left + pw and top <= y <= top + ph:
                 svg.circle(x, y, 4, d.get("cls", "fp-s1-fill"))
                 if d.get("label"):
-                    svg.text(x + 6, y - 6, d["label"], cls="fp-text", size=11)
-    legend_x = left + 8
+                    svg.text(x + 6, y - 6, d["label"], cls="fp-text", size=13)
     for i, s in enumerate(series):
         pts = [(px(x), py(y)) for x, y in s["points"] if ok(x, y)]
         if len(pts) >= 2:
             svg.polyline(pts, s.get("cls", f"fp-s{i % 6 + 1}"), width=s.get("width", 2.0), dash=s.get("dash", ""))
         if s.get("label"):
-            ly = top + 14 + 16 * i
+            ly = top + 16 + 18 * i
             svg.line(left + pw - 150, ly - 4, left + pw - 130, ly - 4, s.get("cls", f"fp-s{i % 6 + 1}"), width=3)
-            svg.text(left + pw - 126, ly, s["label"], size=11)
-    del legend_x
+            svg.text(left + pw - 126, ly, s["label"], size=13)
     return str(svg)

@@ -30,7 +30,7 @@ const state = {
 window.fieldphasor = { engine, state, perf: {} };
 
 // ---- engine status -------------------------------------------------------------------------
-const ENGINE_TEXT = { starting: "Starting engine…", ready: "Engine ready", failed: "Engine failed" };
+const ENGINE_TEXT = { starting: "Engine starting…", ready: "● Ready", failed: "Engine failed" };
 function showEngine() {
   const el = $("engine");
   el.dataset.state = engine.state;

@@ -113,7 +113,7 @@ export class Jobs {
       );
     } else {
       bar.append(
-        h("span", { class: "crumb muted", text: "Scratch worksheet (kept on this device)" }),
+        h("span", { class: "crumb muted", text: "Scratch worksheet" }),
         save,
         h("button", { type: "button", class: "btn small", onclick: () => this.saveToJob() }, "Save to a job"),
       );
