@@ -117,9 +117,9 @@ def origin_of(url: str) -> str:
     return f"{u.scheme}://{u.netloc}"
 
 
-@pytest.fixture
-def phone(browser, site):
-    ctx = browser.new_context(viewport=PHONE, device_scale_factor=2, is_mobile=True, has_touch=True)
+def _guarded_page(browser, site, **context_options):
+    """A page in a new context whose test fails on foreign requests, CSP violations or page errors."""
+    ctx = browser.new_context(**context_options)
     ctx.add_init_script(INIT_SCRIPT)
     page = ctx.new_page()
     guard = Guard(origin_of(site))
@@ -130,21 +130,16 @@ def phone(browser, site):
     yield page
     guard.check(page)
     ctx.close()
+
+
+@pytest.fixture
+def phone(browser, site):
+    yield from _guarded_page(browser, site, viewport=PHONE, device_scale_factor=2, is_mobile=True, has_touch=True)
 
 
 @pytest.fixture
 def tablet(browser, site):
-    ctx = browser.new_context(viewport=TABLET, device_scale_factor=1, has_touch=True)
-    ctx.add_init_script(INIT_SCRIPT)
-    page = ctx.new_page()
-    guard = Guard(origin_of(site))
-    guard.attach(page)
-    ctx.on("request", guard._on_request)
-    page.guard = guard
-    page.site = site
-    yield page
-    guard.check(page)
-    ctx.close()
+    yield from _guarded_page(browser, site, viewport=TABLET, device_scale_factor=1, has_touch=True)
 
 
 def wait_ready(page, timeout=BOOT_TIMEOUT):

@@ -40,22 +40,21 @@ def check_sheet(page, sheet_id):
     assert overflow <= 0, f"{sheet_id}: page scrolls sideways by {overflow}px"
 
 
-def test_every_worksheet_on_a_phone(phone):
-    phone.goto(phone.site)
-    wait_ready(phone)
-    settle(phone)
+def every_sheet(page, size):
+    page.goto(page.site)
+    wait_ready(page)
+    settle(page)
     for sid in SHEETS:
-        check_sheet(phone, sid)
-        shot(phone, f"sheet-{sid}-phone")
+        check_sheet(page, sid)
+        shot(page, f"sheet-{sid}-{size}")
+
+
+def test_every_worksheet_on_a_phone(phone):
+    every_sheet(phone, "phone")
 
 
 def test_every_worksheet_on_a_tablet(tablet):
-    tablet.goto(tablet.site)
-    wait_ready(tablet)
-    settle(tablet)
-    for sid in SHEETS:
-        check_sheet(tablet, sid)
-        shot(tablet, f"sheet-{sid}-tablet")
+    every_sheet(tablet, "tablet")
 
 
 def test_labels_carry_units_and_numeric_fields_use_decimal_keypad(phone):
