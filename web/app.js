@@ -225,7 +225,7 @@ function showView(which) {
   $("job-bar").hidden = which !== "sheet";
 }
 
-const jobs = new Jobs({ engine, store, $, openSheet, showView, getState: () => state, saveNow });
+const jobs = new Jobs({ engine, store, $, openSheet, showView, getState: () => state });
 window.fieldphasor.jobs = jobs;
 window.fieldphasor.open = openSheet; // used by links between worksheets, and by tests
 

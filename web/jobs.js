@@ -12,7 +12,7 @@ const today = () => new Date().toISOString().slice(0, 10);
 
 export class Jobs {
   constructor(ctx) {
-    this.ctx = ctx; // {engine, store, $, openSheet, showView, getState, saveNow}
+    this.ctx = ctx; // {engine, store, $, openSheet, showView, getState}
     this.jobs = new Map();
     this._loading = null; // jobs are read from storage on first use, after the form is up
     this.writes = Promise.resolve();

@@ -19,13 +19,12 @@ function open() {
       const db = req.result;
       if (!db.objectStoreNames.contains("drafts")) db.createObjectStore("drafts");
       if (!db.objectStoreNames.contains("jobs")) db.createObjectStore("jobs", { keyPath: "id" });
-      if (!db.objectStoreNames.contains("meta")) db.createObjectStore("meta");
     };
     req.onsuccess = () => resolve(req.result);
     req.onerror = () => reject(req.error || new Error("storage unavailable"));
     req.onblocked = () => reject(new Error("storage is blocked by another tab"));
   }).catch((err) => {
-    memory = memory || { drafts: new Map(), jobs: new Map(), meta: new Map() };
+    memory = memory || { drafts: new Map(), jobs: new Map() };
     throw err;
   });
   return dbPromise;
@@ -66,7 +65,5 @@ export const store = {
   putJob: (job) => withFallback("jobs", () => tx("jobs", "readwrite", (s) => { s.put(job); }), (m) => { m.set(job.id, structuredClone(job)); }),
   putJobs: (jobs) => withFallback("jobs", () => tx("jobs", "readwrite", (s) => { for (const j of jobs) s.put(j); }), (m) => { for (const j of jobs) m.set(j.id, structuredClone(j)); }),
   deleteJob: (id) => withFallback("jobs", () => tx("jobs", "readwrite", (s) => { s.delete(id); }), (m) => { m.delete(id); }),
-  getMeta: (k) => withFallback("meta", () => open().then((db) => req(db.transaction("meta").objectStore("meta").get(k))), (m) => m.get(k)),
-  putMeta: (k, v) => withFallback("meta", () => tx("meta", "readwrite", (s) => { s.put(v, k); }), (m) => { m.set(k, v); }),
   usingMemory: () => memory !== null,
 };
