@@ -18,6 +18,7 @@ const ready = (async () => {
   // Boot the interpreter at once; meanwhile read the build facts and fetch the app wheel.
   const booting = loadPyodide({ indexURL: here("./pyodide/"), stdout: () => {}, stderr: (s) => console.warn(s) });
   const info = await (await fetch(here("./engine.json"))).json();
+  const bytecode = readBytecode(info); // from Cache Storage, also while the interpreter boots
   const appWheel = fetch(here(`./wheels/${info.app_wheel}`)).then((r) => {
     if (!r.ok) throw new Error(`app package missing (${r.status})`);
     return r.arrayBuffer();
@@ -43,7 +44,7 @@ const ready = (async () => {
   }
   mark("app-installed");
   mark(`installed-with-${INSTALLER}`);
-  await restoreBytecode(pyodide, info);
+  restoreBytecode(pyodide, await bytecode);
   pyodide.runPython("import sys\n__fp_baseline = set(sys.modules)");
   const bridge = pyodide.pyimport("app.bridge");
   mark("engine-ready");
@@ -58,12 +59,23 @@ let savedModules = 0;
 let saveTimer = 0;
 const bytecodeKey = (info) => here(`./__bytecode/${info.app_wheel_sha256}-${info.pyodide}.zip`);
 
-async function restoreBytecode(pyodide, info) {
+async function readBytecode(info) {
   try {
     const hit = await (await caches.open(BYTECODE_CACHE)).match(bytecodeKey(info));
-    if (!hit) return;
-    pyodide.unpackArchive(await hit.arrayBuffer(), "zip", { extractDir: "/" });
-    pyodide.runPython("import sys, importlib\nsys.path.insert(0, '/lib/fp-pyc')\nimportlib.invalidate_caches()");
+    return hit ? await hit.arrayBuffer() : null;
+  } catch (err) {
+    console.warn("bytecode cache not readable:", err);
+    return null;
+  }
+}
+
+function restoreBytecode(pyodide, buffer) {
+  if (!buffer) return;
+  try {
+    pyodide.unpackArchive(buffer, "zip", { extractDir: "/" });
+    // No importlib.invalidate_caches(): in Python 3.14 it imports importlib.metadata (~45 ms here).
+    // A new sys.path entry has no cached finder, and directory finders re-list on a changed mtime.
+    pyodide.runPython("import sys\nsys.path.insert(0, '/lib/fp-pyc')\nsys.path_importer_cache.pop('/lib/fp-pyc', None)");
     mark("bytecode-restored");
   } catch (err) {
     console.warn("bytecode cache not used:", err);
