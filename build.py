@@ -17,7 +17,6 @@ import argparse
 import base64
 import hashlib
 import http.server
-import io
 import json
 import os
 import re

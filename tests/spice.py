@@ -28,37 +28,50 @@ def ac_node_voltages(body: str, freqs: list[float], nodes: list[str]) -> dict[st
     if NGSPICE is None:
         pytest.skip("ngspice not installed")
     out: dict[str, list[complex]] = {n: [] for n in nodes}
-    with tempfile.TemporaryDirectory() as tmp:
-        for i, f in enumerate(freqs):
-            data = os.path.join(tmp, f"out{i}.txt")
-            vecs = " ".join(f"v({n})" for n in nodes)
-            deck = (
-                "* fieldphasor reference deck\n"
-                f"{body.strip()}\n"
-                f".ac lin 1 {f!r} {f!r}\n"
-                ".control\n"
-                "set wr_singlescale\n"
-                "set wr_vecnames\n"
-                "option numdgt=12\n"
-                "run\n"
-                f"wrdata {data} {vecs}\n"
-                ".endc\n"
-                ".end\n"
-            )
-            path = os.path.join(tmp, f"deck{i}.cir")
-            with open(path, "w") as fh:
-                fh.write(deck)
-            proc = subprocess.run([NGSPICE, "-b", path], capture_output=True, text=True, timeout=60)
-            if not os.path.exists(data):
-                raise RuntimeError(f"ngspice failed:\n{proc.stdout}\n{proc.stderr}")
-            with open(data) as fh:
-                lines = [ln.split() for ln in fh if ln.strip()]
-            header, row = lines[0], [float(x) for x in lines[-1]]
-            # with wr_singlescale: frequency, then re, im of each vector
-            for k, n in enumerate(nodes):
-                re_, im_ = row[1 + 2 * k], row[2 + 2 * k]
-                out[n].append(complex(re_, im_))
+    for f in freqs:
+        _, v = _run_ac(body, f".ac lin 1 {f!r} {f!r}", nodes, timeout=60)
+        for n in nodes:
+            out[n].append(v[n][-1])
     return out
+
+
+def _run_ac(body: str, analysis: str, nodes: list[str], timeout: float) -> tuple[list[float], dict[str, list[complex]]]:
+    """Run one ngspice deck (``body`` + the ``.ac`` line ``analysis``) in batch mode and read back
+    (frequencies [Hz], {node: [V(node)…]}) from its ``wrdata`` output."""
+    if NGSPICE is None:
+        pytest.skip("ngspice not installed")
+    with tempfile.TemporaryDirectory() as tmp:
+        data = os.path.join(tmp, "out.txt")
+        vecs = " ".join(f"v({n})" for n in nodes)
+        deck = (
+            "* fieldphasor reference deck\n"
+            f"{body.strip()}\n"
+            f"{analysis}\n"
+            ".control\n"
+            "set wr_singlescale\n"
+            "set wr_vecnames\n"
+            "option numdgt=12\n"
+            "run\n"
+            f"wrdata {data} {vecs}\n"
+            ".endc\n"
+            ".end\n"
+        )
+        path = os.path.join(tmp, "deck.cir")
+        with open(path, "w") as fh:
+            fh.write(deck)
+        proc = subprocess.run([NGSPICE, "-b", path], capture_output=True, text=True, timeout=timeout)
+        if not os.path.exists(data):
+            raise RuntimeError(f"ngspice failed:\n{proc.stdout}\n{proc.stderr}")
+        with open(data) as fh:
+            lines = [ln.split() for ln in fh if ln.strip()]
+    freqs: list[float] = []
+    out: dict[str, list[complex]] = {n: [] for n in nodes}
+    for ln in lines[1:]:  # first line: vector names; with wr_singlescale: frequency, then re, im per vector
+        row = [float(x) for x in ln]
+        freqs.append(row[0])
+        for k, n in enumerate(nodes):
+            out[n].append(complex(row[1 + 2 * k], row[2 + 2 * k]))
+    return freqs, out
 
 
 def impedance_at(body: str, freqs: list[float], node: str = "n1") -> list[complex]:
@@ -73,42 +86,9 @@ def ac_sweep(body: str, f_start: float, f_stop: float, points: int, nodes: list[
     in total; 'dec': ``points`` per decade) for the netlist ``body``; returns the frequencies
     ngspice used and {node: [V(node)…]} as complex numbers. Much faster than
     :func:`ac_node_voltages` for many frequencies (one ngspice run)."""
-    if NGSPICE is None:
-        pytest.skip("ngspice not installed")
     if spacing not in ("lin", "dec", "oct"):
         raise ValueError("spacing must be lin, dec or oct")
-    with tempfile.TemporaryDirectory() as tmp:
-        data = os.path.join(tmp, "sweep.txt")
-        vecs = " ".join(f"v({n})" for n in nodes)
-        deck = (
-            "* fieldphasor reference sweep\n"
-            f"{body.strip()}\n"
-            f".ac {spacing} {int(points)} {f_start!r} {f_stop!r}\n"
-            ".control\n"
-            "set wr_singlescale\n"
-            "set wr_vecnames\n"
-            "option numdgt=12\n"
-            "run\n"
-            f"wrdata {data} {vecs}\n"
-            ".endc\n"
-            ".end\n"
-        )
-        path = os.path.join(tmp, "sweep.cir")
-        with open(path, "w") as fh:
-            fh.write(deck)
-        proc = subprocess.run([NGSPICE, "-b", path], capture_output=True, text=True, timeout=120)
-        if not os.path.exists(data):
-            raise RuntimeError(f"ngspice failed:\n{proc.stdout}\n{proc.stderr}")
-        with open(data) as fh:
-            lines = [ln.split() for ln in fh if ln.strip()]
-    freqs: list[float] = []
-    out: dict[str, list[complex]] = {n: [] for n in nodes}
-    for ln in lines[1:]:  # first line: vector names
-        row = [float(x) for x in ln]
-        freqs.append(row[0])
-        for k, n in enumerate(nodes):
-            out[n].append(complex(row[1 + 2 * k], row[2 + 2 * k]))
-    return freqs, out
+    return _run_ac(body, f".ac {spacing} {int(points)} {f_start!r} {f_stop!r}", nodes, timeout=120)
 
 
 def impedance_sweep(body: str, f_start: float, f_stop: float, points: int, node: str = "n1", spacing: str = "lin") -> tuple[list[float], list[complex]]:

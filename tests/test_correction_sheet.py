@@ -5,7 +5,6 @@ Voltage rise and resonance order are checked against ngspice solutions of the pe
 """
 
 import json
-import math
 import xml.etree.ElementTree as ET
 
 import numpy as np

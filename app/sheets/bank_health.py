@@ -245,7 +245,6 @@ def compute(ins, out):
 
     # --- expected
     g = "Expected from the nameplate"
-    conn_word = "delta" if conn == "delta" else "wye"
     out.result("c_expected", "Capacitance per phase", exp.c_phase, "F", si=True, group=g,
                method=("C = Q/(3·2πf·V²), each element across the line voltage" if conn == "delta"
                        else "C = Q/(2πf·V²), each phase across V/√3"), source=SRC_CIRCUIT)

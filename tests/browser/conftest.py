@@ -7,6 +7,7 @@ occurs (see ``guard``).
 
 from __future__ import annotations
 
+import contextlib
 import json
 import os
 import shutil
@@ -117,29 +118,35 @@ def origin_of(url: str) -> str:
     return f"{u.scheme}://{u.netloc}"
 
 
-def _guarded_page(browser, site, **context_options):
-    """A page in a new context whose test fails on foreign requests, CSP violations or page errors."""
+@contextlib.contextmanager
+def guarded_page(browser, site, **context_options):
+    """A page in a new context (``page.context``) whose test fails on foreign requests, CSP
+    violations or page errors; the context is closed on leaving."""
     ctx = browser.new_context(**context_options)
-    ctx.add_init_script(INIT_SCRIPT)
-    page = ctx.new_page()
-    guard = Guard(origin_of(site))
-    guard.attach(page)
-    ctx.on("request", guard._on_request)
-    page.guard = guard
-    page.site = site
-    yield page
-    guard.check(page)
-    ctx.close()
+    try:
+        ctx.add_init_script(INIT_SCRIPT)
+        page = ctx.new_page()
+        guard = Guard(origin_of(site))
+        guard.attach(page)
+        ctx.on("request", guard._on_request)
+        page.guard = guard
+        page.site = site
+        yield page
+        guard.check(page)
+    finally:
+        ctx.close()
 
 
 @pytest.fixture
 def phone(browser, site):
-    yield from _guarded_page(browser, site, viewport=PHONE, device_scale_factor=2, is_mobile=True, has_touch=True)
+    with guarded_page(browser, site, viewport=PHONE, device_scale_factor=2, is_mobile=True, has_touch=True) as page:
+        yield page
 
 
 @pytest.fixture
 def tablet(browser, site):
-    yield from _guarded_page(browser, site, viewport=TABLET, device_scale_factor=1, has_touch=True)
+    with guarded_page(browser, site, viewport=TABLET, device_scale_factor=1, has_touch=True) as page:
+        yield page
 
 
 def wait_ready(page, timeout=BOOT_TIMEOUT):

@@ -7,12 +7,11 @@ import json
 import os
 import shutil
 
-import pytest
 
 import build
 from app import bridge
 
-from .conftest import INIT_SCRIPT, PHONE, Guard, origin_of, settle, shot, wait_ready
+from .conftest import PHONE, guarded_page, settle, shot, wait_ready
 
 SHEETS = [s["id"] for s in json.loads(bridge.catalog())]
 WCAG = {"runOnly": {"type": "tag", "values": ["wcag2a", "wcag2aa", "wcag21a", "wcag21aa", "wcag22aa"]},
@@ -80,12 +79,7 @@ def test_axe_jobs_and_report(phone):
 
 
 def test_no_sideways_scroll_at_320px_and_200pct_text(browser, site):
-    ctx = browser.new_context(viewport={"width": 320, "height": 640}, is_mobile=True, has_touch=True)
-    ctx.add_init_script(INIT_SCRIPT)
-    page = ctx.new_page()
-    guard = Guard(origin_of(site))
-    guard.attach(page)
-    try:
+    with guarded_page(browser, site, viewport={"width": 320, "height": 640}, is_mobile=True, has_touch=True) as page:
         page.goto(site)
         wait_ready(page)
         for zoom in ("100%", "200%"):
@@ -96,9 +90,6 @@ def test_no_sideways_scroll_at_320px_and_200pct_text(browser, site):
                 assert over <= 0, f"{sid} at {zoom} text scrolls sideways by {over}px"
             if zoom == "200%":
                 shot(page, "zoom200-correction-320")
-        guard.check(page)
-    finally:
-        ctx.close()
 
 
 def test_touch_targets_at_least_44px(phone):

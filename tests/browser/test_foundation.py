@@ -3,19 +3,15 @@
 from __future__ import annotations
 
 import json
-import os
 
-import pytest
 
 from .conftest import (
+    guarded_page,
     ARGS,
     CHROMIUM,
-    INIT_SCRIPT,
     PHONE,
-    Guard,
     cpython_compute,
     open_sheet,
-    origin_of,
     settle,
     shot,
     wait_ready,
@@ -85,12 +81,8 @@ def test_bad_input_shows_message_and_keeps_text(phone):
 
 def test_offline_reload_after_one_visit(browser, dist):
     srv, url = build.serve_in_thread(dist)
-    ctx = browser.new_context(viewport=PHONE, is_mobile=True, has_touch=True)
-    ctx.add_init_script(INIT_SCRIPT)
-    page = ctx.new_page()
-    guard = Guard(origin_of(url))
-    guard.attach(page)
-    try:
+    with guarded_page(browser, url, viewport=PHONE, is_mobile=True, has_touch=True) as page:
+        ctx = page.context
         page.goto(url + "#/sheet/impedance")
         wait_ready(page)
         settle(page)
@@ -111,9 +103,6 @@ def test_offline_reload_after_one_visit(browser, dist):
         settle(page)
         assert page.inner_text("[data-result='z_mag'] .a-value").strip() == "10 Ω"  # 6-8-10 triangle
         assert "leading" in page.inner_text("[data-result='pf'] .a-value")
-        guard.check(page)
-    finally:
-        ctx.close()
 
 
 def test_installable_no_errors(pw, site, fresh_profile):
@@ -169,11 +158,8 @@ def test_second_start_uses_bytecode_cache_and_gives_same_answers(browser, site):
 
 def test_micropip_install_path_works_offline(browser, site):
     """The wheel can also be installed by micropip from the wheels shipped in dist/."""
-    ctx = browser.new_context(viewport=PHONE)
-    guard = Guard(origin_of(site))
-    try:
-        page = ctx.new_page()
-        guard.attach(page)
+    with guarded_page(browser, site, viewport=PHONE) as page:
+        ctx = page.context
         page.goto(site + "?installer=micropip#/sheet/impedance")
         wait_ready(page)
         page.evaluate("async () => { await navigator.serviceWorker.ready; }")
@@ -186,9 +172,6 @@ def test_micropip_install_path_works_offline(browser, site):
         page.fill("#in-z", "3 + j4")
         settle(page)
         assert page.inner_text("[data-result='z_mag'] .a-value").strip() == "5 Ω"
-        guard.check(page)
-    finally:
-        ctx.close()
 
 
 def test_opening_form_is_usable_before_the_shell_runs_and_keeps_typing(browser, site):

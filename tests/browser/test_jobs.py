@@ -3,10 +3,9 @@
 from __future__ import annotations
 
 import json
-import os
-from urllib.parse import parse_qs, unquote, urlparse
+from urllib.parse import parse_qs, urlparse
 
-from .conftest import ARTIFACTS, INIT_SCRIPT, PHONE, Guard, origin_of, settle, shot, wait_ready
+from .conftest import PHONE, guarded_page, settle, shot, wait_ready
 
 SITE = "Harbour Lane Bottling <script>alert(1)</script> & Co"  # invented site; markup must stay text
 NOTES = 'Line 2 MCC. <img src=x onerror="alert(2)"> =HYPERLINK("http://x")'
@@ -50,12 +49,8 @@ def wait_saved(page):
 
 
 def test_a_day_on_site_offline_then_share(browser, site):
-    ctx = browser.new_context(viewport=PHONE, is_mobile=True, has_touch=True)
-    ctx.add_init_script(INIT_SCRIPT)
-    page = ctx.new_page()
-    guard = Guard(origin_of(site))
-    guard.attach(page)
-    try:
+    with guarded_page(browser, site, viewport=PHONE, is_mobile=True, has_touch=True) as page:
+        ctx = page.context
         page.goto(site)
         wait_ready(page)
         page.evaluate("async () => { await navigator.serviceWorker.ready; }")
@@ -120,9 +115,6 @@ def test_a_day_on_site_offline_then_share(browser, site):
         assert SITE in body  # plain text: the name is shown as typed
         if "Summary cut to fit" in body:
             assert page.locator("text=Download full report").count() == 1
-        guard.check(page)
-    finally:
-        ctx.close()
 
 
 def test_persistence_across_contexts_and_rapid_edits(pw, site, fresh_profile):
@@ -172,7 +164,6 @@ def test_export_import_round_trip_and_bad_files(phone, tmp_path):
     dl.value.save_as(path)
     exported = json.loads(path.read_text())
     assert exported["format"] == "fieldphasor-jobs" and exported["version"] == 1
-    before = phone.evaluate("() => window.fieldphasor.engine && 0")  # noqa: F841 (page alive)
 
     # A bad file changes nothing and says why.
     phone.click("text=‹ All jobs")
