@@ -84,3 +84,29 @@ def test_csp_forbids_inline_and_eval(dist):
     assert "'unsafe-inline'" not in csp and "'unsafe-eval'" not in csp
     assert "script-src 'self' 'wasm-unsafe-eval'" in csp
     assert "<script>" not in html  # no inline script
+
+
+def test_snapshot_prepare_runs_every_worksheet_and_returns_the_probe():
+    """app.snapshot.prepare() (run before a memory snapshot is taken) loads every worksheet in a
+    fresh interpreter and labels the snapshot with the probe digest a restored one must reproduce."""
+    import subprocess
+    import sys
+
+    code = (
+        "import json, sys\n"
+        "from app import snapshot\n"
+        "before = set(sys.modules)\n"
+        "label = snapshot.prepare()\n"
+        "print(json.dumps([label, sorted(set(sys.modules) - before)]))\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], cwd=build.ROOT, capture_output=True, text=True, check=True)
+    label, loaded = json.loads(out.stdout.strip().splitlines()[-1])
+    from app import bridge, snapshot
+
+    for sheet_id in bridge.sheets():
+        assert f"app.sheets.{sheet_id}" in loaded, sheet_id
+    assert "app.report" in loaded and "app.jobs" in loaded
+    # the label is SHA-256 of the probe worksheet's default result (hashlib as the reference)
+    expected = hashlib.sha256(bridge.compute(snapshot.PROBE_SHEET, "{}").encode("utf-8")).hexdigest()
+    assert label == expected
+    assert json.loads(bridge.compute(snapshot.PROBE_SHEET, "{}"))["ok"] is True

@@ -2,9 +2,13 @@
 // is still being parsed, so the interpreter boots while the page paints. app.js's Engine adopts it.
 (function () {
   if (window.__fpBoot) return; // the shell got there first and started its own worker
-  var installer = new URLSearchParams(location.search).get("installer") === "micropip" ? "installer=micropip" : "engine";
+  // Worker options travel in its name (the same rule as workerName() in engine.js).
+  var q = new URLSearchParams(location.search);
+  var name = "engine";
+  if (q.get("installer") === "micropip") name += "&installer=micropip";
+  if (q.get("snapshot") === "off") name += "&snapshot=off";
   var early = [];
-  var worker = new Worker(new URL("worker.js", document.baseURI), { type: "module", name: installer });
+  var worker = new Worker(new URL("worker.js", document.baseURI), { type: "module", name: name });
   // Keep messages that arrive before the Engine takes over (status marks, "ready").
   worker.onmessage = function (e) { early.push(e.data); };
   window.__fpBoot = { worker: worker, early: early };

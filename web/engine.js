@@ -22,12 +22,13 @@ export class Engine extends EventTarget {
 
   _onMessage(m) {
     if (m.type === "status") {
-      this.marks[m.stage] = m.t;
+      this.marks[m.stage] = m.at - performance.timeOrigin; // the worker sends absolute times
+
       this.dispatchEvent(new CustomEvent("stage", { detail: m }));
       return;
     }
     if (m.type === "ready") {
-      Object.assign(this.marks, m.marks);
+      for (const [k, at] of Object.entries(m.marks)) this.marks[k] = at - performance.timeOrigin;
       this._setState("ready");
       return;
     }
@@ -57,6 +58,16 @@ export class Engine extends EventTarget {
   async json(op, args = {}) {
     return JSON.parse(await this.call(op, args));
   }
+}
+
+/** The worker's name carries its options: "engine", then "&installer=micropip" (install the app
+ * with micropip) and "&snapshot=off" (never use or make a memory snapshot), from the page's query. */
+export function workerName(search) {
+  const q = new URLSearchParams(search);
+  let name = "engine";
+  if (q.get("installer") === "micropip") name += "&installer=micropip";
+  if (q.get("snapshot") === "off") name += "&snapshot=off";
+  return name;
 }
 
 /** Runs the newest request only: while one compute is in flight, later ones replace each other. */

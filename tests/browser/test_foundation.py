@@ -135,17 +135,18 @@ def test_tablet_layout_puts_inputs_beside_results(tablet):
 
 
 def test_second_start_uses_bytecode_cache_and_gives_same_answers(browser, site):
+    # The bytecode cache serves starts without a memory snapshot (?snapshot=off forces that path).
     ctx = browser.new_context(viewport=PHONE)
     try:
         page = ctx.new_page()
-        page.goto(site + "#/sheet/correction")
+        page.goto(site + "?snapshot=off#/sheet/correction")
         wait_ready(page)
         settle(page)
         # the worker saves compiled bytecode shortly after the first result
         page.wait_for_function("() => 'bytecode-saved' in window.fieldphasor.engine.marks", timeout=30_000)
         page.close()
         page = ctx.new_page()
-        page.goto(site + "#/sheet/correction")
+        page.goto(site + "?snapshot=off#/sheet/correction")
         wait_ready(page)
         settle(page)
         assert "bytecode-restored" in page.evaluate("() => window.fieldphasor.engine.marks")

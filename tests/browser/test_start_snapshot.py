@@ -1,0 +1,115 @@
+"""Later starts restore this build's interpreter memory snapshot (issue: start-up speed), and a
+restored engine answers exactly as CPython does; a snapshot that fails its check is refused."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+
+from app import bridge
+
+from .conftest import PHONE, cpython_compute, guarded_page, settle, wait_ready
+
+SNAPSHOT_WAIT = 120_000  # the maker boots a second interpreter a few seconds after the first result
+
+
+def marks(page) -> dict:
+    return page.evaluate("() => window.fieldphasor.engine.marks")
+
+
+def shown(page) -> list:
+    return [(r["name"], r["display"]) for r in page.evaluate("() => window.fieldphasor.state.lastResult.results")]
+
+
+def reference(page, sheet_id: str) -> list:
+    inputs = page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+    return [(r["name"], r["display"]) for r in cpython_compute(sheet_id, inputs)["results"]]
+
+
+def first_visit_until_snapshot(page, site):
+    page.goto(site + "#/sheet/correction")
+    wait_ready(page)
+    settle(page)
+    page.wait_for_function("() => 'snapshot-saved' in window.fieldphasor.engine.marks", timeout=SNAPSHOT_WAIT)
+    assert "python-ready" in marks(page)  # this start booted normally: there was no snapshot yet
+
+
+def test_later_start_restores_snapshot_and_every_worksheet_answers_as_cpython(browser, site):
+    with guarded_page(browser, site, viewport=PHONE) as page:
+        first_visit_until_snapshot(page, site)
+        page.context.set_offline(True)
+        page.reload()
+        wait_ready(page)
+        settle(page)
+        m = marks(page)
+        assert "snapshot-checked" in m and "python-ready" not in m, m
+        # Reference: the same app code in CPython, the same inputs (the engine must not drift).
+        for sheet_id in bridge.sheets():
+            page.evaluate("(id) => window.fieldphasor.open(id)", sheet_id)
+            page.wait_for_function(
+                """(id) => { const s = window.fieldphasor.state;
+                            return s.sheet && s.sheet.id === id && s.lastResult && s.shownSeq === s.editSeq; }""",
+                arg=sheet_id,
+            )
+            assert shown(page) == reference(page, sheet_id), sheet_id
+        # Reports, which import modules the worksheets do not, match CPython's text exactly.
+        job = json.loads(bridge.demo_job())
+        options = {"date": "2026-03-04"}
+        for fmt in ("html", "text", "csv"):
+            got = page.evaluate(
+                "([job, fmt, options]) => window.fieldphasor.engine.json('report', {job, format: fmt, options})",
+                [job, fmt, options],
+            )
+            want = json.loads(bridge.report(json.dumps(job), fmt, json.dumps(options)))
+            assert got["ok"] and want["ok"], fmt
+            if fmt == "csv":
+                # CSV carries full-precision floats; Python 3.12+ sums floats with compensation, so
+                # the last digit may differ from this CPython's. Numbers agree to 1e-12, text exactly.
+                assert same_csv(got.pop("text"), want.pop("text"))
+            assert got == want, fmt
+
+
+def same_csv(a: str, b: str) -> bool:
+    ra, rb = list(csv.reader(io.StringIO(a))), list(csv.reader(io.StringIO(b)))
+    if len(ra) != len(rb):
+        return False
+    for row_a, row_b in zip(ra, rb):
+        if len(row_a) != len(row_b):
+            return False
+        for x, y in zip(row_a, row_b):
+            if x == y:
+                continue
+            try:
+                if not math.isclose(float(x), float(y), rel_tol=1e-12):
+                    return False
+            except ValueError:
+                return False
+    return True
+
+
+def test_snapshot_that_fails_its_check_is_refused_and_engine_boots_normally(browser, site):
+    with guarded_page(browser, site, viewport=PHONE) as page:
+        first_visit_until_snapshot(page, site)
+        key = page.evaluate("async () => (await (await caches.open('fp-snapshot')).keys())[0].url")
+        real = "async (key) => new Uint8Array(await (await (await caches.open('fp-snapshot')).match(key)).arrayBuffer())"
+        tamper = """async ([key, kind]) => {
+            const c = await caches.open('fp-snapshot');
+            // 'label': a real snapshot whose recorded probe digest is not what it computes;
+            // 'bytes': not a snapshot at all, under a plausible label
+            const body = kind === 'label' ? window.__realSnapshot : new Uint8Array(4096);
+            await c.put(key, new Response(body, {headers: {'x-fp-probe': '0'.repeat(64)}}));
+        }"""
+        for kind in ("label", "bytes"):
+            if kind == "label":
+                page.evaluate(f"async (key) => {{ window.__realSnapshot = await ({real})(key); }}", key)
+            page.evaluate(tamper, [key, kind])
+            page.reload()
+            wait_ready(page)
+            settle(page)
+            m = marks(page)
+            assert "snapshot-rejected" in m and "snapshot-checked" not in m and "python-ready" in m, (kind, m)
+            assert shown(page) == reference(page, "correction"), kind
+            # the refused snapshot was deleted, so the next start does not try it again
+            assert page.evaluate("async () => (await (await caches.open('fp-snapshot')).keys()).length") == 0, kind
