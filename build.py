@@ -359,6 +359,10 @@ def build_icons(out_dir: str) -> None:
 
 # ---- the opening worksheet as static HTML ------------------------------------------------------
 DEFAULT_SHEET = "correction"  # the worksheet the app opens on (web/app.js DEFAULT_SHEET)
+# Form sections drawn into index.html: the opening sheet's first two (the system, and the load
+# readings a user types first) are on screen at once; fewer nodes make the first paint cheaper on
+# a slow phone. The shell draws the rest as soon as its modules run.
+STATIC_SECTIONS = 2
 
 
 def _visible(f: dict, by_name: dict) -> bool:
@@ -369,20 +373,24 @@ def _visible(f: dict, by_name: dict) -> bool:
     return ctl is None or (_visible(ctl, by_name) and ctl.get("default", "") in sw["in"])
 
 
-def static_form(decl: dict) -> str | None:
+def static_form(decl: dict, sections: int | None = None) -> str | None:
     """The form web/render.js would draw for ``decl`` with its defaults, as HTML, so the opening
     worksheet is on screen and accepts typing in the first paint. The shell replaces it with the
     live form once its modules run, keeping anything typed meanwhile. None if a field kind is
-    not drawn here (tables), in which case the shell draws the form alone."""
+    not drawn here (tables), in which case the shell draws the form alone. ``sections``: draw
+    only the first so many form sections (the shell adds the rest a moment later); all if None."""
     from html import escape as e
 
     by_name = {f["name"]: f for f in decl["fields"]}
     unit = lambda u: f' ({e(u)})' if u else ""  # noqa: E731
-    out, open_group = [], False
+    out, open_group, n_groups = [], False, 0
     for f in decl["fields"]:
         if f["kind"] == "table":
             return None
         if f.get("group"):
+            n_groups += 1
+            if sections is not None and n_groups > sections:
+                break
             if open_group:
                 out.append("</fieldset>")
             members, seen = [], False
@@ -452,7 +460,7 @@ def render_index(template: str, catalog: list) -> str:
     decl = next((d for d in catalog if d["id"] == DEFAULT_SHEET), catalog[0])
     options = "".join(f'<option value="{e(d["id"])}"{" selected" if d is decl else ""}>{e(d["title"])}</option>' for d in catalog)
     html = template.replace('<select id="sheet-pick"></select>', f'<select id="sheet-pick">{options}</select>')
-    form = static_form(decl)
+    form = static_form(decl, STATIC_SECTIONS)
     if form is None:
         return html
     html = html.replace('<h1 id="sheet-title">Loading worksheets…</h1>', f'<h1 id="sheet-title">{e(decl["title"])}</h1>')

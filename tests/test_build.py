@@ -110,3 +110,19 @@ def test_snapshot_prepare_runs_every_worksheet_and_returns_the_probe():
     expected = hashlib.sha256(bridge.compute(snapshot.PROBE_SHEET, "{}").encode("utf-8")).hexdigest()
     assert label == expected
     assert json.loads(bridge.compute(snapshot.PROBE_SHEET, "{}"))["ok"] is True
+
+
+def test_static_form_sections_are_the_full_forms_first_sections():
+    """index.html carries the opening sheet's first build.STATIC_SECTIONS form sections, drawn
+    exactly as in the full static form (the shell adds the rest)."""
+    from app import bridge
+
+    decl = next(d for d in json.loads(bridge.catalog()) if d["id"] == build.DEFAULT_SHEET)
+    full = build.static_form(decl)
+    part = build.static_form(decl, build.STATIC_SECTIONS)
+    groups = [f["group"] for f in decl["fields"] if f.get("group")]
+    assert len(groups) > build.STATIC_SECTIONS
+    assert re.findall(r'<fieldset class="group"[^>]*><legend>([^<]*)</legend>', part) == groups[: build.STATIC_SECTIONS]
+    assert full.startswith(part[: -len("</fieldset>")]) and part.endswith("</fieldset>")
+    index = build.render_index(open(os.path.join(build.WEB, "index.html"), encoding="utf-8").read(), json.loads(bridge.catalog()))
+    assert part.replace("<label ", '<label elementtiming="fp-form" ', 1) in index
