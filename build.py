@@ -742,6 +742,7 @@ def cmd_bench(args) -> int:
     cmd = [py, os.path.join(ROOT, "tests", "tools", "bench.py"), "--dist", DIST, "--runs", str(args.runs)]
     if args.out:
         cmd += ["--out", args.out]
+    cmd += args.bench_args  # e.g. --edits N, --installer micropip, --no-snapshot (see tests/tools/bench.py)
     return subprocess.run(cmd, cwd=ROOT).returncode
 
 
@@ -762,15 +763,17 @@ def main(argv=None) -> int:
     t.add_argument("pytest_args", nargs=argparse.REMAINDER)
     t.set_defaults(fn=cmd_test)
     b = sub.add_parser("bench")
-    b.add_argument("--runs", type=int, default=5)
+    b.add_argument("--runs", type=int, default=9)
     b.add_argument("--out", default="")
     b.set_defaults(fn=cmd_bench)
     sub.add_parser("clean").set_defaults(fn=cmd_clean)
     args, extra = ap.parse_known_args(argv)
-    if extra and args.cmd != "test":
+    if extra and args.cmd not in ("test", "bench"):
         ap.error(f"unrecognized arguments: {' '.join(extra)}")
     if args.cmd == "test":
         args.pytest_args = extra + list(args.pytest_args)
+    if args.cmd == "bench":
+        args.bench_args = extra
     return args.fn(args)
 
 

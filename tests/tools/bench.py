@@ -26,6 +26,7 @@ import os
 import statistics
 import sys
 import tempfile
+import time
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(os.path.dirname(HERE))
@@ -51,6 +52,7 @@ postMessage('ready');
 """
 
 SHEET = "correction"  # the worksheet that opens first
+QUIET_MS = 500  # pause after closing a measured page, so each start begins on a quiet machine
 EDIT_FIELD_CANDIDATES = ["p_kw", "f", "v_ll"]
 
 
@@ -129,6 +131,7 @@ def measure(args) -> dict:
                 pg.wait_for_selector("body[data-done='1']", timeout=120_000)
                 bare.append(pg.evaluate("window.__bare"))
                 pg.close()
+                time.sleep(QUIET_MS / 1000)
 
                 pg = ctx.new_page()
                 pg.goto(url + query + f"#/sheet/{SHEET}")
@@ -166,6 +169,7 @@ def measure(args) -> dict:
                 metrics = {m["name"]: m["value"] for m in cdp.send("Performance.getMetrics")["metrics"]}
                 heap.append(metrics.get("JSHeapUsedSize"))
                 pg.close()
+                time.sleep(QUIET_MS / 1000)
 
             # Recompute latency on one page: edits to a numeric field, input → painted.
             pg = ctx.new_page()
@@ -201,8 +205,9 @@ def measure(args) -> dict:
                 cdp = ctx.new_cdp_session(pg)
                 cdp.send("Emulation.setCPUThrottlingRate", {"rate": 4})
                 pg.goto(url + query + f"#/sheet/{SHEET}")
-                pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.inputReady", timeout=120_000)
-                pg.wait_for_timeout(200)
+                # let the page finish starting (engine and first result) before it is closed, so its
+                # teardown does not run into the next measured start
+                pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=120_000)
                 r = pg.evaluate("""() => new Promise(res => {
                     const fcp = performance.getEntriesByName('first-contentful-paint')[0];
                     const out = {fcp: fcp ? fcp.startTime : null, input: window.fieldphasor.perf.inputReady, form: null};
@@ -216,6 +221,7 @@ def measure(args) -> dict:
                 t_in.append(min(x for x in (r["form"], r["input"]) if x is not None))
                 t_shell.append(r["input"])
                 pg.close()
+                time.sleep(QUIET_MS / 1000)
             ctx.close()
 
         after = [x - debounce for x in lat]
@@ -292,7 +298,7 @@ def report(r: dict) -> str:
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--dist", default=build.DIST)
-    ap.add_argument("--runs", type=int, default=5)
+    ap.add_argument("--runs", type=int, default=9)
     ap.add_argument("--edits", type=int, default=60)
     ap.add_argument("--out", default="")
     ap.add_argument("--installer", choices=["unpack", "micropip"], default="unpack",
