@@ -62,23 +62,31 @@ def _check_count(need_kvar: float, vals: list[float]) -> None:
         raise InputError(f"More than {MAX_UNITS} units would be needed: add larger unit ratings to the list.")
 
 
+_TABLE_MEMO: dict = {}  # the last table built, per unit list: a larger table's prefix is a smaller one
+
+
 def _min_count_table(ints: list[int], top: int) -> tuple[list[int], list[int]]:
     """count[s] = fewest units summing exactly to s (s ≤ top; -1 if unreachable), and the
-    index of the last unit used."""
+    index of the last unit used. Unbounded coin-change dynamic programming, unit by unit.
+    The lists returned may be longer than top + 1 and must not be modified."""
+    key = tuple(ints)
+    hit = _TABLE_MEMO.get(key)
+    if hit is not None and len(hit[0]) > top:
+        return hit
     inf = 1 << 30
     count = [inf] * (top + 1)
     last = [-1] * (top + 1)
     count[0] = 0
-    for s in range(1, top + 1):
-        best, arg = inf, -1
-        for i, k in enumerate(ints):
-            if k <= s:
-                c = count[s - k] + 1
-                if c < best:
-                    best, arg = c, i
-        count[s] = best
-        last[s] = arg
-    return [c if c < inf else -1 for c in count], last
+    for i, k in enumerate(ints):
+        for s in range(k, top + 1):
+            c = count[s - k] + 1
+            if c < count[s]:
+                count[s] = c
+                last[s] = i
+    out = ([c if c < inf else -1 for c in count], last)
+    _TABLE_MEMO.clear()
+    _TABLE_MEMO[key] = out
+    return out
 
 
 def _walk(last: list[int], ints: list[int], s: int) -> list[int]:
@@ -105,13 +113,62 @@ class Selection:
         return sorted(out.items(), key=lambda t: -t[0])
 
 
+def _least_sums_by_residue(ints: list[int]) -> tuple[list[float], list[int]]:
+    """For each residue r modulo the smallest unit k0 (grid steps): the least sum of units
+    ≡ r (mod k0), and the unit that last reached it (-1 for none). Every larger sum in the
+    same class is reachable by adding k0-units, so the least sum ≥ any target follows exactly.
+    Dijkstra's shortest paths over the k0 residues (the classical method for the Frobenius
+    coin problem; Dijkstra 1959; e.g. Cormen et al., shortest paths)."""
+    import heapq
+
+    k0 = min(ints)
+    dist = [math.inf] * k0
+    via = [-1] * k0
+    dist[0] = 0
+    heap = [(0, 0)]
+    others = [(i, k) for i, k in enumerate(ints) if k != k0]
+    while heap:
+        d, r = heapq.heappop(heap)
+        if d > dist[r]:
+            continue
+        for i, k in others:
+            nd, nr = d + k, (r + k) % k0
+            if nd < dist[nr]:
+                dist[nr], via[nr] = nd, i
+                heapq.heappush(heap, (nd, nr))
+    return dist, via
+
+
+def _least_sum_at_least(ints: list[int], target: int) -> tuple[int, list[int]]:
+    """The least unit sum S ≥ ``target`` (grid steps) and one set of unit indices reaching it."""
+    k0 = min(ints)
+    i0 = ints.index(k0)
+    dist, via = _least_sums_by_residue(ints)
+    best = None
+    for r, d in enumerate(dist):
+        if d == math.inf:
+            continue
+        extra = max(0, -(-(target - d) // k0))  # k0-units added to reach the target
+        cand = d + extra * k0
+        if best is None or cand < best[0]:
+            best = (cand, r, extra)
+    total, r, extra = best
+    idx = [i0] * extra
+    while r:  # walk back along the shortest path of residue r
+        i = via[r]
+        idx.append(i)
+        r = (r - ints[i]) % k0
+    return total, idx
+
+
 @guarded
 def select_units(need_kvar: float, ratings, max_states: int = MAX_STATES) -> Selection:
     """Units from ``ratings`` [kvar] (any number of each) summing to at least ``need_kvar``
-    [kvar] with the least excess, then the fewest units. Exact on the ratings' common grid;
-    for very large needs the largest unit is pre-filled until the rest fits ``max_states``
-    grid points (the excess can then exceed the optimum by less than one grid step in rare
-    cases). Unbounded coin-change dynamic programming."""
+    [kvar] with the least excess, then the fewest units. The least sum is exact for any need
+    (shortest paths over residues of the smallest unit, on the ratings' common grid). The
+    fewest units for that sum are exact when it spans at most ``max_states`` grid steps
+    (unbounded coin-change dynamic programming); above that, the largest units are
+    pre-filled and the remainder is exact, which can use more units than the fewest."""
     vals = _clean_ratings(ratings)
     if not math.isfinite(need_kvar):
         raise InputError("The kvar needed must be a number.")
@@ -127,21 +184,13 @@ def select_units(need_kvar: float, ratings, max_states: int = MAX_STATES) -> Sel
             "The unit ratings have no usable common step (for example 0.001 kvar beside 500 kvar): "
             "round them to fewer decimals or leave out the smallest."
         )
-    prefill = 0
-    if target + kmax > max_states:
-        prefill = (target + kmax - max_states) // kmax + 1
-        target -= prefill * kmax
-    target = max(target, 0)
-    top = target + kmax
+    total, idx = _least_sum_at_least(ints, target)
+    # the fewest units summing exactly to that total
+    top = min(total, max_states)
     count, last = _min_count_table(ints, top)
-    best = None
-    for s in range(target, top + 1):
-        if count[s] >= 0:
-            best = s
-            break
-    if best is None:  # pragma: no cover - the largest unit always reaches target + kmax
-        raise InputError("No combination of the unit ratings reaches the need.")
-    idx = _walk(last, ints, best) + [ints.index(kmax)] * prefill
+    fewest = _fewest_exact(total, ints, count, last, top, kmax)
+    if fewest is not None and len(fewest) <= len(idx):
+        idx = fewest
     units = tuple(sorted((vals[i] for i in idx), reverse=True))
     return Selection(units, float(sum(Fraction(ints[i]) * g for i in idx)))
 

@@ -9,6 +9,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import assume, given, settings
+from hypothesis import strategies as st
 
 from pycore import banksteps
 from pycore.correction import Load
@@ -43,6 +45,11 @@ def brute_least_excess(need, ratings):
         (99.9, [15, 40, 50]),
         (1.0, [2.5]),
         (121.0, [5, 12.5, 30, 50]),
+        # a fine common grid (0.005 kvar) beside a large unit: the least sum must not jump to the
+        # large unit (a 400 kvar unit was once chosen for 36.7 kvar)
+        (36.7, [12.345, 400]),
+        (350.0, [12.345, 400]),
+        (150.0, [41.67, 500]),
     ],
 )
 def test_select_units_matches_brute_force(need, ratings):
@@ -59,6 +66,30 @@ def test_select_units_large_need_prefill_still_exact():
     sel = banksteps.select_units(9000.3, [5, 10], max_states=100)
     assert sel.total == pytest.approx(9005.0)
     assert len(sel.units) == 901  # 900 × 10 + 1 × 5, the fewest
+
+
+def test_least_sum_stays_exact_when_the_table_is_capped():
+    # 29 × 12.345 = 358.005 kvar is the least sum ≥ 350 kvar from {12.345, 400} (brute force above);
+    # with the coin-change table capped far below it, the residue search still finds it exactly
+    sel = banksteps.select_units(350.0, [12.345, 400], max_states=25_000)
+    assert sel.total == pytest.approx(358.005)
+    assert sum(sel.units) == pytest.approx(358.005)
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    need=st.floats(min_value=0.5, max_value=400.0),
+    ratings=st.lists(st.integers(min_value=500, max_value=100_000).map(lambda n: n / 1000), min_size=1, max_size=3, unique=True),
+)
+def test_select_units_least_excess_matches_brute_force_on_random_ratings(need, ratings):
+    """Random ratings with up to three decimals (grids down to 0.001 kvar) against enumeration."""
+    sizes = [math.ceil(need / r) + 1 for r in ratings]
+    assume(math.prod(sizes) <= 20_000)
+    sel = banksteps.select_units(need, ratings)
+    ref_total, ref_count = brute_least_excess(need, ratings)
+    assert sel.total == pytest.approx(ref_total, abs=1e-6)
+    assert len(sel.units) == ref_count
+    assert sum(sel.units) == pytest.approx(sel.total)
 
 
 def test_too_many_units_refused():
