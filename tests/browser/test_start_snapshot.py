@@ -101,6 +101,7 @@ def test_snapshot_that_fails_its_check_is_refused_and_engine_boots_normally(brow
             const body = kind === 'label' ? window.__realSnapshot : new Uint8Array(4096);
             await c.put(key, new Response(body, {headers: {'x-fp-probe': '0'.repeat(64)}}));
         }"""
+        page.context.set_offline(True)  # the refusals, and the snapshot made again, all offline
         for kind in ("label", "bytes"):
             if kind == "label":
                 page.evaluate(f"async (key) => {{ window.__realSnapshot = await ({real})(key); }}", key)
@@ -113,3 +114,11 @@ def test_snapshot_that_fails_its_check_is_refused_and_engine_boots_normally(brow
             assert shown(page) == reference(page, "correction"), kind
             # the refused snapshot was deleted, so the next start does not try it again
             assert page.evaluate("async () => (await (await caches.open('fp-snapshot')).keys()).length") == 0, kind
+        # a start without a snapshot makes a new one (offline: the maker's files come from the
+        # service worker's cache), and the start after that uses it
+        page.wait_for_function("() => 'snapshot-saved' in window.fieldphasor.engine.marks", timeout=SNAPSHOT_WAIT)
+        page.reload()
+        wait_ready(page)
+        settle(page)
+        assert "snapshot-checked" in marks(page)
+        assert shown(page) == reference(page, "correction")
