@@ -61,13 +61,11 @@ try { applyTheme(localStorage.getItem("fp-theme") || "auto"); } catch { applyThe
 
 // ---- computing -------------------------------------------------------------------------------
 const computer = new Latest(async ({ sheetId, inputs, t0, seq }) => {
-  const sent = performance.now();
   const res = await engine.json("compute", { worksheet: sheetId, inputs });
-  const p = window.fieldphasor.perf;
-  if (!p.firstResult) p.firstCompute = { sent, back: performance.now() };
   if (!state.sheet || state.sheet.id !== sheetId) return;
   showResult(res);
   state.shownSeq = seq;
+  const p = window.fieldphasor.perf;
   p.lastComputeMs = performance.now() - t0;
   if (!p.firstResult) p.firstResult = performance.now();
   p.computeCount = (p.computeCount || 0) + 1;

@@ -23,7 +23,6 @@ export class Engine extends EventTarget {
   _onMessage(m) {
     if (m.type === "status") {
       this.marks[m.stage] = m.at - performance.timeOrigin; // the worker sends absolute times
-
       this.dispatchEvent(new CustomEvent("stage", { detail: m }));
       return;
     }
