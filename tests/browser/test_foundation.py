@@ -201,3 +201,13 @@ def test_opening_form_is_usable_before_the_shell_runs_and_keeps_typing(browser, 
         assert live[: len(labels)] == labels and len(live) > len(labels)
     finally:
         ctx.close()
+
+
+def test_worksheet_picker_lists_each_worksheet_once(phone):
+    """The picker (written into index.html by the build, then taken over by the shell) lists every
+    worksheet of the catalog exactly once, in catalog order."""
+    from app import bridge
+
+    open_sheet(phone, "correction")
+    values = phone.eval_on_selector_all("#sheet-pick option", "els => els.map(e => e.value)")
+    assert values == list(bridge.sheets())
