@@ -458,8 +458,10 @@ def render_index(template: str, catalog: list) -> str:
     from html import escape as e
 
     decl = next((d for d in catalog if d["id"] == DEFAULT_SHEET), catalog[0])
-    options = "".join(f'<option value="{e(d["id"])}"{" selected" if d is decl else ""}>{e(d["title"])}</option>' for d in catalog)
-    html = template.replace('<select id="sheet-pick"></select>', f'<select id="sheet-pick">{options}</select>')
+    # Only the opening worksheet: the picker does nothing until the shell runs, and the shell
+    # then lists them all (a shorter list is a cheaper first paint on a slow phone).
+    option = f'<option value="{e(decl["id"])}" selected>{e(decl["title"])}</option>'
+    html = template.replace('<select id="sheet-pick"></select>', f'<select id="sheet-pick">{option}</select>')
     form = static_form(decl, STATIC_SECTIONS)
     if form is None:
         return html

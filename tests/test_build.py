@@ -126,3 +126,6 @@ def test_static_form_sections_are_the_full_forms_first_sections():
     assert full.startswith(part[: -len("</fieldset>")]) and part.endswith("</fieldset>")
     index = build.render_index(open(os.path.join(build.WEB, "index.html"), encoding="utf-8").read(), json.loads(bridge.catalog()))
     assert part.replace("<label ", '<label elementtiming="fp-form" ', 1) in index
+    # the picker starts with the opening worksheet alone (the shell lists them all)
+    picker = re.search(r'<select id="sheet-pick">(.*?)</select>', index).group(1)
+    assert re.findall(r'<option value="([^"]+)"', picker) == [build.DEFAULT_SHEET]

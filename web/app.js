@@ -236,8 +236,9 @@ $("form").addEventListener("submit", (e) => e.preventDefault());
 async function start() {
   state.catalog = CATALOG;
   const pick = $("sheet-pick");
-  // index.html already lists the worksheets (build.py); fill the list only when it came empty
-  if (!pick.options.length) for (const s of state.catalog) pick.append(h("option", { value: s.id, text: s.title }));
+  // index.html lists only the opening worksheet (build.py); the full list replaces it
+  clear(pick);
+  for (const s of state.catalog) pick.append(h("option", { value: s.id, text: s.title }));
   const m = location.hash.match(/^#\/sheet\/([\w-]+)/);
   const e = location.hash.match(/^#\/entry\/([\w-]+)\/([\w-]+)/);
   const entry = e && (await jobs.find(e[1], e[2]));

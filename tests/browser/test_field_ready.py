@@ -148,7 +148,7 @@ def test_themes_follow_system_and_switch_by_hand(browser, site):
     page = ctx.new_page()
     try:
         page.goto(site)
-        page.wait_for_selector("#sheet-pick option", state="attached")
+        page.wait_for_selector("html[data-input-ready='1']", state="attached")  # the shell is running
         bg = page.evaluate("() => getComputedStyle(document.body).backgroundColor")
         assert bg == "rgb(15, 23, 22)"  # the dark theme's background
         texts = []
@@ -160,7 +160,7 @@ def test_themes_follow_system_and_switch_by_hand(browser, site):
         page.click("#theme-btn")  # light, by hand, against the system's dark
         assert page.evaluate("() => getComputedStyle(document.body).backgroundColor") == "rgb(244, 241, 232)"
         page.reload()
-        page.wait_for_selector("#sheet-pick option", state="attached")
+        page.wait_for_selector("html[data-input-ready='1']", state="attached")  # the shell is running
         assert page.inner_text("#theme-btn") == "◐ Light"  # the choice is remembered
     finally:
         ctx.close()
