@@ -49,7 +49,7 @@ const THEME_NAMES = { auto: "Auto", light: "Light", dark: "Dark", sun: "Sunlight
 function applyTheme(t) {
   document.documentElement.dataset.theme = t;
   const b = $("theme-btn");
-  b.textContent = `◐ ${THEME_NAMES[t]}`;
+  $("theme-name").textContent = THEME_NAMES[t];
   b.setAttribute("aria-label", `Colour theme: ${THEME_NAMES[t]}. Change theme`);
 }
 $("theme-btn").addEventListener("click", () => {
