@@ -122,8 +122,7 @@ def measure(args) -> dict:
             page.close()
             ctx.set_offline(True)
 
-            bare, fp, ready_in, eng, first, heap, py, inst, shell_ready, paths = [], [], [], [], [], [], [], [], [], []
-            wstart = []
+            bare, fp, ready_in, eng, first, heap, py, inst, shell_ready, paths, wstart = ([] for _ in range(11))
             for _ in range(args.runs):
                 # baseline and app alternate so both see the same machine state
                 pg = ctx.new_page()
