@@ -569,3 +569,21 @@ def test_third_harmonic_only_for_single_phase():
     assert val(one, "h_res") == pytest.approx(3.0, abs=0.01)
     assert any("Resonance risk" in w for w in one["warnings"])
     assert not any("Resonance risk" in w for w in three["warnings"])
+
+
+def test_many_units_in_one_step_is_warned_and_a_fine_grid_beside_a_large_unit_is_not_oversized():
+    # The default load needs 198.9 kvar (see the tests above). Units of 1.001 and 50 kvar: the
+    # least-excess plan builds each step from many 1.001 kvar units, which a bank builder would not
+    # do (common practice: a step is one to a few units), so the sheet says so.
+    r = run(ratings="1.001, 50")
+    assert r["ok"]
+    assert any("units in parallel" in w for w in r["warnings"])
+    # With the usual stock no step needs more than a few units, and there is no such warning.
+    r = run()
+    assert r["ok"] and not any("units in parallel" in w for w in r["warnings"])
+    # 12.345 kvar beside 400 kvar units: the order stays near the need, with 12.345 kvar units only
+    # (least sum found exactly; a 400 kvar unit was once chosen here).
+    r = run(ratings="12.345, 400", bank="fixed")
+    need = val(r, "q_need_rated")
+    assert need <= val(r, "q_delivered") < need + 12.345
+    assert "400 kvar" not in res(r, "order")["display"]

@@ -26,6 +26,7 @@ SRC_IEEE18 = "IEEE Std 18, shunt power capacitors (continuous limits 110 % V, 13
 SRC_NEC = "NFPA 70 (NEC) Article 460.8"
 SRC_IEC = "IEC 60831-1 (maximum current 1.30·I_N, 1.43·I_N with capacitance tolerance; recalled)"
 SRC_SUPPLY = "Per-unit short-circuit method (IEEE Std 141, IEEE Std 399); resonance IEEE Std 1036 / Dugan et al., Electrical Power Systems Quality"
+MANY_UNITS_PER_STEP = 6  # more units than this in one step draws a warning (common practice: 1 to a few)
 SRC_STEPS = "Least-excess selection by dynamic programming over the purchasable unit ratings (this app)"
 
 BASES = [
@@ -552,7 +553,10 @@ def compute(ins, out):
                         f"{', '.join(fmt.sig(x) for x in p_best.steps)} kvar ({fmt.sig(p_best.total)} kvar rated).")
         out.warn(f"The step plan orders {fmt.sig(100 * (total_rated - need_rated) / need_rated, 3)} % more than needed. " + hint)
 
-    combos = banksteps.combinations(steps_sys)
+    most = max((len(u) for u in step_units), default=0)
+    if most > MANY_UNITS_PER_STEP:
+        out.warn(f"One step of this plan is {most} units in parallel. A step is usually one to a few units: add a larger "
+                 "unit rating to the list, or leave out the smallest, for fewer units, connections and fuses.")
 
     combos = banksteps.combinations(steps_sys)
 
