@@ -122,6 +122,20 @@ def measure(args) -> dict:
             page.close()
             ctx.set_offline(True)
 
+            def open_app(throttle=None):
+                """A new tab on the app, waited on until its first result (its start fully over)."""
+                pg = ctx.new_page()
+                if throttle:
+                    ctx.new_cdp_session(pg).send("Emulation.setCPUThrottlingRate", {"rate": throttle})
+                pg.goto(url + query + f"#/sheet/{SHEET}")
+                pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=120_000)
+                return pg
+
+            def close_quietly(pg):
+                """Close a measured tab and give the machine a quiet moment before the next start."""
+                pg.close()
+                time.sleep(QUIET_MS / 1000)
+
             bare, fp, ready_in, eng, first, heap, py, inst, shell_ready, paths, wstart = ([] for _ in range(11))
             for _ in range(args.runs):
                 # baseline and app alternate so both see the same machine state
@@ -129,12 +143,9 @@ def measure(args) -> dict:
                 pg.goto(url + "__bench/bare.html")
                 pg.wait_for_selector("body[data-done='1']", timeout=120_000)
                 bare.append(pg.evaluate("window.__bare"))
-                pg.close()
-                time.sleep(QUIET_MS / 1000)
+                close_quietly(pg)
 
-                pg = ctx.new_page()
-                pg.goto(url + query + f"#/sheet/{SHEET}")
-                pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=120_000)
+                pg = open_app()
                 form_paint = pg.evaluate("""() => new Promise(res => {
                     try {
                         new PerformanceObserver(l => res(Math.min(...l.getEntries().map(e => e.renderTime || e.loadTime))))
@@ -167,13 +178,10 @@ def measure(args) -> dict:
                 cdp.send("Performance.enable")
                 metrics = {m["name"]: m["value"] for m in cdp.send("Performance.getMetrics")["metrics"]}
                 heap.append(metrics.get("JSHeapUsedSize"))
-                pg.close()
-                time.sleep(QUIET_MS / 1000)
+                close_quietly(pg)
 
             # Recompute latency on one page: edits to a numeric field, input → painted.
-            pg = ctx.new_page()
-            pg.goto(url + query + f"#/sheet/{SHEET}")
-            pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=120_000)
+            pg = open_app()
             field = pg.evaluate(
                 "(cands) => cands.find(n => document.getElementById('in-' + n)) || ''", EDIT_FIELD_CANDIDATES
             )
@@ -200,13 +208,9 @@ def measure(args) -> dict:
             # Main-thread figures at 4× CPU throttling (CDP slows only the page's main thread).
             t_fp, t_in, t_shell = [], [], []
             for _ in range(args.runs):
-                pg = ctx.new_page()
-                cdp = ctx.new_cdp_session(pg)
-                cdp.send("Emulation.setCPUThrottlingRate", {"rate": 4})
-                pg.goto(url + query + f"#/sheet/{SHEET}")
-                # let the page finish starting (engine and first result) before it is closed, so its
-                # teardown does not run into the next measured start
-                pg.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=120_000)
+                # the page finishes starting before it is closed, so its teardown does not run
+                # into the next measured start
+                pg = open_app(throttle=4)
                 r = pg.evaluate("""() => new Promise(res => {
                     const fcp = performance.getEntriesByName('first-contentful-paint')[0];
                     const out = {fcp: fcp ? fcp.startTime : null, input: window.fieldphasor.perf.inputReady, form: null};
@@ -219,8 +223,7 @@ def measure(args) -> dict:
                 t_fp.append(r["fcp"])
                 t_in.append(min(x for x in (r["form"], r["input"]) if x is not None))
                 t_shell.append(r["input"])
-                pg.close()
-                time.sleep(QUIET_MS / 1000)
+                close_quietly(pg)
             ctx.close()
 
         after = [x - debounce for x in lat]
