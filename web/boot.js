@@ -1,5 +1,7 @@
-// Runs first (a small classic script, async in <head>): starts the Python worker while the page
-// is still being parsed, so the interpreter boots while the page paints. app.js's Engine adopts it.
+// Runs first (a small classic async script; index.html lists it after the static form, which
+// measured about 20 ms sooner to first paint at 4x than listing it in <head>): starts the Python
+// worker as soon as it is fetched, so the interpreter boots while the page paints.
+// app.js's Engine adopts it.
 (function () {
   if (window.__fpBoot) return; // the shell got there first and started its own worker
   // Worker options travel in its name (the same rule as workerName() in engine.js).
