@@ -29,7 +29,7 @@ const state = {
 window.fieldphasor = { engine, state, perf: {} };
 
 // ---- engine status -------------------------------------------------------------------------
-const ENGINE_TEXT = { starting: "Engine starting…", ready: "● Ready", failed: "Engine failed" };
+const ENGINE_TEXT = { starting: "Starting…", ready: "● Ready", failed: "Engine failed" };
 function showEngine() {
   const el = $("engine");
   el.dataset.state = engine.state;
@@ -91,6 +91,7 @@ function showResult(res) {
   const first = (res.results || []).find((r) => r.key);
   const head = $("headline");
   head.hidden = !res.ok || !first;
+  head.removeAttribute("data-pending");
   if (first) head.textContent = `${first.label}: ${first.display} — all results ↓`;
   const nErr = Object.keys(res.field_errors || {}).length;
   const key = (res.results || []).filter((r) => r.key).map((r) => `${r.label} ${r.display}`).join("; ");
@@ -153,7 +154,10 @@ async function openSheet(id, { inputs = null, target = null } = {}) {
   state.target = target;
   state.lastShown = "";
   state.lastResult = null;
-  $("headline").hidden = true;
+  // index.html starts with a placeholder headline the size of the opening sheet's answer, so the
+  // first result does not push the form down; once an answer has been shown, a new sheet starts without
+  const head = $("headline");
+  if (!head.hasAttribute("data-pending")) head.hidden = true;
   state.editSeq++;
   let saved = inputs;
   const journal = journalFor(decl.id, target);

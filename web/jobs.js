@@ -107,14 +107,14 @@ export class Jobs {
       const job = this.jobs.get(target.jobId);
       const entry = job && job.entries.find((e) => e.id === target.entryId);
       bar.append(
-        h("span", { class: "crumb" }, h("strong", { text: job ? job.site || "Untitled job" : "Job" }), " › ", entry ? entry.name : ""),
-        save,
+        h("div", { class: "job-where" },
+          h("span", { class: "crumb" }, h("strong", { text: job ? job.site || "Untitled job" : "Job" }), " › ", entry ? entry.name : ""),
+          save),
         h("button", { type: "button", class: "btn ghost small", onclick: () => this.openJob(target.jobId) }, "Back to job"),
       );
     } else {
       bar.append(
-        h("span", { class: "crumb muted", text: "Scratch worksheet" }),
-        save,
+        h("div", { class: "job-where" }, h("span", { class: "crumb muted", text: "Scratch worksheet" }), save),
         h("button", { type: "button", class: "btn small", onclick: () => this.saveToJob() }, "Save to a job"),
       );
     }

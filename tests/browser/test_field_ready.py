@@ -278,3 +278,36 @@ def test_bad_input_in_every_worksheet_keeps_text_and_recovers(phone):
         phone.fill(sel, good)
         settle(phone)
         assert phone.evaluate("() => window.fieldphasor.state.lastResult.ok"), f"{s['id']} did not recover"
+
+
+
+FIRST_FIELD_TOP = "(() => { const el = document.querySelector('#form input, #form select'); return el.getBoundingClientRect().top + scrollY; })()"
+
+
+def test_form_stays_put_from_first_paint_to_first_result(browser, site):
+    """The form is usable in the first paint (the static form in index.html), so nothing may push it
+    down when the shell takes over, the engine comes up or the first answer arrives: a user who taps
+    a field then must hit that field (common practice: no layout shift without user input, as in the
+    Web Vitals guidance on layout shifts). The first paint is the page as served, without scripts."""
+    for width in (360, 390, 412, 1024):
+        viewport = {"width": width, "height": 844}
+        ctx = browser.new_context(viewport=viewport, java_script_enabled=False)
+        try:
+            page = ctx.new_page()
+            page.goto(site + "#/sheet/correction")
+            first_paint = page.evaluate(FIRST_FIELD_TOP)
+        finally:
+            ctx.close()
+        with guarded_page(browser, site, viewport=viewport, service_workers="block") as page:
+            page.goto(site + "#/sheet/correction")
+            wait_ready(page)
+            settle(page)
+            answered = page.evaluate(FIRST_FIELD_TOP)
+            headline = page.evaluate("(() => { const h = document.getElementById('headline'); return h.hidden ? '' : h.textContent; })()")
+            # typing saves the draft ("Saved on this device" appears in the job bar): still no move
+            page.fill("#in-p_kw", "430")
+            page.wait_for_function("() => document.getElementById('save-state').dataset.state === 'saved'")
+            settle(page)
+            typed = page.evaluate(FIRST_FIELD_TOP)
+        assert abs(answered - first_paint) <= 1, (width, first_paint, answered, headline)
+        assert abs(typed - first_paint) <= 1, (width, first_paint, typed)
