@@ -453,6 +453,26 @@ def static_form(decl: dict, sections: int | None = None) -> str | None:
     return "".join(out)
 
 
+def pending_headline(decl_id: str) -> str:
+    """The headline before the first answer: a message, over the opening worksheet's answer for its
+    default inputs drawn invisibly (same wording as showResult in web/app.js), so the box is already
+    the height the first answer will need at any width and with any font, and nothing moves when it
+    comes. Computed here by the same code the engine runs."""
+    from html import escape as e
+
+    sys.path.insert(0, ROOT)
+    try:
+        from app import bridge
+
+        res = json.loads(bridge.compute(decl_id, "{}"))
+    finally:
+        sys.path.remove(ROOT)
+    first = next((r for r in res.get("results", []) if r.get("key")), None)
+    size = f'{first["label"]}: {first["display"]} — all results ↓' if res.get("ok") and first else ""
+    return ('<span class="pending-msg">The answer appears here in a moment. All results ↓</span>'
+            f'<span class="pending-size" aria-hidden="true">{e(size)}</span>')
+
+
 def render_index(template: str, catalog: list) -> str:
     """index.html with the worksheet picker and the opening worksheet's form filled in."""
     from html import escape as e
@@ -467,6 +487,7 @@ def render_index(template: str, catalog: list) -> str:
         return html
     html = html.replace('<h1 id="sheet-title">Loading worksheets…</h1>', f'<h1 id="sheet-title">{e(decl["title"])}</h1>')
     html = html.replace('<p id="sheet-summary" class="summary"></p>', f'<p id="sheet-summary" class="summary">{e(decl["summary"])}</p>')
+    html = html.replace('data-pending>The answer appears here in a moment. All results ↓</a>', f'data-pending>{pending_headline(decl["id"])}</a>')
     # The benchmark reads when the form was first painted from the heading just after it: index.html
     # holds rendering until the parser reaches the results section (link rel=expect), and unlike the
     # static form's own labels the heading outlives the shell's takeover (Chromium drops the paint

@@ -154,7 +154,7 @@ async function openSheet(id, { inputs = null, target = null } = {}) {
   state.target = target;
   state.lastShown = "";
   state.lastResult = null;
-  // index.html starts with a placeholder headline the size of the opening sheet's answer, so the
+  // index.html starts with a placeholder headline the size of the opening sheet's answer (build.py), so the
   // first result does not push the form down; once an answer has been shown, a new sheet starts without
   const head = $("headline");
   if (!head.hasAttribute("data-pending")) head.hidden = true;

@@ -289,7 +289,7 @@ def test_form_stays_put_from_first_paint_to_first_result(browser, site):
     down when the shell takes over, the engine comes up or the first answer arrives: a user who taps
     a field then must hit that field (common practice: no layout shift without user input, as in the
     Web Vitals guidance on layout shifts). The first paint is the page as served, without scripts."""
-    for width in (360, 390, 412, 1024):
+    for width in (320, 360, 390, 412, 480, 768, 1024):
         viewport = {"width": width, "height": 844}
         ctx = browser.new_context(viewport=viewport, java_script_enabled=False)
         try:
