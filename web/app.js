@@ -92,7 +92,7 @@ function showResult(res) {
   const head = $("headline");
   head.hidden = !res.ok || !first;
   head.removeAttribute("data-pending");
-  if (first) head.textContent = `${first.label}: ${first.display} — all results ↓`;
+  if (first) head.textContent = `${first.label}: ${first.display} — all results ↓`; // build.py sizes the placeholder with this wording
   const nErr = Object.keys(res.field_errors || {}).length;
   const key = (res.results || []).filter((r) => r.key).map((r) => `${r.label} ${r.display}`).join("; ");
   $("announce").textContent = res.ok ? `Updated. ${key}` : `${nErr || "An"} input${nErr === 1 ? "" : "s"} need${nErr === 1 ? "s" : ""} attention. ${Object.values(res.field_errors || {}).join(" ")} ${res.error || ""}`;

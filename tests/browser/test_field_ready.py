@@ -280,7 +280,6 @@ def test_bad_input_in_every_worksheet_keeps_text_and_recovers(phone):
         assert phone.evaluate("() => window.fieldphasor.state.lastResult.ok"), f"{s['id']} did not recover"
 
 
-
 FIRST_FIELD_TOP = "(() => { const el = document.querySelector('#form input, #form select'); return el.getBoundingClientRect().top + scrollY; })()"
 
 
