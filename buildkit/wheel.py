@@ -1,0 +1,51 @@
+"""The app's own code (pycore/ and app/) packed as a pure-Python wheel, byte-identical for the same sources."""
+
+from __future__ import annotations
+
+import base64
+import hashlib
+import os
+import zipfile
+
+from .common import ROOT, read_version
+
+FIXED_TIME = (2020, 2, 2, 0, 0, 0)  # zip entries get one fixed time so builds are byte-identical
+
+
+def build_app_wheel(out_dir: str) -> str:
+    """Pack pycore/ and app/ as a pure-Python wheel with fixed timestamps (reproducible)."""
+    version = read_version()
+    name = f"fieldphasor-{version}-py3-none-any.whl"
+    info = f"fieldphasor-{version}.dist-info"
+    files: list[tuple[str, bytes]] = []
+    for pkg in ("pycore", "app"):
+        for folder, dirs, names in os.walk(os.path.join(ROOT, pkg)):
+            dirs[:] = sorted(d for d in dirs if d != "__pycache__")
+            for n in sorted(names):
+                if n.endswith(".py"):
+                    full = os.path.join(folder, n)
+                    with open(full, "rb") as fh:
+                        files.append((os.path.relpath(full, ROOT).replace(os.sep, "/"), fh.read()))
+    meta = (
+        "Metadata-Version: 2.1\n"
+        f"Name: fieldphasor\nVersion: {version}\n"
+        "Summary: Offline power-factor-correction and phasor worksheets\n"
+        "Requires-Python: >=3.11\n"
+    ).encode()
+    wheel = b"Wheel-Version: 1.0\nGenerator: fieldphasor-build\nRoot-Is-Purelib: true\nTag: py3-none-any\n"
+    top = b"app\npycore\n"
+    files += [(f"{info}/METADATA", meta), (f"{info}/WHEEL", wheel), (f"{info}/top_level.txt", top)]
+    record_lines = []
+    for path, data in files:
+        digest = base64.urlsafe_b64encode(hashlib.sha256(data).digest()).rstrip(b"=").decode()
+        record_lines.append(f"{path},sha256={digest},{len(data)}")
+    record_lines.append(f"{info}/RECORD,,")
+    files.append((f"{info}/RECORD", ("\n".join(record_lines) + "\n").encode()))
+    path = os.path.join(out_dir, name)
+    with zipfile.ZipFile(path, "w", zipfile.ZIP_DEFLATED, compresslevel=9) as zf:
+        for arc, data in files:
+            zi = zipfile.ZipInfo(arc, FIXED_TIME)
+            zi.compress_type = zipfile.ZIP_DEFLATED
+            zi.external_attr = 0o644 << 16
+            zf.writestr(zi, data)
+    return name
