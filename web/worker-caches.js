@@ -1,0 +1,125 @@
+// What the engine worker keeps and fetches, apart from its message loop (worker.js): the app wheel
+// (fetched, checked against engine.json's SHA-256, unpacked), the memory snapshot (one per build,
+// made on the device) and the bytecode cache (one per build). Everything here is an optimisation
+// or an integrity check; no engineering logic. See DEVELOPERS.md for what each one gains.
+import { loadPyodide } from "./pyodide/pyodide.mjs";
+
+export const here = (path) => new URL(path, import.meta.url).href;
+
+function hex(buffer) {
+  return Array.from(new Uint8Array(buffer), (b) => b.toString(16).padStart(2, "0")).join("");
+}
+
+// ---- the app wheel ----
+export const fetchInfo = () => fetch(here("./engine.json")).then((r) => r.json());
+
+export async function fetchWheel(info) {
+  const r = await fetch(here(`./wheels/${info.app_wheel}`));
+  if (!r.ok) throw new Error(`app package missing (${r.status})`);
+  const buf = await r.arrayBuffer();
+  const digest = hex(await crypto.subtle.digest("SHA-256", buf));
+  if (digest !== info.app_wheel_sha256) throw new Error("the app package failed its integrity check; reload to fetch it again");
+  return buf;
+}
+
+// Unpack the verified wheel straight into site-packages, as micropip would after resolving it,
+// without loading micropip itself (see DEVELOPERS.md for the figures).
+export function unpackWheel(pyodide, buf) {
+  // site-packages from sys.path (sysconfig would cost a module compile at every start)
+  const site = pyodide.runPython("import sys\n[p for p in sys.path if p.endswith('site-packages')][0]");
+  pyodide.unpackArchive(buf, "wheel", { extractDir: site });
+}
+
+// ---- memory snapshot: one per build, made on the device by a short-lived second worker ----
+const SNAPSHOT_CACHE = "fp-snapshot";
+const snapshotKey = (info) => here(`./__snapshot/${info.app_wheel_sha256}-${info.pyodide}.bin`);
+
+export async function findSnapshot(info) {
+  if (!self.caches) return null;
+  try {
+    const hit = await (await caches.open(SNAPSHOT_CACHE)).match(snapshotKey(info));
+    return hit && hit.headers.get("x-fp-probe") ? hit : null;
+  } catch (err) {
+    console.warn("snapshot cache not readable:", err);
+    return null;
+  }
+}
+
+async function dropSnapshot(info) {
+  try { await (await caches.open(SNAPSHOT_CACHE)).delete(snapshotKey(info)); } catch { /* nothing to drop */ }
+}
+
+// Restore the interpreter from the snapshot, install the wheel's files (for anything imported
+// later) and run the probe worksheet: the snapshot is used only when its answer matches the one
+// recorded when it was made. Returns the interpreter, or null after discarding a bad snapshot.
+export async function bootFromSnapshot(info, hit, appWheel, pyodideOpts, mark) {
+  try {
+    const pyodide = await loadPyodide({ ...pyodideOpts, _loadSnapshot: hit.arrayBuffer() });
+    mark("snapshot-restored");
+    unpackWheel(pyodide, await appWheel);
+    const probe = pyodide.runPython("from app import snapshot\nsnapshot.probe()");
+    if (probe !== hit.headers.get("x-fp-probe")) throw new Error("its probe result differs from a fresh start's");
+    mark("snapshot-checked");
+    return pyodide;
+  } catch (err) {
+    console.warn("memory snapshot not used:", err);
+    mark("snapshot-rejected");
+    await dropSnapshot(info);
+    return null;
+  }
+}
+
+/** Boot a fresh interpreter, prepare it and store its memory snapshot; returns the snapshot's size. */
+export async function makeSnapshot(pyodideOpts) {
+  const info = await fetchInfo();
+  const appWheel = fetchWheel(info);
+  const pyodide = await loadPyodide({ ...pyodideOpts, _makeSnapshot: true });
+  unpackWheel(pyodide, await appWheel);
+  // imports every worksheet and runs each on its defaults: no user data is ever in a snapshot
+  const probe = pyodide.runPython("from app import snapshot\nsnapshot.prepare()");
+  const bytes = pyodide.makeMemorySnapshot();
+  const cache = await caches.open(SNAPSHOT_CACHE);
+  const key = snapshotKey(info);
+  await cache.put(key, new Response(bytes, { headers: { "Content-Type": "application/octet-stream", "x-fp-probe": probe } }));
+  for (const req of await cache.keys()) if (req.url !== key) await cache.delete(req); // keep only this build's
+  return bytes.length;
+}
+
+// ---- bytecode cache (see app/bytecache.py): compile once per build, not on every start ----
+// Used when there is no memory snapshot yet (the first starts of a build) or it was refused.
+const BYTECODE_CACHE = "fp-bytecode";
+const bytecodeKey = (info) => here(`./__bytecode/${info.app_wheel_sha256}-${info.pyodide}.zip`);
+
+export async function readBytecode(info) {
+  try {
+    const hit = await (await caches.open(BYTECODE_CACHE)).match(bytecodeKey(info));
+    return hit ? await hit.arrayBuffer() : null;
+  } catch (err) {
+    console.warn("bytecode cache not readable:", err);
+    return null;
+  }
+}
+
+export function restoreBytecode(pyodide, buffer, mark) {
+  if (!buffer) return;
+  try {
+    pyodide.unpackArchive(buffer, "zip", { extractDir: "/" });
+    // No importlib.invalidate_caches(): in Python 3.14 it imports importlib.metadata (~45 ms here).
+    // A new sys.path entry has no cached finder, and directory finders re-list on a changed mtime.
+    pyodide.runPython("import sys\nsys.path.insert(0, '/lib/fp-pyc')\nsys.path_importer_cache.pop('/lib/fp-pyc', None)");
+    mark("bytecode-restored");
+  } catch (err) {
+    console.warn("bytecode cache not used:", err);
+  }
+}
+
+/** Compile every module imported since ``__fp_baseline`` was taken and store the archive for this build. */
+export async function saveBytecode(pyodide, info) {
+  const proxy = pyodide.runPython("from app import bytecache\nbytecache.archive(__fp_baseline)");
+  const bytes = proxy.toJs();
+  proxy.destroy();
+  const cache = await caches.open(BYTECODE_CACHE);
+  const key = bytecodeKey(info);
+  await cache.put(key, new Response(bytes, { headers: { "Content-Type": "application/zip" } }));
+  for (const req of await cache.keys()) if (req.url !== key) await cache.delete(req); // keep only this build's
+}
