@@ -1,10 +1,12 @@
 """PNG icons rasterised from web/icon.svg, in pure Python.
 
-Kept written by hand rather than taking an SVG renderer from PyPI: the icon uses a small subset of SVG
-(rect with rx, circle, line, polyline, polygon; solid fills and round-joined strokes), which this draws
-in about 180 lines with the standard library alone. A renderer would add a download and a pinned native
-wheel (or Debian's cairo) to every build for three PNGs that are cached per icon.svg digest anyway, and
-its anti-aliasing would change with its version, which the byte-identical build would then depend on.
+Kept written by hand rather than taking an SVG renderer from PyPI. The icon uses a small subset of SVG
+(rect with rx, circle, line, polyline, polygon; solid fills, round-joined strokes) that this draws with
+the standard library alone, deterministically. cairosvg loads the system's cairo library (on Debian only
+there because Chromium, a test tool, depends on it); the resvg bindings are native wheels per platform.
+Either would make `python3 build.py build` (today stdlib only, run by Debian's python3) depend on .venv
+and a compiled package, for three PNGs that are cached per icon.svg digest anyway, and would redraw the
+icons (different anti-aliasing).
 """
 
 from __future__ import annotations
