@@ -160,13 +160,14 @@ def back_to_back(incoming: StepCircuit, energized: list, v_ll: float) -> Inrush:
 
 @dataclass(frozen=True)
 class StepInrush:
-    """Inrush of one step: ``alone`` energizing it with no other step on (:class:`Inrush`);
+    """Inrush of one step: ``alone`` energizing it with no other step on (:class:`Inrush`;
+    None when the source inductance is not known);
     ``back_to_back`` with every other step already on (None for a one-step bank);
     ``worst`` the larger peak [A]; ``limit_a`` the capacitor's permitted peak
     (:data:`CAPACITOR_INRUSH_MULTIPLE` × I_N) [A]; ``contactor_limit_a`` [A] or None;
     ``within`` worst ≤ every limit given."""
 
-    alone: Inrush
+    alone: Inrush | None
     back_to_back: Inrush | None
     worst: float
     limit_a: float
@@ -177,7 +178,7 @@ class StepInrush:
 @guarded
 def bank_inrush(steps: list, v_ll: float, l_source_h: float, contactor_limit_a=None) -> list:
     """For each step of ``steps`` (:class:`StepCircuit`): inrush alone (from the source,
-    l_source_h [H per phase]) and back to back with all other steps on (the worst case: C₁
+    l_source_h [H per phase]; None when unknown: then only back to back) and back to back with all other steps on (the worst case: C₁
     largest, parallel inductance least), against the capacitor's 100·I_N (IEC 60831-1, from
     memory) and the contactor's peak rating contactor_limit_a [A peak], if given.
     Returns a list of :class:`StepInrush`. IEEE Std 1036 (from memory)."""
@@ -187,10 +188,10 @@ def bank_inrush(steps: list, v_ll: float, l_source_h: float, contactor_limit_a=N
         _pos(contactor_limit_a, "The contactor's peak current rating")
     out = []
     for k, st in enumerate(steps):
-        alone = isolated(st, v_ll, l_source_h)
+        alone = isolated(st, v_ll, l_source_h) if l_source_h is not None else None
         others = [s for j, s in enumerate(steps) if j != k]
         b2b = back_to_back(st, others, v_ll) if others else None
-        worst = max(alone.peak_a, b2b.peak_a if b2b else 0.0)
+        worst = max(alone.peak_a if alone else 0.0, b2b.peak_a if b2b else 0.0)
         lim = CAPACITOR_INRUSH_MULTIPLE * st.i_rated_a
         ok = worst <= lim * (1 + 1e-12) and (contactor_limit_a is None or worst <= contactor_limit_a * (1 + 1e-12))
         out.append(StepInrush(alone, b2b, worst, lim, contactor_limit_a, ok))
@@ -200,8 +201,8 @@ def bank_inrush(steps: list, v_ll: float, l_source_h: float, contactor_limit_a=N
 @guarded
 def limiting_inductance_h(steps: list, v_ll: float, l_source_h: float, peak_limit_a: float | None = None) -> float:
     """Inductance [H per phase] to add in series with every step so that no step's inrush
-    (alone or back to back, :func:`bank_inrush`) exceeds peak_limit_a [A peak] — by default
-    each step's own 100·I_N. 0 when none is needed. Found by bisection on the added inductance
+    (alone or back to back, :func:`bank_inrush`) exceeds its own 100·I_N, nor peak_limit_a
+    [A peak] (a contactor's rating) when given. 0 when none is needed. Found by bisection on the added inductance
     (the peaks fall monotonically as it grows). IEEE Std 1036 (from memory)."""
     if peak_limit_a is not None:
         _pos(peak_limit_a, "The peak current limit")
@@ -209,7 +210,7 @@ def limiting_inductance_h(steps: list, v_ll: float, l_source_h: float, peak_limi
     def excess(add: float) -> float:
         grown = [StepCircuit(s.c_f, s.l_h + add, s.reactor_h, s.i_rated_a) for s in steps]
         res = bank_inrush(grown, v_ll, l_source_h)
-        return max(r.worst / (peak_limit_a if peak_limit_a is not None else r.limit_a) for r in res)
+        return max(r.worst / (r.limit_a if peak_limit_a is None else min(peak_limit_a, r.limit_a)) for r in res)
 
     if excess(0.0) <= 1.0:
         return 0.0

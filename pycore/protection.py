@@ -121,7 +121,7 @@ class Contactor:
 
 
 CAPACITOR_DUTY = "capacitor-duty contactor with damping (pre-insertion) resistors, AC-6b"
-STANDARD_DUTY = "standard contactor, AC-3 / AC-6b rated"
+STANDARD_DUTY = "standard contactor (AC-3 / AC-6b)"
 SOURCE_CONTACTOR = ("Utilization category AC-6b (switching capacitor banks), IEC 60947-4-1 (from memory); "
                     "capacitor-duty contactors for back-to-back steps, standard ones behind a detuning reactor (common practice)")
 
