@@ -137,6 +137,6 @@ def cable_for(needed_a: float, table: CableTable = NEC_CU_75, derating: float = 
                 return CableChoice(r.size, n, n * r.ampacity_a * derating, needed_a, "parallel", r, table.key)
     big = rows[-1]
     raise InputError(
-        f"{needed_a:.0f} A needs more than {MAX_PARALLEL} parallel runs of {big.size}: feed the bank by busbar "
+        f"More than {MAX_PARALLEL} parallel runs of {big.size} would be needed for {needed_a:.0f} A: feed the bank by busbar "
         "or split it into sections with their own feeders."
     )

@@ -122,6 +122,8 @@ def terminal_readings(c_phase, connection: str) -> tuple[float, float, float]:
     a bank with per-phase capacitances c_phase [F], ``connection`` 'delta', 'wye' or 'wye_n'
     (series/parallel capacitance, see :mod:`pycore.bankhealth`)."""
     c = tuple(c_phase)
+    if len(c) != 3:
+        raise InputError("Enter three capacitances, one per phase.")
     if connection == "delta":
         return between_from_delta(*c)
     if connection in ("wye", "wye_n"):
