@@ -17,7 +17,9 @@ closes at a voltage peak with the incoming step discharged; the current then rin
   steps and C₂ the incoming one, L_eq = the incoming step's own inductance plus its partners'
   in parallel. The source is taken as far stiffer in inductance than the steps' connections
   (L_source ≫ L_eq), so the energized steps alone feed the inrush — the assumption of the
-  IEEE 1036 expression; damping is neglected (an upper bound).
+  IEEE 1036 expression; damping is neglected. Where the source is not much stiffer — a
+  low-voltage bank beside its transformer, L_source ≈ 10 × L_eq — the source adds to the
+  first peak: an ngspice transient in the tests shows the expression about 3 % low there.
 
 A detuned step carries its own reactor in series (L = p·X_C/ω, see :mod:`pycore.detuning`),
 which is hundreds of times the wiring's inductance: its inrush is small without any extra
