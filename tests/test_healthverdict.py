@@ -90,3 +90,47 @@ def test_bad_input():
         hv.phase_verdict(95.0, IEEE, 1.0, 5.0)
     with pytest.raises(InputError):
         hv.terminal_ratio((1e-6, 1e-6, 1e-6), "zigzag")
+
+
+def test_uncertainty_between_against_a_brute_force_box_search():
+    # independent check: sample the ±1 % box of the three readings on a fine grid (not only its corners)
+    import itertools as it
+
+    c = (330e-6, 332e-6, 290e-6)
+    for conn, fwd in (("delta", bh.between_from_delta), ("wye", bh.between_from_wye)):
+        m = fwd(*c)
+        got = hv.uncertainty_between(m, conn, 1.0)
+        grid = [-1.0, -0.5, 0.0, 0.5, 1.0]
+        ref = [0.0, 0.0, 0.0]
+        for e in it.product(grid, repeat=3):
+            d = bh.per_phase_from_between([x * (1 + 0.01 * s) for x, s in zip(m, e)], conn)
+            ref = [max(r, 100 * abs(dk / ck - 1)) for r, dk, ck in zip(ref, d, c)]
+        assert got == pytest.approx(ref, rel=1e-6)
+        assert min(got) > 2.0  # the errors add up: more than twice the meter's ±1 %
+
+
+def test_derived_accuracy_changes_the_verdict():
+    # a derived element at −4 % on the IEC band (−5 %): tolerance either way; at −8 %, with a ±1 % meter
+    # the derived value is ±2.3 % and −8 % is still drifted, not replace; at −13 % it is replace only
+    # when the derived uncertainty is small
+    assert hv.phase_verdict(92.0, IEC, 1.0, derived_accuracy_percent=2.3).state == "drifted"
+    assert hv.phase_verdict(87.0, IEC, 1.0).state == "replace"
+    v = hv.phase_verdict(87.5, IEC, 1.0, derived_accuracy_percent=3.1)
+    assert v.state == "drifted" and "carried through" in v.criterion
+
+
+def test_ratio_with_meter_accuracy():
+    # 1.068 passes; with a ±1 % meter the span reaches 1.068 × 1.01/0.99 = 1.090 > 1.08: not sure
+    c = (330e-6, 332e-6, 290e-6)
+    r = hv.terminal_ratio(c, "delta", 1.0)
+    assert r.passes and not r.sure
+    assert hv.terminal_ratio(c, "delta", 0.5).sure  # 1.068 × 1.005/0.995 = 1.0785 ≤ 1.08
+    far = hv.ratio_of_readings((100e-6, 100e-6, 80e-6), 1.0)
+    assert not far.passes and far.sure
+
+
+def test_uncertainty_currents():
+    # wye_n: each phase from its own current and the voltage: ± (a_I + a_V) to first order
+    i = bh.line_currents((200e-6, 200e-6, 200e-6), 400.0, 50.0, "wye_n")
+    u = hv.uncertainty_currents([abs(x) for x in i], 400.0, 50.0, "wye_n", 2.0, 1.0)
+    assert u == pytest.approx([100 * (1.02 / 0.99 - 1)] * 3, rel=1e-6)
