@@ -160,3 +160,17 @@ def simple_payback_years(installed_cost: float, yearly_saving: float) -> float:
     if yearly_saving <= 0:
         return math.inf
     return installed_cost / yearly_saving
+
+
+@guarded
+def net_of_bank_losses(gross_per_month: float, bank_loss_kw: float, hours_per_month: float,
+                       price_per_kwh: float) -> tuple[float, float, float]:
+    """The saving after the bank's own losses: (energy the bank uses [kWh/month], its cost
+    [money/month], net saving [money/month] = gross − cost). bank_loss_kw [kW] while in
+    (:func:`pycore.banklosses.bank_losses`), for hours_per_month [h] at price_per_kwh
+    [money/kWh]; gross_per_month [money/month]. Energy = power × time (arithmetic)."""
+    if bank_loss_kw < 0 or hours_per_month < 0 or price_per_kwh < 0:
+        raise InputError("Losses, hours and price must not be negative.")
+    kwh = bank_loss_kw * hours_per_month
+    cost = kwh * price_per_kwh
+    return kwh, cost, gross_per_month - cost

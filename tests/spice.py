@@ -96,3 +96,46 @@ def impedance_sweep(body: str, f_start: float, f_stop: float, points: int, node:
     returns (frequencies [Hz], [Z…])."""
     freqs, v = ac_sweep(f"Iinj 0 {node} dc 0 ac 1\n{body}", f_start, f_stop, points, [node], spacing)
     return freqs, v[node]
+
+
+def transient(body: str, t_step: float, t_stop: float, vectors: list[str], t_max: float | None = None,
+              timeout: float = 120) -> tuple[list[float], dict[str, list[float]]]:
+    """One transient analysis of the netlist ``body`` (elements and any ``.ic`` lines, no
+    ``.tran``/``.end``) from 0 to ``t_stop`` [s], printing step ``t_step`` [s] and internal step at
+    most ``t_max`` [s] (default ``t_step``), starting from the initial conditions given (``uic``).
+    ``vectors`` are ngspice expressions such as ``v(n1)`` or ``i(vmeas)``; returns
+    (times [s], {vector: [values…]})."""
+    if NGSPICE is None:
+        pytest.skip("ngspice not installed")
+    t_max = t_step if t_max is None else t_max
+    with tempfile.TemporaryDirectory() as tmp:
+        data = os.path.join(tmp, "out.txt")
+        deck = (
+            "* fieldphasor transient reference deck\n"
+            f"{body.strip()}\n"
+            f".tran {t_step!r} {t_stop!r} 0 {t_max!r} uic\n"
+            ".control\n"
+            "set wr_singlescale\n"
+            "set wr_vecnames\n"
+            "option numdgt=12\n"
+            "run\n"
+            f"wrdata {data} {' '.join(vectors)}\n"
+            ".endc\n"
+            ".end\n"
+        )
+        path = os.path.join(tmp, "deck.cir")
+        with open(path, "w") as fh:
+            fh.write(deck)
+        proc = subprocess.run([NGSPICE, "-b", path], capture_output=True, text=True, timeout=timeout)
+        if not os.path.exists(data):
+            raise RuntimeError(f"ngspice failed:\n{proc.stdout}\n{proc.stderr}")
+        with open(data) as fh:
+            lines = [ln.split() for ln in fh if ln.strip()]
+    times: list[float] = []
+    out: dict[str, list[float]] = {v: [] for v in vectors}
+    for ln in lines[1:]:  # first line: vector names; then time and one real column per vector
+        row = [float(x) for x in ln]
+        times.append(row[0])
+        for k, v in enumerate(vectors):
+            out[v].append(row[1 + k])
+    return times, out

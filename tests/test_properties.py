@@ -29,8 +29,8 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 import pycore
-from pycore import (bankhealth, banksteps, busscan, capacitor, capduty, correction, detuning, phasor, savings,
-                    supply, survey)
+from pycore import (bankhealth, banksteps, busscan, cables, capacitor, capduty, correction, detuning, healthverdict,
+                    inrush, orderlist, phasor, savings, supply, survey)
 from pycore.errors import InputError, guarded
 
 SETTINGS = settings(max_examples=200, deadline=None, database=None,
@@ -516,9 +516,70 @@ CASES = {
     "survey.survey_totals": A(st.lists(SLOAD, max_size=4), F),
 }
 
+# Switching, discharge, protection, cable, step plans, bank losses, health verdicts, order list (issue 16).
+STEPC = st.builds(inrush.StepCircuit, F, F, F, F)
+PROFILE = st.sampled_from(["nec", "iec", "csa"])
+VERDICT = st.builds(healthverdict.PhaseVerdict, st.sampled_from(list(healthverdict.STATES)), st.just(""), F, F, st.just(""))
+
+
+def _bank_or_none(args):
+    try:
+        return orderlist.design_bank(*args)
+    except InputError:
+        return None
+
+
+BANK = st.builds(_bank_or_none, st.lists(_bounded(1.0, 200.0), min_size=1, max_size=3).flatmap(
+    lambda q: st.tuples(st.just(q), st.just([(x,) for x in q]), _bounded(200, 800), st.just(50.0), _bounded(200, 800),
+                        st.just(50.0), CONN2.filter(lambda c: c != "star"), st.sampled_from([0.0, 0.07]),
+                        st.sampled_from(["nec", "iec"]), st.none() | _bounded(1e3, 1e5)))).filter(lambda b: b is not None)
+ROWS = BANK.map(orderlist.order_rows)
+
+CASES.update({
+    "inrush.wye_capacitance_f": A(F, F, F),
+    "inrush.source_inductance_h": A(F, F, F),
+    "inrush.connection_inductance_h": A(F, F),
+    "inrush.step_circuit": A(F, F, F, F, F),
+    "inrush.ringing": A(F, F, F),
+    "inrush.isolated": A(STEPC, F, F),
+    "inrush.back_to_back": A(STEPC, st.lists(STEPC, max_size=3), F),
+    "inrush.bank_inrush": A(st.lists(STEPC, max_size=3), F, OPT, OPT),
+    "inrush.limiting_inductance_h": A(st.lists(STEPC, max_size=3), F, OPT, OPT),
+    "discharge.element_capacitance_f": A(F, F, F, CONN2),
+    "discharge.residual_v": A(F, F, F, F),
+    "discharge.time_to_v": A(F, F, F, F),
+    "discharge.discharge_resistor": A(F, F, F, CONN2, st.sampled_from(["nec", "iec", "x"])),
+    "discharge.fast_discharge": A(F, F, F, CONN2, F),
+    "discharge.reclose_delay_s": A(F, F),
+    "protection.fuse": A(F, st.sampled_from(["iec", "nec", "x"])),
+    "protection.breaker": A(F, st.sampled_from(["iec", "nec", "x"])),
+    "protection.contactor": A(F, BOOL, F, F, PROFILE),
+    "cables.check_rows": A(st.lists(st.tuples(st.text(max_size=4), F), max_size=4)),
+    "cables.cable_for": A(F, st.sampled_from(list(cables.TABLES.values())), F),
+    "stepplans.controller_holds": A(LOAD, st.lists(F, max_size=4), F),
+    "stepplans.three_plans": A(F, RATINGS, F, LOAD, F, st.none() | LOAD, st.integers(0, 13)),
+    "stepplans.ck_setting_a": A(F, F, F, F),
+    "banklosses.bank_losses": A(F, F, F, F, F),
+    "savings.net_of_bank_losses": A(F, F, F, F),
+    "healthverdict.phase_verdict": A(F, BAND, F, OPT, OPT),
+    "healthverdict.bank_state": A(st.lists(VERDICT, max_size=3)),
+    "healthverdict.terminal_readings": A(LIST3, CONN),
+    "healthverdict.terminal_ratio": A(LIST3, CONN, F),
+    "healthverdict.ratio_of_readings": A(LIST3, F),
+    "healthverdict.star_point": A(LIST3, F, F),
+    "healthverdict.uncertainty_between": A(LIST3, CONN, F),
+    "healthverdict.uncertainty_currents": A(LIST3, F, F, CONN, F, F),
+    "orderlist.design_bank": A(st.lists(F, max_size=3), st.lists(st.lists(F, max_size=2), max_size=3), F, F, F, F, CONN2,
+                               F, PROFILE, OPT),
+    "orderlist.order_rows": A(BANK),
+    "orderlist.as_table": A(ROWS),
+    "orderlist.as_text": A(ROWS),
+})
+
 # The dynamic-programming searches are the slow ones: fewer examples keep the file quick.
 SLOW = {"banksteps.best_step_count": 40, "banksteps.plan_steps": 100, "busscan.scan": 60, "busscan.find_peak": 100,
-        "busscan.supply_scan": 40}
+        "busscan.supply_scan": 40, "stepplans.three_plans": 30, "orderlist.design_bank": 60, "orderlist.order_rows": 20,
+        "orderlist.as_table": 10, "orderlist.as_text": 10, "inrush.limiting_inductance_h": 80}
 
 
 def _public_functions():
