@@ -4,8 +4,9 @@
 job and report functions below take and give JSON too. None of them raises: any failure comes
 back as ``{"ok": false, ...}`` with a message.
 
-This module only converts JSON to Python and back; worksheets are found and run by
-:mod:`app.registry`.
+This module only converts JSON to Python and back. Worksheets are found and run by
+:mod:`app.registry`; jobs files are :mod:`app.jobfile`, the demo job :mod:`app.demo` and
+reports :mod:`app.report`. Nothing inside ``app/`` imports this module.
 """
 
 from __future__ import annotations
@@ -67,7 +68,7 @@ def report(job_json: str, fmt: str, options_json: str = "{}") -> str:
     """
     try:
         from . import report as _report
-        from .jobs import now_stamp
+        from .jobfile import now_stamp
 
         job = _loads_or(job_json, None)
         if not isinstance(job, dict):
@@ -119,7 +120,7 @@ def validate_jobs(text: str) -> str:
     """Check an export file's text. ``{"ok": true, "jobs": [...], "app_version", "exported"}``
     or ``{"ok": false, "error": message naming the job, entry and field at fault}``."""
     try:
-        from .jobs import validate_export
+        from .jobfile import validate_export
 
         jobs, error = validate_export(text)
         if error:
@@ -137,9 +138,9 @@ def validate_jobs(text: str) -> str:
 def demo_job() -> str:
     """JSON of an invented demo job using the worksheets this build has."""
     try:
-        from . import jobs
+        from . import demo
 
-        return json.dumps(jobs.demo_job(), ensure_ascii=False)
+        return json.dumps(demo.demo_job(), ensure_ascii=False)
     except Exception:
         traceback.print_exc()
         return json.dumps(None)
@@ -153,7 +154,7 @@ def export_jobs(jobs_json: str, options_json: str = "{}") -> str:
     "error", "text", "filename", "mime"}`` (the text is still given, so the shell may offer
     it as a rescue download)."""
     try:
-        from . import jobs as _jobs
+        from . import jobfile as _jobs
 
         data = _loads_or(jobs_json, None)
         if isinstance(data, dict):

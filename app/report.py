@@ -36,7 +36,7 @@ from pycore.numparse import parse_quantity
 
 from . import cautions as _cautions
 from . import fmt as _fmt
-from .jobs import slug
+from .jobfile import slug
 
 FORMATS = {"html": ("text/html", "html"), "text": ("text/plain", "txt"), "csv": ("text/csv", "csv")}
 CSV_COLUMNS = ["job", "entry", "worksheet", "kind", "name", "label", "value", "unit", "display", "method", "source"]
