@@ -96,6 +96,22 @@ def test_the_same_worksheet_object_before_and_after_the_catalog_loads():
     assert lazy == "savings" and same is True and ids == list(registry.sheets())
 
 
+def test_jobs_and_reports_never_load_the_bridge():
+    """Inside Python everything runs through the registry; the JSON door stays shut."""
+    loaded = _fresh_python(
+        "import json, sys\n"
+        "from app import demo, jobfile, registry, report, snapshot\n"
+        "job = demo.demo_job()\n"
+        "for fmt in ('html', 'text', 'csv'):\n"
+        "    report.render(job, fmt, app_version='0', date='2000-01-01')\n"
+        "jobfile.validate_export(jobfile.make_export([job], '0', '2000-01-01T00:00:00Z'))\n"
+        "snapshot.prepare()\n"
+        "print(json.dumps(sorted(sys.modules)))\n"
+    )
+    assert "app.registry" in loaded and "app.report.gather" in loaded
+    assert "app.bridge" not in loaded
+
+
 # ---------------------------------------------------------------------------------------
 # what a computation read
 
