@@ -118,6 +118,10 @@ def test_relative_imports_are_resolved():
     assert "app.fmt" in graph["app.sheet"]  # from . import fmt
     assert "pycore.errors" in graph["app.sheet"]  # from pycore.errors import InputError
     assert any("app.sheet" in deps for m, deps in graph.items() if m.startswith("app.sheets."))
+    # imports inside functions count: the bridge imports these only when a job or report is asked for
+    assert {"app.report", "app.jobfile", "app.demo"} <= graph["app.bridge"]
+    # two dots from a sub-package module: app/report/gather.py's `from .. import registry`
+    assert "app.registry" in graph["app.report.gather"]
 
 
 def test_find_cycles_sees_a_cycle():
