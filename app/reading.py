@@ -20,32 +20,44 @@ DIGITS = 6  # significant figures of a value shown as used
 class Reading:
     """One field as the computation read it.
 
-    ``text``: the text entered (or the field's default); ``value``: the value used, in the
-    field's own ``unit`` (float for a number, complex, list of floats, the choice's value,
-    the text, or the table's rows), None when blank or not usable; ``ok``: False when the
-    field was refused; ``cells``: for a table, the non-empty rows as entered.
+    ``field``: the :class:`app.sheet.Field`; ``text``: the text entered (or the field's default);
+    ``value``: the value used, in the field's own unit (float for a number, complex, list of
+    floats, the choice's value, the text, or the table's rows), None when blank or not usable;
+    ``ok``: False when the field was refused; ``cells``: for a table, the non-empty rows as
+    entered. :attr:`shown` (the value for people) is worked out only when a report asks.
     """
 
-    name: str
-    kind: str
-    unit: str
+    field: Any
     text: str
     value: Any = None
     ok: bool = True
-    shown: str = ""
     cells: Optional[list] = None
 
-    def to_json(self, label: str = "", status: str = USED) -> dict:
+    @property
+    def name(self) -> str:
+        return self.field.name
+
+    @property
+    def unit(self) -> str:
+        return self.field.unit
+
+    @property
+    def shown(self) -> str:
+        """The value used, for people: '480 V' for '0.48 kV' typed in a V field."""
+        return describe(self.field, self.value, self.text, self.cells)
+
+    def to_json(self, status: str = USED) -> dict:
         """A JSON-safe record: ``{"name", "label", "unit", "kind", "text", "status", "value",
         "shown"}`` (+ ``"rows"`` for a table). ``status`` is 'used', 'invalid' or 'unused'."""
+        f = self.field
         value = self.value if status == USED else None
         if isinstance(value, complex):
             value = [value.real, value.imag]
-        elif self.kind == "table":
+        elif f.kind == "table":
             value = None
-        d = {"name": self.name, "label": label, "unit": self.unit, "kind": self.kind, "text": self.text,
+        d = {"name": f.name, "label": f.label, "unit": f.unit, "kind": f.kind, "text": self.text,
              "status": status, "value": value, "shown": self.shown if status == USED else shown_for(status, self.text)}
-        if self.kind == "table":
+        if f.kind == "table":
             d["rows"] = self.cells
         return d
 

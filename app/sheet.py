@@ -17,7 +17,7 @@ from pycore.errors import InputError
 from pycore.numparse import parse_quantity
 
 from . import fmt
-from .reading import INVALID, UNUSED, USED, Reading, describe
+from .reading import INVALID, UNUSED, USED, Reading
 
 # Field kinds the shell knows how to render.
 KINDS = ("number", "complex", "choice", "table", "text", "list")
@@ -136,11 +136,9 @@ class Inputs:
 
     def _record(self, name: str, value: Any, cells: Optional[list] = None) -> Any:
         """Note what a reader read from a field (the last read wins) and pass the value on."""
-        f = self._field(name)
-        text = self.text_of(name)
         ok = name not in self.errors
         value = value if ok else None
-        self.echo[name] = Reading(f.name, f.kind, f.unit, text, value, ok, describe(f, value, text, cells), cells)
+        self.echo[name] = Reading(self._field(name), self.text_of(name), value, ok, cells)
         return value
 
     def readings(self) -> list[tuple[Field, Reading, str]]:
@@ -154,7 +152,7 @@ class Inputs:
                     continue
             except (KeyError, TypeError):  # a show_when naming no field: list the field
                 pass
-            r = read.get(f.name) or Reading(f.name, f.kind, f.unit, self.text_of(f.name), ok=False)
+            r = read.get(f.name) or Reading(f, self.text_of(f.name), ok=False)
             status = INVALID if f.name in self.errors or not r.ok and f.name in read else USED if f.name in read else UNUSED
             out.append((f, r, status))
         self.echo = read
@@ -529,5 +527,5 @@ class Worksheet:
         if general_error:
             res["error"] = general_error
         if echo:
-            res["inputs"] = [r.to_json(f.label, status) for f, r, status in ins.readings()]
+            res["inputs"] = [r.to_json(status) for _, r, status in ins.readings()]
         return res
