@@ -153,7 +153,10 @@ class Inputs:
             except (KeyError, TypeError):  # a show_when naming no field: list the field
                 pass
             r = read.get(f.name) or Reading(f, self.text_of(f.name), ok=False)
-            status = INVALID if f.name in self.errors or not r.ok and f.name in read else USED if f.name in read else UNUSED
+            if f.name in self.errors or (f.name in read and not r.ok):
+                status = INVALID
+            else:
+                status = USED if f.name in read else UNUSED
             out.append((f, r, status))
         self.echo = read
         return out
