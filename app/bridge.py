@@ -1,96 +1,43 @@
-"""The bridge contract: JSON in, JSON out, for the worker, the shell and the tests.
+"""The bridge contract: JSON in, JSON out, for the worker, the build and outside tools.
 
-``catalog()`` lists the worksheets; ``compute(worksheet_id, inputs_json)`` computes one.
-Neither raises: any failure comes back as ``{"ok": false, ...}`` with a message.
+``catalog()`` lists the worksheets; ``compute(worksheet_id, inputs_json)`` computes one; the
+job and report functions below take and give JSON too. None of them raises: any failure comes
+back as ``{"ok": false, ...}`` with a message.
+
+This module only converts JSON to Python and back. Worksheets are found and run by
+:mod:`app.registry`; jobs files are :mod:`app.jobfile`, the demo job :mod:`app.demo` and
+reports :mod:`app.report`. Nothing inside ``app/`` imports this module.
 """
 
 from __future__ import annotations
 
-import importlib
 import json
-import pkgutil
 import traceback
 
-from . import __version__
-from .sheet import Worksheet
-
-_SHEETS: dict[str, Worksheet] = {}
-
-
-def _load() -> dict[str, Worksheet]:
-    if not _SHEETS:
-        from . import sheets
-
-        found = []
-        for info in pkgutil.iter_modules(sheets.__path__):
-            mod = importlib.import_module(f"{sheets.__name__}.{info.name}")
-            sheet = getattr(mod, "SHEET", None)
-            if isinstance(sheet, Worksheet):
-                found.append(sheet)
-        for s in sorted(found, key=lambda s: (s.order, s.id)):
-            _SHEETS[s.id] = s
-    return _SHEETS
-
-
-def sheet(worksheet_id: str) -> Worksheet | None:
-    """One worksheet by id, importing only its own module (``app/sheets/<id>.py``) when the
-    catalog has not been loaded: the first result needs only the worksheet on screen."""
-    if worksheet_id in _SHEETS:
-        return _SHEETS[worksheet_id]
-    if not _SHEETS and isinstance(worksheet_id, str) and worksheet_id.isidentifier() and not worksheet_id.startswith("_"):
-        try:
-            mod = importlib.import_module(f"{__package__}.sheets.{worksheet_id}")
-        except ImportError:
-            return None
-        found = getattr(mod, "SHEET", None)
-        if isinstance(found, Worksheet) and found.id == worksheet_id:
-            return found
-        return None
-    return _load().get(worksheet_id)
-
-
-def sheets() -> dict[str, Worksheet]:
-    """All worksheets by id, in display order."""
-    return _load()
+from . import __version__, registry
+from .registry import sheet, sheets  # noqa: F401  (outside tools look worksheets up here too)
 
 
 def catalog() -> str:
     """JSON list of worksheet declarations (see DESIGN §1)."""
-    return json.dumps([s.declaration() for s in _load().values()], ensure_ascii=False)
+    return json.dumps([s.declaration() for s in registry.sheets().values()], ensure_ascii=False)
 
 
 def compute(worksheet_id: str, inputs: str) -> str:
     """Compute one worksheet from a JSON object of field name → typed text. Never raises."""
     try:
-        ws = sheet(worksheet_id)
-        if ws is None:
-            return json.dumps(_failure(f"Unknown worksheet '{worksheet_id}'."), ensure_ascii=False)
+        if registry.sheet(worksheet_id) is None:
+            return json.dumps(registry.failure(f"Unknown worksheet '{worksheet_id}'."), ensure_ascii=False)
         try:
             raw = json.loads(inputs) if isinstance(inputs, str) else dict(inputs)
         except ValueError:
-            return json.dumps(_failure("The inputs could not be read."), ensure_ascii=False)
+            raw = None
         if not isinstance(raw, dict):
-            return json.dumps(_failure("The inputs could not be read."), ensure_ascii=False)
-        return json.dumps(ws.run(raw), ensure_ascii=False, allow_nan=False)
+            return json.dumps(registry.failure("The inputs could not be read."), ensure_ascii=False)
+        return json.dumps(registry.run(worksheet_id, raw), ensure_ascii=False, allow_nan=False)
     except Exception as exc:  # the contract: never raise across the bridge
         traceback.print_exc()
-        return json.dumps(
-            _failure(f"Internal error ({type(exc).__name__}). Please report it with the inputs used."),
-            ensure_ascii=False,
-        )
-
-
-def _failure(message: str) -> dict:
-    return {
-        "ok": False,
-        "results": [],
-        "tables": [],
-        "field_errors": {},
-        "warnings": [],
-        "cautions": [],
-        "figures": [],
-        "error": message,
-    }
+        return json.dumps(registry.failure(registry.INTERNAL_ERROR.format(type(exc).__name__)), ensure_ascii=False)
 
 
 def version() -> str:
@@ -99,7 +46,7 @@ def version() -> str:
 
 
 # ---------------------------------------------------------------------------------------
-# Jobs and reports (issue 5). JSON strings in and out; none of these raises.
+# Jobs and reports. JSON strings in and out; none of these raises.
 
 
 def _loads_or(text, default):
@@ -121,7 +68,7 @@ def report(job_json: str, fmt: str, options_json: str = "{}") -> str:
     """
     try:
         from . import report as _report
-        from .jobs import now_stamp
+        from .jobfile import now_stamp
 
         job = _loads_or(job_json, None)
         if not isinstance(job, dict):
@@ -173,7 +120,7 @@ def validate_jobs(text: str) -> str:
     """Check an export file's text. ``{"ok": true, "jobs": [...], "app_version", "exported"}``
     or ``{"ok": false, "error": message naming the job, entry and field at fault}``."""
     try:
-        from .jobs import validate_export
+        from .jobfile import validate_export
 
         jobs, error = validate_export(text)
         if error:
@@ -191,9 +138,9 @@ def validate_jobs(text: str) -> str:
 def demo_job() -> str:
     """JSON of an invented demo job using the worksheets this build has."""
     try:
-        from . import jobs
+        from . import demo
 
-        return json.dumps(jobs.demo_job(), ensure_ascii=False)
+        return json.dumps(demo.demo_job(), ensure_ascii=False)
     except Exception:
         traceback.print_exc()
         return json.dumps(None)
@@ -207,7 +154,7 @@ def export_jobs(jobs_json: str, options_json: str = "{}") -> str:
     "error", "text", "filename", "mime"}`` (the text is still given, so the shell may offer
     it as a rescue download)."""
     try:
-        from . import jobs as _jobs
+        from . import jobfile as _jobs
 
         data = _loads_or(jobs_json, None)
         if isinstance(data, dict):

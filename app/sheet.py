@@ -1,8 +1,8 @@
 """The worksheet framework: field declarations, input reading with messages, and outcomes.
 
 A worksheet module in :mod:`app.sheets` defines ``SHEET = Worksheet(...)``. The shell
-renders its fields from :meth:`Worksheet.declaration`; :func:`app.bridge.compute`
-calls :meth:`Worksheet.run` with the text the user typed.
+renders its fields from :meth:`Worksheet.declaration`; :func:`app.registry.run` (behind
+:func:`app.bridge.compute`) calls :meth:`Worksheet.run` with the text the user typed.
 """
 
 from __future__ import annotations
@@ -17,6 +17,7 @@ from pycore.errors import InputError
 from pycore.numparse import parse_quantity
 
 from . import fmt
+from .reading import INVALID, UNUSED, USED, Reading
 
 # Field kinds the shell knows how to render.
 KINDS = ("number", "complex", "choice", "table", "text", "list")
@@ -131,7 +132,34 @@ class Inputs:
         self.sheet = sheet
         self.raw = {k: ("" if v is None else v) for k, v in raw.items()}
         self.errors: dict[str, str] = {}
-        self.echo: list[tuple[Field, str]] = []  # (field, shown text) for reports
+        self.echo: dict[str, Reading] = {}  # what each typed reader read, for reports
+
+    def _record(self, name: str, value: Any, cells: Optional[list] = None) -> Any:
+        """Note what a reader read from a field (the last read wins) and pass the value on."""
+        ok = name not in self.errors
+        value = value if ok else None
+        self.echo[name] = Reading(self._field(name), self.text_of(name), value, ok, cells)
+        return value
+
+    def readings(self) -> list[tuple[Field, Reading, str]]:
+        """``(field, reading, status)`` for each visible field in declaration order; status is
+        'used', 'invalid' (a message is on the field) or 'unused' (the computation never read it)."""
+        read = dict(self.echo)  # deciding visibility below reads choices too; those are not uses
+        out = []
+        for f in self.sheet.fields:
+            try:
+                if not self.visible(f.name):
+                    continue
+            except (KeyError, TypeError):  # a show_when naming no field: list the field
+                pass
+            r = read.get(f.name) or Reading(f, self.text_of(f.name), ok=False)
+            if f.name in self.errors or (f.name in read and not r.ok):
+                status = INVALID
+            else:
+                status = USED if f.name in read else UNUSED
+            out.append((f, r, status))
+        self.echo = read
+        return out
 
     # -- helpers
     def _field(self, name: str) -> Field:
@@ -171,7 +199,7 @@ class Inputs:
         return v
 
     # -- typed readers; each returns None (and records a message) when the value is unusable
-    def num(self, name: str) -> Optional[float]:
+    def _num(self, name: str) -> Optional[float]:
         """The field's value in its own unit, range-checked; None if empty-and-optional or bad."""
         f = self._field(name)
         text = self.text_of(name).strip()
@@ -189,7 +217,7 @@ class Inputs:
             return None
         return self._check_range(f, v, name)
 
-    def cplx(self, name: str) -> Optional[complex]:
+    def _cplx(self, name: str) -> Optional[complex]:
         f = self._field(name)
         text = self.text_of(name).strip()
         if not text:
@@ -209,18 +237,37 @@ class Inputs:
             return None
         return z
 
+    def num(self, name: str) -> Optional[float]:
+        """The field's value in its own unit, range-checked; None if empty-and-optional or bad."""
+        return self._record(name, self._num(name))
+
+    def cplx(self, name: str) -> Optional[complex]:
+        return self._record(name, self._cplx(name))
+
+    def numbers(self, name: str) -> Optional[list[float]]:
+        """A ``list`` field's numbers (see :meth:`_numbers`)."""
+        return self._record(name, self._numbers(name))
+
+    def rows(self, name: str) -> Optional[list[dict]]:
+        """A ``table`` field's rows (see :meth:`_rows`)."""
+        cells: list = []
+        return self._record(name, self._rows(name, cells), cells)
+
     def choice(self, name: str) -> str:
         f = self._field(name)
         v = self.text_of(name)
         allowed = [o[0] for o in f.options]
         if v not in allowed:
-            return f.default if f.default in allowed else allowed[0]
+            v = f.default if f.default in allowed else allowed[0]
+        self._record(name, v)
         return v
 
     def text(self, name: str) -> str:
+        if name not in self.echo:  # a typed reader's record of the same field says more
+            self._record(name, self.text_of(name))
         return self.text_of(name)
 
-    def numbers(self, name: str) -> Optional[list[float]]:
+    def _numbers(self, name: str) -> Optional[list[float]]:
         """A ``list`` field: numbers separated by commas, semicolons, spaces or new lines,
         each with an optional unit of the field's family. A comma is a separator here, so
         decimals use a dot in lists (a lone comma between digits with no space is read as
@@ -266,7 +313,7 @@ class Inputs:
             return None
         return out
 
-    def rows(self, name: str) -> Optional[list[dict]]:
+    def _rows(self, name: str, entered: list) -> Optional[list[dict]]:
         """A ``table`` field: a JSON list of rows (lists of cell texts, in column order) →
         list of dicts keyed by column name, numbers parsed in the column's unit. Fully
         empty rows are skipped. A message names the row and column at fault."""
@@ -298,6 +345,7 @@ class Inputs:
             cells = ["" if c is None else str(c) for c in cells]
             if all(not c.strip() for c in cells):
                 continue
+            entered.append(cells[: len(f.columns)])
             rec: dict[str, Any] = {"_row": r}
             for c, cell in zip(f.columns, cells):
                 cell = cell.strip()
@@ -448,7 +496,12 @@ class Worksheet:
             "references": list(self.references),
         }
 
-    def run(self, raw: dict) -> dict:
+    def run(self, raw: dict, echo: bool = False) -> dict:
+        """Compute from field name → typed text: the outcome dict of the bridge contract.
+
+        With ``echo`` the outcome also holds ``"inputs"``: for each visible field, what the
+        computation read (:meth:`app.reading.Reading.to_json`), so a report shows the values
+        actually used, range-checked, and marks refused or unread fields as such."""
         ins = Inputs(self, raw)
         out = Outcome()
         for c in self.cautions:
@@ -476,4 +529,6 @@ class Worksheet:
         }
         if general_error:
             res["error"] = general_error
+        if echo:
+            res["inputs"] = [r.to_json(status) for _, r, status in ins.readings()]
         return res

@@ -15,26 +15,32 @@ each worksheet on its own default inputs, so nothing a user typed is ever in a s
 from __future__ import annotations
 
 import hashlib
+import json
 
-from . import bridge
+from . import __version__, registry
 
 #: the worksheet whose default result proves a restored interpreter computes as a fresh one
 PROBE_SHEET = "correction"
 
 
 def probe() -> str:
-    """SHA-256 (hex) of the probe worksheet's result on its default inputs."""
-    return hashlib.sha256(bridge.compute(PROBE_SHEET, "{}").encode("utf-8")).hexdigest()
+    """SHA-256 (hex) of the probe worksheet's result on its default inputs, as the JSON text
+    the bridge gives for it."""
+    text = json.dumps(registry.run(PROBE_SHEET, {}), ensure_ascii=False, allow_nan=False)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
 def prepare() -> str:
     """Import every worksheet and report path and run each once on its defaults, so a snapshot
     holds them compiled and initialised. Returns :func:`probe` for the snapshot's label."""
-    for sheet_id in bridge.sheets():
-        bridge.compute(sheet_id, "{}")
-    demo = bridge.demo_job()
+    from . import demo, jobfile, report
+
+    for sheet_id in registry.sheets():
+        registry.run(sheet_id, {})
+    job = demo.demo_job()
     for fmt in ("html", "text", "csv"):
-        bridge.report(demo, fmt, '{"date": "2000-01-01"}')
-    bridge.export_jobs(demo, '{"exported": "2000-01-01T00:00:00Z"}')
-    bridge.validate_jobs("{}")
+        report.render(job, fmt, app_version=__version__, date="2000-01-01")
+    text = jobfile.make_export([job], __version__, "2000-01-01T00:00:00Z")
+    jobfile.validate_export(text)
+    jobfile.validate_export("{}")
     return probe()

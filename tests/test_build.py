@@ -105,7 +105,8 @@ def test_snapshot_prepare_runs_every_worksheet_and_returns_the_probe():
 
     for sheet_id in bridge.sheets():
         assert f"app.sheets.{sheet_id}" in loaded, sheet_id
-    assert "app.report" in loaded and "app.jobs" in loaded
+    for mod in ("app.report", "app.report.html_out", "app.report.text_out", "app.report.csv_out", "app.jobfile", "app.demo"):
+        assert mod in loaded, mod
     # the label is SHA-256 of the probe worksheet's default result (hashlib as the reference)
     expected = hashlib.sha256(bridge.compute(snapshot.PROBE_SHEET, "{}").encode("utf-8")).hexdigest()
     assert label == expected

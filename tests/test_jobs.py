@@ -16,7 +16,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import app.bridge as bridge
-from app import jobs
+from app import demo, registry
+from app import jobfile as jobs
 
 STAMP = "2025-03-14T09:26:53.589Z"  # the shape toISOString() gives (ECMA-262, from memory)
 
@@ -297,43 +298,44 @@ def test_bom_and_trailing_space_accepted():
 
 
 def test_demo_job_is_valid_and_uses_several_worksheets():
-    demo = bridge_demo()
-    assert jobs.check_job(demo) is None
+    job = bridge_demo()
+    assert jobs.check_job(job) is None
     n_sheets = len(bridge.sheets())
-    assert 3 <= len(demo["entries"]) <= 5
-    used = {e["worksheet"] for e in demo["entries"]}
+    assert 3 <= len(job["entries"]) <= 5
+    used = {e["worksheet"] for e in job["entries"]}
     assert len(used) >= min(3, n_sheets)
-    assert len({e["id"] for e in demo["entries"]}) == len(demo["entries"])
-    for e in demo["entries"]:
+    assert len({e["id"] for e in job["entries"]}) == len(job["entries"])
+    for e in job["entries"]:
         res = json.loads(bridge.compute(e["worksheet"], json.dumps(e["inputs"])))
         assert res["ok"], (e["name"], res.get("field_errors"), res.get("error"))
         assert res["results"]
 
 
-def test_demo_job_with_only_one_worksheet_present(monkeypatch):
-    only = {"impedance": bridge.sheets()["impedance"]}
-    monkeypatch.setattr(bridge, "sheets", lambda: only)
-    demo = jobs.demo_job()
-    assert len(demo["entries"]) == 3
-    assert {e["worksheet"] for e in demo["entries"]} == {"impedance"}
-    assert jobs.check_job(demo, known=only) is None
+def test_demo_job_with_only_one_worksheet_present():
+    # a build holding only the impedance worksheet: the demo fills up with its three planned entries
+    only = {"impedance": registry.sheets()["impedance"]}
+    job = demo.demo_job(known=only)
+    assert len(job["entries"]) == 3
+    assert {e["worksheet"] for e in job["entries"]} == {"impedance"}
+    assert jobs.check_job(job, known=only) is None
+    # ... and a file holding it is refused by a build that lacks that worksheet
+    assert "not in this version" in jobs.check_job(job, known={"survey": registry.sheets()["survey"]})
 
 
-def test_demo_job_skips_missing_worksheets(monkeypatch):
+def test_demo_job_skips_missing_worksheets():
     # a build with none of the worksheets the plan names still gives a valid, empty job
-    monkeypatch.setattr(bridge, "sheets", lambda: {})
-    demo = jobs.demo_job()
-    assert demo["entries"] == [] and jobs.check_job(demo, known={}) is None
+    job = demo.demo_job(known={})
+    assert job["entries"] == [] and jobs.check_job(job, known={}) is None
 
 
 def test_demo_entries_use_the_invented_plant_not_fallbacks():
     """Each demo entry carries its planned inputs (fields the worksheet has), so the demo's
     numbers agree with its notes: if a worksheet changes so the plan no longer computes,
     the demo would silently fall back to that worksheet's defaults; this catches it."""
-    demo = bridge_demo()
-    plan = {(ws, name): ov for ws, name, ov in jobs.DEMO_PLAN}
-    for e in demo["entries"]:
+    job = bridge_demo()
+    plan = {(ws, name): ov for ws, name, ov in demo.DEMO_PLAN}
+    for e in job["entries"]:
         fields = {f.name for f in bridge.sheets()[e["worksheet"]].fields}
         wanted = {k: v for k, v in plan[(e["worksheet"], e["name"])].items() if k in fields}
         assert {k: e["inputs"][k] for k in wanted} == wanted, e["name"]
-    assert "invented" in demo["site"].lower() and "DEMO DATA" in demo["notes"]
+    assert "invented" in job["site"].lower() and "DEMO DATA" in job["notes"]

@@ -265,6 +265,55 @@ def test_html_input_in_another_prefix_is_shown_in_the_field_unit(html_doc):
     assert any(r[:3] == ["Frequency [Hz]", "0.05 kHz", "50 Hz"] for r in doc.rows if r and len(r) == 3)
 
 
+def _used_job(inputs):
+    return {"id": "j-used", "site": "Used values", "date": "", "notes": "", "created": STAMP, "updated": STAMP,
+            "entries": [{"id": "u1", "name": "Bus 1", "worksheet": "correction", "inputs": inputs, "updated": STAMP}]}
+
+
+V_LABEL = "System voltage (line-to-line) [V]"
+F_LABEL = "Frequency [Hz]"
+
+
+def test_report_shows_the_value_the_computation_used():
+    """'0.48 kV' typed in a volts field is used as 480 V (SI prefix kilo = 10³), and the report
+    says so in every format: HTML and text beside the entry, CSV as the machine value."""
+    job = _used_job({"v_ll": "0.48 kV"})
+    doc = Doc(report.render(job, "html", app_version="0.1.0", date=DATE))
+    assert [V_LABEL, "0.48 kV", "480 V"] in doc.rows
+    text = report.render(job, "text", app_version="0.1.0", date=DATE)
+    assert f"     {V_LABEL}: 0.48 kV  -> 480 V\n" in text
+    rows = list(csv.reader(io.StringIO(report.render(job, "csv", app_version="0.1.0", date=DATE, bom=False))))
+    v = [r for r in rows if r[3] == "input" and r[4] == "v_ll"]
+    assert len(v) == 1 and float(v[0][6]) == 480.0 and v[0][7] == "V" and v[0][8] == "0.48 kV"
+
+
+@pytest.mark.parametrize("typed", ["1 kHz", "0.01 kHz"])  # 1000 Hz and 10 Hz: outside the field's 16.7–400 Hz
+def test_report_marks_an_out_of_range_value_invalid_not_used(typed):
+    """A value the range check refuses was not used: the report must not echo it as if it were
+    (1 kHz would otherwise read '1000 Hz' in the 'value used' column)."""
+    job = _used_job({"v_ll": "0.48 kV", "f": typed})
+    out = json.loads(bridge.compute("correction", json.dumps(job["entries"][0]["inputs"])))
+    assert out["ok"] is False and "f" in out["field_errors"]
+    doc = Doc(report.render(job, "html", app_version="0.1.0", date=DATE))
+    assert [F_LABEL, typed, "(invalid)"] in doc.rows
+    assert not any(r[:1] == [F_LABEL] and "Hz" in r[-1] for r in doc.rows if len(r) == 3)
+    assert f"{F_LABEL.split(' [')[0]}: {out['field_errors']['f']}" in doc.texts["li"]
+    text = report.render(job, "text", app_version="0.1.0", date=DATE)
+    assert f"     {F_LABEL}: {typed}  -> (invalid)\n" in text
+    rows = list(csv.reader(io.StringIO(report.render(job, "csv", app_version="0.1.0", date=DATE, bom=False))))
+    f_row = [r for r in rows if r[3] == "input" and r[4] == "f"]
+    assert len(f_row) == 1 and f_row[0][6] == typed  # the text entered, not a number taken as used
+
+
+def test_report_marks_a_field_the_computation_never_read():
+    # a bad system voltage stops the computation before it reads the power factor's sense
+    job = _used_job({"v_ll": "abc"})
+    doc = Doc(report.render(job, "html", app_version="0.1.0", date=DATE))
+    assert any(r[0] == "The power factor is" and r[2] == "(not used)" for r in doc.rows if len(r) == 3), \
+        [r for r in doc.rows if len(r) == 3]
+    assert [V_LABEL, "abc", "(invalid)"] in doc.rows
+
+
 def test_html_one_entry(job):
     target = job["entries"][1]
     text = report.render(job, "html", app_version="0.1.0", date=DATE, entry_id=target["id"])

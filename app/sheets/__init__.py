@@ -1,1 +1,1 @@
-"""One module per worksheet; each defines ``SHEET``. Discovered by :mod:`app.bridge`."""
+"""One module per worksheet; each defines ``SHEET``. Discovered by :mod:`app.registry`."""
