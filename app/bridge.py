@@ -55,8 +55,18 @@ def sheets() -> dict[str, Worksheet]:
 
 
 def catalog() -> str:
-    """JSON list of worksheet declarations (see DESIGN §1)."""
-    return json.dumps([s.declaration() for s in _load().values()], ensure_ascii=False)
+    """JSON list of worksheet declarations (see DESIGN §1), each with its drawn form (``"form"``,
+    :mod:`app.formview`); the one the app opens on carries ``"opening": true``."""
+    from . import OPENING_SHEET, formview
+
+    out = []
+    for s in _load().values():
+        d = s.declaration()
+        d["form"] = formview.form_tree(s)
+        if s.id == OPENING_SHEET:
+            d["opening"] = True
+        out.append(d)
+    return json.dumps(out, ensure_ascii=False)
 
 
 def compute(worksheet_id: str, inputs: str) -> str:

@@ -16,10 +16,10 @@ from __future__ import annotations
 
 import hashlib
 
-from . import bridge
+from . import OPENING_SHEET, bridge
 
 #: the worksheet whose default result proves a restored interpreter computes as a fresh one
-PROBE_SHEET = "correction"
+PROBE_SHEET = OPENING_SHEET
 
 
 def probe() -> str:

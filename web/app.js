@@ -13,7 +13,6 @@ const engine = new Engine("./worker.js", { name: workerName(location.search) },
 window.__fpBoot = window.__fpBoot || { adopted: true }; // boot.js, if it runs late, starts nothing
 const $ = (id) => document.getElementById(id);
 const DEBOUNCE_MS = 120;
-const DEFAULT_SHEET = "correction";
 
 const state = {
   catalog: [],
@@ -148,7 +147,7 @@ document.addEventListener("visibilitychange", () => { if (document.visibilitySta
 
 // ---- worksheets --------------------------------------------------------------------------------
 async function openSheet(id, { inputs = null, target = null } = {}) {
-  const decl = state.catalog.find((s) => s.id === id) || state.catalog.find((s) => s.id === DEFAULT_SHEET) || state.catalog[0];
+  const decl = state.catalog.find((s) => s.id === id) || opening();
   if (state.sheet) await saveNow();
   state.sheet = decl;
   state.target = target;
@@ -206,7 +205,7 @@ function takeStaticForm(decl) {
   delete form.dataset.static;
   window.fieldphasor.perf.staticForm = decl.id; // the first paint showed this form (the benchmark reads it)
   for (const f of decl.fields) {
-    if (f.kind === "choice" && f.options.length <= 4) {
+    if (f.widget === "buttons") {
       const c = form.querySelector(`input[name="in-${f.name}"]:checked`);
       if (c && c.value !== f.default) out.values[f.name] = c.value;
     } else {
@@ -217,6 +216,11 @@ function takeStaticForm(decl) {
   const a = document.activeElement;
   if (a && form.contains(a) && a.id) out.focus = { id: a.id, caret: "selectionStart" in a ? a.selectionStart : null };
   return out;
+}
+
+/** The worksheet the app opens on (flagged in the catalog; named once, in app/__init__.py). */
+function opening() {
+  return state.catalog.find((s) => s.opening) || state.catalog[0];
 }
 
 function followLink(link) {
@@ -251,10 +255,10 @@ async function start() {
     await openSheet(entry.worksheet, { inputs: entry.inputs, target: { jobId: e[1], entryId: e[2] } });
   } else if (location.hash.startsWith("#/job")) {
     const j = location.hash.match(/^#\/job\/([\w-]+)/);
-    await openSheet(DEFAULT_SHEET);
+    await openSheet(opening().id);
     await jobs.show(j ? j[1] : null);
   } else {
-    await openSheet(m ? m[1] : DEFAULT_SHEET);
+    await openSheet(m ? m[1] : opening().id);
   }
   window.fieldphasor.perf.inputReady = performance.now();
   document.documentElement.dataset.inputReady = "1";

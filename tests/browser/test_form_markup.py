@@ -1,0 +1,171 @@
+"""One source of form markup: the first-paint form and the live form are the same DOM.
+
+app/formview.py draws each worksheet's form as a markup tree shipped in the catalog. The build
+serialises it to HTML (index.html's first sections); the shell (web/render.js) instantiates it,
+applies the values and toggles fields by its generic copy of the show_when rule. Here both are
+put side by side in Chromium for every worksheet: the Python-serialised HTML parsed by DOMParser
+against the live form rendered into a detached element, compared element by element (tag, every
+attribute, text, and each control's value and checked state). Table rows are the shell's alone
+(drawn from the column declarations), so the live rows and row count are taken out first; the
+static side must hold none.
+"""
+
+from __future__ import annotations
+
+import itertools
+import json
+
+from app import OPENING_SHEET, bridge, formview
+from app.sheet import Inputs
+
+from .conftest import PHONE, guarded_page
+
+CATALOG = {d["id"]: d for d in json.loads(bridge.catalog())}
+# An empty same-origin page: the shell's modules load, the engine does not start.
+BLANK = "__form_markup_check.html"
+
+CANON = """
+const canon = (el) => {
+  const attrs = [...el.attributes].map((a) => [a.name, a.value]).sort();
+  const state = {};
+  if (el instanceof HTMLInputElement) Object.assign(state, { value: el.value, checked: el.checked });
+  if (el instanceof HTMLSelectElement || el instanceof HTMLTextAreaElement) state.value = el.value;
+  const kids = [];
+  for (const c of el.childNodes) {
+    if (c.nodeType === Node.ELEMENT_NODE) kids.push(canon(c));
+    else if (c.nodeType === Node.TEXT_NODE) kids.push(c.data);
+  }
+  return [el.localName, attrs, state, kids];
+};
+const parsed = (html) => {
+  const form = new DOMParser().parseFromString(`<form>${html}</form>`, "text/html").body.firstElementChild;
+  form.normalize();
+  return form;
+};
+const live = (renderForm, decl, values) => {
+  const form = document.createElement("form");
+  renderForm(form, decl, values, () => {});
+  for (const el of form.querySelectorAll("[data-rows], [data-row-count]")) el.replaceChildren();
+  form.normalize();
+  return form;
+};
+// the first place two canonical trees differ, as a path of child indexes, or null
+const diff = (a, b, path = "form") => {
+  if (typeof a === "string" || typeof b === "string") return a === b ? null : `${path}: ${JSON.stringify(a)} != ${JSON.stringify(b)}`;
+  if (a[0] !== b[0]) return `${path}: <${a[0]}> != <${b[0]}>`;
+  for (const i of [1, 2]) if (JSON.stringify(a[i]) !== JSON.stringify(b[i])) return `${path}: ${JSON.stringify(a[i])} != ${JSON.stringify(b[i])}`;
+  const n = Math.max(a[3].length, b[3].length);
+  for (let i = 0; i < n; i++) {
+    if (a[3][i] === undefined || b[3][i] === undefined) return `${path}: child ${i} only on one side`;
+    const d = diff(a[3][i], b[3][i], `${path} > ${typeof a[3][i] === "string" ? "#text" : a[3][i][0]}[${i}]`);
+    if (d) return d;
+  }
+  return null;
+};
+"""
+
+
+def open_blank(page):
+    page.route(f"**/{BLANK}", lambda route: route.fulfill(status=200, content_type="text/html; charset=utf-8",
+                                                           body="<!doctype html><html lang=en><title>check</title></html>"))
+    page.goto(page.site + BLANK)
+
+
+def markup_cases() -> list[dict]:
+    """Every worksheet with its defaults, then with each non-default choice (which moves fields in
+    and out of view), and with a text that needs escaping in one typed field."""
+    cases = []
+    for sid, sheet in bridge.sheets().items():
+        cases.append({"id": sid, "values": {}, "html": formview.html(CATALOG[sid]["form"])})
+        variants = [{f.name: v} for f in sheet.fields if f.kind == "choice" for v, _ in f.options if v != f.default]
+        typed = next((f for f in sheet.fields if f.widget == "input"), None)
+        if typed:
+            variants.append({typed.name: 'a<b> & "c" \'d\''})
+        for values in variants:
+            cases.append({"id": sid, "values": values, "html": formview.html(formview.form_tree(sheet, values))})
+    return cases
+
+
+def test_static_form_is_the_live_form_for_every_worksheet(browser, site):
+    cases = markup_cases()
+    assert {c["id"] for c in cases} == set(CATALOG)
+    with guarded_page(browser, site, viewport=PHONE) as page:
+        open_blank(page)
+        problems = page.evaluate("""async (cases) => {
+            const { renderForm } = await import("./render.js");
+            const { default: catalog } = await import("./catalog.js");
+            """ + CANON + """
+            const out = [];
+            for (const c of cases) {
+              const decl = catalog.find((d) => d.id === c.id);
+              const d = diff(canon(parsed(c.html)), canon(live(renderForm, decl, c.values)));
+              if (d) out.push(`${c.id} ${JSON.stringify(c.values)}: ${d}`);
+            }
+            return out;
+        }""", cases)
+    assert problems == [], "\n".join(problems[:10])
+
+
+def test_index_html_form_is_the_live_forms_first_sections(browser, site):
+    """The static form as the build wrote it into index.html (the first sections of the opening
+    worksheet) against the shell's form for the same worksheet with no inputs."""
+    with guarded_page(browser, site, viewport=PHONE) as page:
+        open_blank(page)
+        res = page.evaluate("""async (opening) => {
+            const { renderForm } = await import("./render.js");
+            const { default: catalog } = await import("./catalog.js");
+            """ + CANON + """
+            const html = await (await fetch("./index.html")).text();
+            const doc = new DOMParser().parseFromString(html, "text/html");
+            const stat = doc.getElementById("form");
+            stat.normalize();
+            const decl = catalog.find((d) => d.opening);
+            const form = live(renderForm, decl, {});
+            const n = stat.children.length;
+            const cut = document.createElement("form");
+            cut.append(...[...form.children].slice(0, n));
+            return { id: decl.id, flagged: catalog.filter((d) => d.opening).length, n, more: form.children.length - n,
+                     staticOf: stat.dataset.static, sections: stat.querySelectorAll("fieldset.group").length,
+                     fields: stat.querySelectorAll("[data-field]").length,
+                     // the children only: the static form element itself carries data-static
+                     diff: diff(["form", [], {}, canon(stat)[3]], ["form", [], {}, canon(cut)[3]]) };
+        }""", OPENING_SHEET)
+    assert res["id"] == OPENING_SHEET and res["flagged"] == 1 and res["staticOf"] == OPENING_SHEET
+    assert res["sections"] >= 2 and res["fields"] >= 5 and res["more"] > 0, res
+    assert res["diff"] is None, res["diff"]
+
+
+def visibility_cases(limit: int = 4096) -> list[dict]:
+    """For each worksheet, every combination of its choice fields' options (up to ``limit``), with
+    the fields the Python rule (``Inputs.visible``, which also decides what is validated) shows."""
+    cases = []
+    for sid, sheet in bridge.sheets().items():
+        choices = [f for f in sheet.fields if f.kind == "choice"]
+        combos = itertools.islice(itertools.product(*[[v for v, _ in f.options] for f in choices]), limit)
+        for combo in combos:
+            values = dict(zip((f.name for f in choices), combo))
+            ins = Inputs(sheet, values)
+            cases.append({"id": sid, "values": values, "shown": [f.name for f in sheet.fields if ins.visible(f.name)]})
+    return cases
+
+
+def test_show_when_rule_agrees_between_python_and_the_shell(browser, site):
+    cases = visibility_cases()
+    sheets_with_rules = {sid for sid, s in bridge.sheets().items() if any(f.show_when for f in s.fields)}
+    hidden_somewhere = {c["id"] for c in cases if len(c["shown"]) < len(CATALOG[c["id"]]["fields"])}
+    assert sheets_with_rules and hidden_somewhere == sheets_with_rules  # the cases do exercise the rule
+    with guarded_page(browser, site, viewport=PHONE) as page:
+        open_blank(page)
+        problems = page.evaluate("""async (cases) => {
+            const { isVisible } = await import("./render.js");
+            const { default: catalog } = await import("./catalog.js");
+            const out = [];
+            for (const c of cases) {
+              const decl = catalog.find((d) => d.id === c.id);
+              const byName = Object.fromEntries(decl.fields.map((f) => [f.name, f]));
+              const shown = decl.fields.filter((f) => isVisible(f, byName, c.values)).map((f) => f.name);
+              if (JSON.stringify(shown) !== JSON.stringify(c.shown)) out.push(`${c.id} ${JSON.stringify(c.values)}: shell ${shown} / python ${c.shown}`);
+            }
+            return out;
+        }""", cases)
+    assert problems == [], "\n".join(problems[:10])
