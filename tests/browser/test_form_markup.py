@@ -169,3 +169,77 @@ def test_show_when_rule_agrees_between_python_and_the_shell(browser, site):
             return out;
         }""", cases)
     assert problems == [], "\n".join(problems[:10])
+
+
+def test_live_form_binds_behaviour_by_its_hooks_in_every_worksheet(browser, site):
+    """The shell's form reacts to what a user does through the tree's hooks alone: each choice
+    (buttons and selects) reports its value and shows the fields Python's rule shows for it, a
+    typed text is reported, a suggestion chip sets its value, a complex field's chips insert at
+    the caret, and a table adds and removes rows."""
+    expect = {}
+    for sid, sheet in bridge.sheets().items():
+        for f in sheet.fields:
+            if f.kind == "choice":
+                for v, _ in f.options:
+                    ins = Inputs(sheet, {f.name: v})
+                    expect[f"{sid} {f.name}={v}"] = [g.name for g in sheet.fields if not ins.visible(g.name)]
+    with guarded_page(browser, site, viewport=PHONE) as page:
+        open_blank(page)
+        problems = page.evaluate("""async (expect) => {
+            const { renderForm } = await import("./render.js");
+            const { default: catalog } = await import("./catalog.js");
+            const out = [];
+            const hiddenNow = (form) => [...form.querySelectorAll(".field[data-field]")].filter((w) => w.hidden).map((w) => w.dataset.field);
+            for (const decl of catalog) {
+              for (const f of decl.fields) {
+                // a fresh form per field, so each check starts from the defaults
+                const form = document.createElement("form");
+                document.body.replaceChildren(form);
+                const inputs = {};
+                const seen = [];
+                renderForm(form, decl, inputs, (name, text) => { inputs[name] = text; seen.push([name, text]); });
+                const w = form.querySelector(`[data-field="${f.name}"]`);
+                const where = `${decl.id}.${f.name}`;
+                const last = () => JSON.stringify(seen[seen.length - 1] || null);
+                if (f.kind === "choice") {
+                  for (const o of f.options) {
+                    const radio = w.querySelector(`input[type=radio][value="${o.value}"]`);
+                    if (radio) w.querySelector(`label[for="${radio.id}"]`).click();
+                    else { const s = w.querySelector("select"); s.value = o.value; s.dispatchEvent(new Event("change")); }
+                    if (o.value !== f.default || seen.length) {
+                      if (last() !== JSON.stringify([f.name, o.value])) out.push(`${where}: choosing ${o.value} reported ${last()}`);
+                    }
+                    const want = expect[`${decl.id} ${f.name}=${o.value}`];
+                    const got = hiddenNow(form);
+                    if (JSON.stringify(got) !== JSON.stringify(want)) out.push(`${where}=${o.value}: hidden ${got} / python ${want}`);
+                  }
+                } else if (f.widget === "table") {
+                  const rows = () => w.querySelectorAll("[data-rows] > .tbl-row").length;
+                  const n0 = rows();
+                  w.querySelector("[data-add-row]").click();
+                  if (rows() !== n0 + 1 || JSON.parse(inputs[f.name]).length !== n0 + 1) out.push(`${where}: add row gave ${rows()} rows`);
+                  if (w.querySelector("[data-row-count]").textContent !== `${n0 + 1} row${n0 === 0 ? "" : "s"}`) out.push(`${where}: row count text`);
+                  w.querySelector("[data-rows] > .tbl-row:last-child .tbl-act button").click();
+                  if (rows() !== n0 || JSON.parse(inputs[f.name]).length !== n0) out.push(`${where}: remove row gave ${rows()} rows`);
+                } else {
+                  const c = w.querySelector("#in-" + f.name);
+                  c.value = "12 x"; c.dispatchEvent(new Event("input"));
+                  if (last() !== JSON.stringify([f.name, "12 x"])) out.push(`${where}: typing reported ${last()}`);
+                  for (const chip of w.querySelectorAll("button[data-set]")) {
+                    chip.click();
+                    if (c.value !== chip.dataset.set || last() !== JSON.stringify([f.name, chip.dataset.set])) out.push(`${where}: chip ${chip.dataset.set}`);
+                  }
+                  const inserts = [...w.querySelectorAll("button[data-insert]")];
+                  if ((f.kind === "complex") !== (inserts.length > 0)) out.push(`${where}: insert chips on a ${f.kind} field`);
+                  for (const chip of inserts) {
+                    c.value = "12"; c.focus(); c.setSelectionRange(1, 1);
+                    chip.click();
+                    if (c.value !== "1" + chip.dataset.insert + "2" || last() !== JSON.stringify([f.name, c.value])) out.push(`${where}: insert ${chip.dataset.insert} gave ${c.value}`);
+                  }
+                }
+              }
+            }
+            document.body.replaceChildren();
+            return out;
+        }""", expect)
+    assert problems == [], "\n".join(problems[:10])
