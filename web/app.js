@@ -204,14 +204,11 @@ function takeStaticForm(decl) {
   if (form.dataset.static !== decl.id) return out;
   delete form.dataset.static;
   window.fieldphasor.perf.staticForm = decl.id; // the first paint showed this form (the benchmark reads it)
-  for (const f of decl.fields) {
-    if (f.widget === "buttons") {
-      const c = form.querySelector(`input[name="in-${f.name}"]:checked`);
-      if (c && c.value !== f.default) out.values[f.name] = c.value;
-    } else {
-      const el = document.getElementById(`in-${f.name}`);
-      if (el && el.value !== f.default) out.values[f.name] = el.value;
-    }
+  const byName = Object.fromEntries(decl.fields.map((f) => [f.name, f]));
+  for (const w of form.querySelectorAll(".field[data-field]")) { // the form's hooks (app/formview.py)
+    const f = byName[w.dataset.field];
+    const el = w.querySelector("input[type=radio]:checked, select, input[type=text], textarea");
+    if (f && el && el.value !== f.default) out.values[f.name] = el.value;
   }
   const a = document.activeElement;
   if (a && form.contains(a) && a.id) out.focus = { id: a.id, caret: "selectionStart" in a ? a.selectionStart : null };

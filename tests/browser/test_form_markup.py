@@ -243,3 +243,27 @@ def test_live_form_binds_behaviour_by_its_hooks_in_every_worksheet(browser, site
             return out;
         }""", expect)
     assert problems == [], "\n".join(problems[:10])
+
+
+def test_choices_and_typing_in_the_static_form_survive_the_takeover(browser, site):
+    """What a user chose (a button of a choice) and typed in index.html's form before the shell's
+    modules ran is in the live form and the inputs afterwards (app.js takeStaticForm reads the
+    static form by the same hooks)."""
+    sheet = bridge.sheets()[OPENING_SHEET]
+    ins = Inputs(sheet, {})
+    static = formview.first_sections_html(CATALOG[OPENING_SHEET]["form"], 2)
+    buttons = next(f for f in sheet.fields if f.widget == "buttons" and ins.visible(f.name) and f'data-field="{f.name}"' in static)
+    other = next(v for v, _ in buttons.options if v != buttons.default)
+    typed = next(f for f in sheet.fields if f.widget == "input" and ins.visible(f.name) and f'id="in-{f.name}"' in static)
+    with guarded_page(browser, site, viewport=PHONE, service_workers="block") as page:
+        page.route("**/app.js", lambda route: (page.wait_for_timeout(1500), route.continue_()))
+        page.goto(site + f"#/sheet/{OPENING_SHEET}", wait_until="commit")  # "load" would wait for app.js
+        page.wait_for_selector(f"#in-{typed.name}")
+        page.click(f"label[for='in-{buttons.name}-{other}']")
+        page.fill(f"#in-{typed.name}", "123")
+        assert page.evaluate("() => document.getElementById('form').dataset.static") == OPENING_SHEET  # still the static form
+        page.wait_for_function("() => document.documentElement.dataset.inputReady === '1'")
+        assert page.evaluate("() => window.fieldphasor.perf.staticForm") == OPENING_SHEET  # the static form was taken over
+        got = page.evaluate(f"() => [window.fieldphasor.state.inputs['{buttons.name}'], window.fieldphasor.state.inputs['{typed.name}']]")
+        assert got == [other, "123"]
+        assert page.is_checked(f"#in-{buttons.name}-{other}") and page.input_value(f"#in-{typed.name}") == "123"
