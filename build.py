@@ -24,7 +24,7 @@ import sys
 from buildkit.assemble import build, write_service_worker  # noqa: F401  (tests call build.build)
 from buildkit.common import DIST, ROOT, WEB  # noqa: F401
 from buildkit.machine import CHROMIUM, ensure_debian, ensure_venv, setup  # noqa: F401
-from buildkit.prerender import DEFAULT_SHEET, STATIC_SECTIONS, render_index, static_form  # noqa: F401
+from buildkit.prerender import STATIC_SECTIONS, render_index, static_form  # noqa: F401
 from buildkit.server import Handler, lan_addresses, make_server, serve_in_thread  # noqa: F401
 
 

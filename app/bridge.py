@@ -19,8 +19,18 @@ from .registry import sheet, sheets  # noqa: F401  (outside tools look worksheet
 
 
 def catalog() -> str:
-    """JSON list of worksheet declarations (see DESIGN §1)."""
-    return json.dumps([s.declaration() for s in registry.sheets().values()], ensure_ascii=False)
+    """JSON list of worksheet declarations (see DESIGN §1), each with its drawn form (``"form"``,
+    :mod:`app.formview`); the one the app opens on carries ``"opening": true``."""
+    from . import OPENING_SHEET, formview
+
+    out = []
+    for s in registry.sheets().values():
+        d = s.declaration()
+        d["form"] = formview.form_tree(s)
+        if s.id == OPENING_SHEET:
+            d["opening"] = True
+        out.append(d)
+    return json.dumps(out, ensure_ascii=False)
 
 
 def compute(worksheet_id: str, inputs: str) -> str:

@@ -21,6 +21,11 @@ from .reading import INVALID, UNUSED, USED, Reading
 
 # Field kinds the shell knows how to render.
 KINDS = ("number", "complex", "choice", "table", "text", "list")
+# How a field is drawn (app/formview.py), by kind: the first widget of each list is the default,
+# except that a choice of at most BUTTON_CHOICES options defaults to a row of buttons.
+WIDGETS = {"choice": ("select", "buttons"), "table": ("table",), "number": ("input",), "complex": ("input",),
+           "text": ("input", "textarea"), "list": ("input", "textarea")}
+BUTTON_CHOICES = 4
 
 # No quantity of this trade lies outside this band of magnitudes in its field's own unit
 # (zero aside): such a value is a wrong exponent or unit, refused at the field rather than
@@ -61,7 +66,8 @@ class Field:
     ``min``/``max`` are limits in the field's own unit; ``min_open``/``max_open`` make them
     strict. ``suggest`` lists one-tap values. ``show_when`` = ``{"field": name, "in": [values]}``
     shows the field only when a choice field has one of those values (hidden fields are
-    neither validated nor used). ``group`` starts a titled section in the form.
+    neither validated nor used). ``group`` starts a titled section in the form. ``widget`` is
+    how the form draws it (see :data:`WIDGETS`); left empty, the kind's default is set here.
     """
 
     name: str
@@ -82,10 +88,16 @@ class Field:
     columns: list = field(default_factory=list)  # [Column] for table
     max_rows: int = 500
     placeholder: str = ""
+    widget: str = ""
 
     def __post_init__(self):
         if self.kind not in KINDS:
             raise ValueError(f"unknown field kind {self.kind}")
+        if not self.widget:
+            buttons = self.kind == "choice" and len(self.options) <= BUTTON_CHOICES
+            self.widget = "buttons" if buttons else WIDGETS[self.kind][0]
+        if self.widget not in WIDGETS[self.kind]:
+            raise ValueError(f"field {self.name}: a {self.kind} field cannot be drawn as {self.widget}")
 
     def to_json(self) -> dict:
         d: dict[str, Any] = {
@@ -96,6 +108,7 @@ class Field:
             "default": self.default,
             "required": self.required,
             "help": self.help,
+            "widget": self.widget,
         }
         if self.min is not None:
             d["min"] = self.min

@@ -17,10 +17,10 @@ from __future__ import annotations
 import hashlib
 import json
 
-from . import __version__, registry
+from . import OPENING_SHEET, __version__, registry
 
 #: the worksheet whose default result proves a restored interpreter computes as a fresh one
-PROBE_SHEET = "correction"
+PROBE_SHEET = OPENING_SHEET
 
 
 def probe() -> str:

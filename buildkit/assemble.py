@@ -9,7 +9,7 @@ import json
 import os
 import shutil
 
-from .common import APP_NAME, BACKGROUND, DIST, THEME, WEB, app_bridge, log, read_version, sha256_file
+from .common import APP_NAME, BACKGROUND, DIST, THEME, WEB, app_module, log, read_version, sha256_file
 from .fetch import PYODIDE_FILES, PYODIDE_VERSION, WHEELS, fetch_pyodide, fetch_wheels
 from .icons import build_icons
 from .prerender import render_index
@@ -17,7 +17,7 @@ from .wheel import build_app_wheel
 
 
 def catalog_json() -> str:
-    return app_bridge().catalog()
+    return app_module("bridge").catalog()
 
 
 def build(quiet: bool = False) -> str:

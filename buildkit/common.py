@@ -36,12 +36,12 @@ def sha256_file(path: str) -> str:
     return h.hexdigest()
 
 
-def app_bridge():
-    """The app's bridge module, imported from this checkout."""
+def app_module(name: str):
+    """A module of the app (``app.<name>``), imported from this checkout."""
+    import importlib
+
     sys.path.insert(0, ROOT)
     try:
-        from app import bridge
-
-        return bridge
+        return importlib.import_module(f"app.{name}")
     finally:
         sys.path.remove(ROOT)

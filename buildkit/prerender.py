@@ -6,101 +6,20 @@ from __future__ import annotations
 import json
 import re
 
-from .common import app_bridge
+from .common import app_module
 
-DEFAULT_SHEET = "correction"  # the worksheet the app opens on (web/app.js DEFAULT_SHEET)
 # Form sections drawn into index.html: the opening sheet's first two (the system, and the load
 # readings a user types first) are on screen at once; fewer nodes make the first paint cheaper on
 # a slow phone. The shell draws the rest as soon as its modules run.
 STATIC_SECTIONS = 2
 
 
-def _visible(f: dict, by_name: dict) -> bool:
-    sw = f.get("show_when")
-    if not sw:
-        return True
-    ctl = by_name.get(sw["field"])
-    return ctl is None or (_visible(ctl, by_name) and ctl.get("default", "") in sw["in"])
-
-
 def static_form(decl: dict, sections: int | None = None) -> str | None:
-    """The form web/render.js would draw for ``decl`` with its defaults, as HTML, so the opening
-    worksheet is on screen and accepts typing in the first paint. The shell replaces it with the
-    live form once its modules run, keeping anything typed meanwhile. None if a field kind is
-    not drawn here (tables), in which case the shell draws the form alone. ``sections``: draw
-    only the first so many form sections (the shell adds the rest a moment later); all if None."""
-    from html import escape as e
-
-    by_name = {f["name"]: f for f in decl["fields"]}
-    unit = lambda u: f' ({e(u)})' if u else ""  # noqa: E731
-    out, open_group, n_groups = [], False, 0
-    for f in decl["fields"]:
-        if f["kind"] == "table":
-            return None
-        if f.get("group"):
-            n_groups += 1
-            if sections is not None and n_groups > sections:
-                break
-            if open_group:
-                out.append("</fieldset>")
-            members, seen = [], False
-            for g in decl["fields"]:
-                if g is f:
-                    seen = True
-                elif seen and g.get("group"):
-                    break
-                if seen:
-                    members.append(g)
-            hidden = "" if any(_visible(g, by_name) for g in members) else " hidden"
-            out.append(f'<fieldset class="group"{hidden}><legend>{e(f["group"])}</legend>')
-            open_group = True
-        n, fid = f["name"], f'in-{f["name"]}'
-        help_id, err_id = f"help-{n}", f"err-{n}"
-        described = " ".join(x for x in ((help_id if f.get("help") else ""), err_id) if x)
-        hidden = "" if _visible(f, by_name) else " hidden"
-        help_html = f'<p class="help" id="{help_id}">{e(f["help"])}</p>' if f.get("help") else ""
-        err_html = f'<p class="err" id="{err_id}" hidden></p>'
-        value = f.get("default", "")
-        out.append(f'<div class="field kind-{f["kind"]}" data-field="{e(n)}"{hidden}>')
-        opts = f.get("options", [])
-        if f["kind"] == "choice" and len(opts) <= 4:
-            out.append(f'<fieldset class="seg" aria-describedby="{described}"><legend>{e(f["label"])}</legend><div class="seg-row">')
-            for o in opts:
-                oid = f'{fid}-{o["value"]}'
-                chk = " checked" if o["value"] == value else ""
-                out.append(f'<span class="seg-opt"><input type="radio" name="{fid}" id="{e(oid)}" value="{e(o["value"])}"{chk}>'
-                           f'<label for="{e(oid)}">{e(o["label"])}</label></span>')
-            out.append(f"</div></fieldset>{help_html}{err_html}</div>")
-            continue
-        out.append(f'<label for="{fid}">{e(f["label"])}<span class="unit">{unit(f.get("unit", ""))}</span></label>{help_html}')
-        if f["kind"] == "choice":
-            out.append(f'<select id="{fid}" aria-describedby="{described}">')
-            for o in opts:
-                sel = " selected" if o["value"] == value else ""
-                out.append(f'<option value="{e(o["value"])}"{sel}>{e(o["label"])}</option>')
-            out.append("</select>")
-        else:
-            mode = ' inputmode="decimal"' if f["kind"] == "number" else ""
-            attrs = (f'id="{fid}" type="text" aria-describedby="{described}" spellcheck="false" autocapitalize="off"'
-                     f' placeholder="{e(f.get("placeholder", ""))}" enterkeyhint="next"{mode}')
-            if f["kind"] == "text" and "notes" in n:
-                out.append(f'<textarea {attrs} rows="3">{e(value)}</textarea>')
-            else:
-                out.append(f'<input {attrs} value="{e(value)}">')
-        chips = []
-        if f["kind"] == "complex":
-            for txt, name in (("j", "imaginary j"), ("∠", "angle mark"), ("−", "minus")):
-                chips.append(f'<button type="button" class="chip" aria-label="Insert {name}">{txt}</button>')
-        for sug in f.get("suggest", []):
-            u = f.get("unit", "")
-            shown = f"{sug} {u}" if u and u != "%" else f"{sug}{u}"
-            chips.append(f'<button type="button" class="chip" aria-label="Set {e(f["label"])} to {e(sug)}{" " + e(u) if u else ""}">{e(shown)}</button>')
-        if chips:
-            out.append(f'<div class="chips">{"".join(chips)}</div>')
-        out.append(f"{err_html}</div>")
-    if open_group:
-        out.append("</fieldset>")
-    return "".join(out)
+    """The form the shell draws for ``decl`` with its defaults, as HTML: the catalog's form tree
+    (app/formview.py) serialised, so the opening worksheet is on screen and accepts typing in the
+    first paint. ``sections``: only the first so many form sections (the shell adds the rest a
+    moment later); all if None. None if that part holds a table (the shell draws its rows)."""
+    return app_module("formview").first_sections_html(decl["form"], sections)
 
 
 def pending_headline_size(decl_id: str) -> str:
@@ -110,7 +29,7 @@ def pending_headline_size(decl_id: str) -> str:
     Computed here by the same code the engine runs."""
     from html import escape as e
 
-    res = json.loads(app_bridge().compute(decl_id, "{}"))
+    res = json.loads(app_module("bridge").compute(decl_id, "{}"))
     first = next((r for r in res.get("results", []) if r.get("key")), None)
     size = f'{first["label"]}: {first["display"]} — all results ↓' if res.get("ok") and first else ""
     return f'<span class="pending-size" aria-hidden="true">{e(size)}</span>'
@@ -120,7 +39,7 @@ def render_index(template: str, catalog: list) -> str:
     """index.html with the worksheet picker and the opening worksheet's form filled in."""
     from html import escape as e
 
-    decl = next((d for d in catalog if d["id"] == DEFAULT_SHEET), catalog[0])
+    decl = next((d for d in catalog if d.get("opening")), catalog[0])
     # Only the opening worksheet: the picker does nothing until the shell runs, and the shell
     # then lists them all (a shorter list is a cheaper first paint on a slow phone).
     option = f'<option value="{e(decl["id"])}" selected>{e(decl["title"])}</option>'

@@ -9,6 +9,7 @@ import zipfile
 import pytest
 
 import build
+from app import OPENING_SHEET
 
 
 @pytest.fixture(scope="module")
@@ -118,7 +119,7 @@ def test_static_form_sections_are_the_full_forms_first_sections():
     exactly as in the full static form (the shell adds the rest)."""
     from app import bridge
 
-    decl = next(d for d in json.loads(bridge.catalog()) if d["id"] == build.DEFAULT_SHEET)
+    decl = next(d for d in json.loads(bridge.catalog()) if d["id"] == OPENING_SHEET)
     full = build.static_form(decl)
     part = build.static_form(decl, build.STATIC_SECTIONS)
     groups = [f["group"] for f in decl["fields"] if f.get("group")]
@@ -138,4 +139,4 @@ def test_static_form_sections_are_the_full_forms_first_sections():
     assert index.count("elementtiming=") == 1 and form_end < mark < held_until
     # the picker starts with the opening worksheet alone (the shell lists them all)
     picker = re.search(r'<select id="sheet-pick">(.*?)</select>', index).group(1)
-    assert re.findall(r'<option value="([^"]+)"', picker) == [build.DEFAULT_SHEET]
+    assert re.findall(r'<option value="([^"]+)"', picker) == [OPENING_SHEET]

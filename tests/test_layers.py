@@ -181,6 +181,4 @@ def test_shell_has_no_worksheet_specific_code():
     for name in sorted(n for n in os.listdir(os.path.join(ROOT, "web")) if n.endswith(".js")):
         text = open(os.path.join(ROOT, "web", name), encoding="utf-8").read()
         for sid in ids:
-            if sid == "correction":
-                continue  # the default worksheet's id is named once in app.js
             assert f'"{sid}"' not in text and f"'{sid}'" not in text, f"web/{name} names worksheet {sid}"

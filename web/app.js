@@ -13,7 +13,6 @@ const engine = new Engine("./worker.js", { name: workerName(location.search) },
 window.__fpBoot = window.__fpBoot || { adopted: true }; // boot.js, if it runs late, starts nothing
 const $ = (id) => document.getElementById(id);
 const DEBOUNCE_MS = 120;
-const DEFAULT_SHEET = "correction";
 
 const state = {
   catalog: [],
@@ -148,7 +147,7 @@ document.addEventListener("visibilitychange", () => { if (document.visibilitySta
 
 // ---- worksheets --------------------------------------------------------------------------------
 async function openSheet(id, { inputs = null, target = null } = {}) {
-  const decl = state.catalog.find((s) => s.id === id) || state.catalog.find((s) => s.id === DEFAULT_SHEET) || state.catalog[0];
+  const decl = state.catalog.find((s) => s.id === id) || opening();
   if (state.sheet) await saveNow();
   state.sheet = decl;
   state.target = target;
@@ -205,18 +204,20 @@ function takeStaticForm(decl) {
   if (form.dataset.static !== decl.id) return out;
   delete form.dataset.static;
   window.fieldphasor.perf.staticForm = decl.id; // the first paint showed this form (the benchmark reads it)
-  for (const f of decl.fields) {
-    if (f.kind === "choice" && f.options.length <= 4) {
-      const c = form.querySelector(`input[name="in-${f.name}"]:checked`);
-      if (c && c.value !== f.default) out.values[f.name] = c.value;
-    } else {
-      const el = document.getElementById(`in-${f.name}`);
-      if (el && el.value !== f.default) out.values[f.name] = el.value;
-    }
+  const byName = Object.fromEntries(decl.fields.map((f) => [f.name, f]));
+  for (const w of form.querySelectorAll(".field[data-field]")) { // the form's hooks (app/formview.py)
+    const f = byName[w.dataset.field];
+    const el = w.querySelector("input[type=radio]:checked, select, input[type=text], textarea");
+    if (f && el && el.value !== f.default) out.values[f.name] = el.value;
   }
   const a = document.activeElement;
   if (a && form.contains(a) && a.id) out.focus = { id: a.id, caret: "selectionStart" in a ? a.selectionStart : null };
   return out;
+}
+
+/** The worksheet the app opens on (flagged in the catalog; named once, in app/__init__.py). */
+function opening() {
+  return state.catalog.find((s) => s.opening) || state.catalog[0];
 }
 
 function followLink(link) {
@@ -251,10 +252,10 @@ async function start() {
     await openSheet(entry.worksheet, { inputs: entry.inputs, target: { jobId: e[1], entryId: e[2] } });
   } else if (location.hash.startsWith("#/job")) {
     const j = location.hash.match(/^#\/job\/([\w-]+)/);
-    await openSheet(DEFAULT_SHEET);
+    await openSheet(opening().id);
     await jobs.show(j ? j[1] : null);
   } else {
-    await openSheet(m ? m[1] : DEFAULT_SHEET);
+    await openSheet(m ? m[1] : opening().id);
   }
   window.fieldphasor.perf.inputReady = performance.now();
   document.documentElement.dataset.inputReady = "1";

@@ -18,6 +18,23 @@ export function h(tag, attrs = {}, ...children) {
   return el;
 }
 
+/**
+ * An element from a markup tree `[tag, {attribute: value}, ...children]` (children: trees or text),
+ * as app/formview.py draws forms. Attributes are set as attributes (`true` = present); event
+ * handler attributes are refused, text is always text.
+ */
+export function fromTree(node) {
+  if (typeof node === "string") return document.createTextNode(node);
+  const [tag, attrs, ...children] = node;
+  const el = document.createElement(tag);
+  for (const [k, v] of Object.entries(attrs)) {
+    if (/^on/i.test(k) || v === false || v === null) continue;
+    el.setAttribute(k, v === true ? "" : String(v));
+  }
+  for (const c of children) el.append(fromTree(c));
+  return el;
+}
+
 const parser = new DOMParser();
 
 /** Parse SVG text from the app's Python code into a node; drops any script or event attribute. */

@@ -1,6 +1,6 @@
 // Renders any worksheet from its declaration (fields from Python) and any compute result.
 // Worksheet-agnostic: nothing here knows a particular worksheet or formula.
-import { h, svgNode, clear } from "./dom.js";
+import { h, fromTree, svgNode, clear } from "./dom.js";
 
 const unitText = (u) => (u ? ` (${u})` : "");
 
@@ -28,25 +28,22 @@ function parseRows(text, ncol) {
 }
 
 /**
- * Build the form. `onChange(name, text)` is called on every edit. Returns helpers to show
- * messages and refresh which fields are visible.
+ * Draw the form: instantiate the worksheet's form tree (drawn by app/formview.py, the same tree the
+ * build writes into index.html), apply the current values, bind behaviour by the tree's data-*
+ * hooks. `onChange(name, text)` is called on every edit. Returns helpers to show messages and
+ * refresh which fields are visible.
  */
 export function renderForm(form, decl, inputs, onChange) {
   clear(form);
+  form.append(...decl.form.map(fromTree));
   const byName = Object.fromEntries(decl.fields.map((f) => [f.name, f]));
   const wrappers = {};
-  let section = form;
+  for (const w of form.querySelectorAll(".field[data-field]")) wrappers[w.dataset.field] = w;
   for (const f of decl.fields) {
-    if (f.group) {
-      section = h("fieldset", { class: "group" }, h("legend", { text: f.group }));
-      form.append(section);
-    }
-    const w = renderField(f, currentValue(f, inputs), (text) => {
+    bindField(f, wrappers[f.name], currentValue(f, inputs), (text) => {
       onChange(f.name, text);
       if (decl.fields.some((g) => g.show_when && g.show_when.field === f.name)) refreshVisibility();
     });
-    wrappers[f.name] = w;
-    section.append(w);
   }
   function refreshVisibility() {
     for (const f of decl.fields) wrappers[f.name].hidden = !isVisible(f, byName, inputs);
@@ -78,69 +75,35 @@ export function renderForm(form, decl, inputs, onChange) {
   };
 }
 
-function renderField(f, value, set) {
-  const id = `in-${f.name}`;
-  const helpId = `help-${f.name}`;
-  const errId = `err-${f.name}`;
-  const describedBy = [f.help ? helpId : "", errId].filter(Boolean).join(" ");
-  const wrap = h("div", { class: `field kind-${f.kind}`, "data-field": f.name });
-  const help = f.help ? h("p", { class: "help", id: helpId, text: f.help }) : null;
-  const err = h("p", { class: "err", id: errId, hidden: true });
-
-  if (f.kind === "choice" && f.options.length <= 4) {
-    const fs = h("fieldset", { class: "seg", "aria-describedby": describedBy });
-    fs.append(h("legend", { text: f.label }));
-    const row = h("div", { class: "seg-row" });
-    for (const o of f.options) {
-      const oid = `${id}-${o.value}`;
-      const input = h("input", { type: "radio", name: id, id: oid, value: o.value, checked: o.value === value });
-      input.addEventListener("change", () => input.checked && set(o.value));
-      row.append(h("span", { class: "seg-opt" }, input, h("label", { for: oid, text: o.label })));
-    }
-    fs.append(row);
-    wrap.append(...[fs, help, err].filter(Boolean));
-    return wrap;
+/**
+ * Put the value into a field's drawn controls (as their default state, so the DOM reads as the
+ * markup for these values would) and listen for edits: by element type and data-* hook only.
+ */
+function bindField(f, w, value, set) {
+  const text = value == null ? "" : String(value);
+  const table = w.querySelector("[data-table]");
+  if (table) {
+    renderTable(f, text, set, table);
+    return;
   }
-
-  const label = h("label", { for: id }, f.label, h("span", { class: "unit", text: unitText(f.unit) }));
-  let control;
-  if (f.kind === "choice") {
-    control = h("select", { id, "aria-describedby": describedBy });
-    for (const o of f.options) control.append(h("option", { value: o.value, selected: o.value === value, text: o.label }));
-    control.addEventListener("change", () => set(control.value));
-  } else if (f.kind === "table") {
-    control = renderTable(f, value, set, describedBy);
-    wrap.append(...[h("div", { class: "table-label", id: `${id}-label` }, f.label, h("span", { class: "unit", text: unitText(f.unit) })), help, control, err].filter(Boolean));
-    return wrap;
-  } else {
-    const attrs = {
-      id,
-      type: "text",
-      value,
-      "aria-describedby": describedBy,
-      spellcheck: "false",
-      autocapitalize: "off",
-      placeholder: f.placeholder || "",
-      enterkeyhint: "next",
-    };
-    if (f.kind === "number") attrs.inputmode = "decimal";
-    if (f.kind === "text" && f.name.includes("notes")) control = h("textarea", { ...attrs, rows: 3 }, value);
-    else control = h("input", attrs);
-    control.addEventListener("input", () => set(control.value));
+  const radios = w.querySelectorAll("input[type=radio]");
+  for (const r of radios) {
+    r.defaultChecked = r.value === text;
+    r.addEventListener("change", () => r.checked && set(r.value));
   }
-  wrap.append(...[label, help, control].filter(Boolean));
-  const chips = [];
-  if (f.kind === "complex") {
-    for (const [txt, name] of [["j", "imaginary j"], ["∠", "angle mark"], ["−", "minus"]]) {
-      chips.push(h("button", { type: "button", class: "chip", "aria-label": `Insert ${name}`, onclick: () => insertAtCursor(control, txt === "−" ? "-" : txt, set) }, txt));
-    }
+  const select = w.querySelector("select");
+  if (select) {
+    for (const o of select.options) o.defaultSelected = o.value === text;
+    select.addEventListener("change", () => set(select.value));
   }
-  for (const s of f.suggest || []) {
-    chips.push(h("button", { type: "button", class: "chip", "aria-label": `Set ${f.label} to ${s}${f.unit ? " " + f.unit : ""}`, onclick: () => { control.value = s; set(s); control.focus(); } }, `${s}${f.unit && f.unit !== "%" ? " " + f.unit : f.unit}`));
+  const control = w.querySelector("input[type=text], textarea");
+  if (!control) return;
+  control.defaultValue = text;
+  control.addEventListener("input", () => set(control.value));
+  for (const b of w.querySelectorAll("button[data-insert]")) b.addEventListener("click", () => insertAtCursor(control, b.dataset.insert, set));
+  for (const b of w.querySelectorAll("button[data-set]")) {
+    b.addEventListener("click", () => { control.value = b.dataset.set; set(b.dataset.set); control.focus(); });
   }
-  if (chips.length) wrap.append(h("div", { class: "chips" }, chips));
-  wrap.append(err);
-  return wrap;
 }
 
 function insertAtCursor(input, text, set) {
@@ -152,18 +115,16 @@ function insertAtCursor(input, text, set) {
   set(input.value);
 }
 
-function renderTable(f, value, set, describedBy) {
+/** The rows of a drawn table (its head, body and foot come from the tree), from its column declarations. */
+function renderTable(f, value, set, box) {
   const cols = f.columns;
   let rows = parseRows(value, cols.length);
-  const box = h("div", { class: "tbl", role: "group", "aria-labelledby": `in-${f.name}-label`, "aria-describedby": describedBy });
-  const body = h("div", { class: "tbl-body" });
-  const count = h("p", { class: "muted tbl-count" });
+  const body = box.querySelector("[data-rows]");
+  const count = box.querySelector("[data-row-count]");
   const emit = () => {
     count.textContent = `${rows.length} row${rows.length === 1 ? "" : "s"}`;
     set(JSON.stringify(rows));
   };
-  const head = h("div", { class: "tbl-row tbl-head", "aria-hidden": "true" },
-    cols.map((c) => h("span", { class: "tbl-cell", "data-kind": c.kind, text: c.label + unitText(c.unit) })), h("span", { class: "tbl-act" }));
   function rowEl(i) {
     const r = rows[i];
     const el = h("div", { class: "tbl-row" });
@@ -194,19 +155,15 @@ function renderTable(f, value, set, describedBy) {
     body.append(frag);
     count.textContent = `${rows.length} row${rows.length === 1 ? "" : "s"}`;
   }
-  const add = h("button", {
-    type: "button", class: "btn", onclick: () => {
-      if (rows.length >= (f.max_rows || 500)) return;
-      rows.push(cols.map((c) => (c.kind === "choice" ? c.options[0].value : "")));
-      redraw();
-      emit();
-      const inputs = body.lastChild.querySelectorAll("input, select");
-      if (inputs.length) inputs[0].focus();
-    },
-  }, "Add row");
+  box.querySelector("[data-add-row]").addEventListener("click", () => {
+    if (rows.length >= (f.max_rows || 500)) return;
+    rows.push(cols.map((c) => (c.kind === "choice" ? c.options[0].value : "")));
+    redraw();
+    emit();
+    const inputs = body.lastChild.querySelectorAll("input, select");
+    if (inputs.length) inputs[0].focus();
+  });
   redraw();
-  box.append(head, body, h("div", { class: "tbl-foot" }, add, count));
-  return box;
 }
 
 const STATUS_WORD = { ok: "OK", warn: "Check", fail: "Fails" };

@@ -9,7 +9,7 @@ import shutil
 
 
 import build
-from app import bridge
+from app import OPENING_SHEET, bridge
 
 from .conftest import PHONE, guarded_page, settle, shot, wait_ready
 
@@ -293,12 +293,12 @@ def test_form_stays_put_from_first_paint_to_first_result(browser, site):
         ctx = browser.new_context(viewport=viewport, java_script_enabled=False)
         try:
             page = ctx.new_page()
-            page.goto(site + "#/sheet/correction")
+            page.goto(site + f"#/sheet/{OPENING_SHEET}")
             first_paint = page.evaluate(FIRST_FIELD_TOP)
         finally:
             ctx.close()
         with guarded_page(browser, site, viewport=viewport, service_workers="block") as page:
-            page.goto(site + "#/sheet/correction")
+            page.goto(site + f"#/sheet/{OPENING_SHEET}")
             wait_ready(page)
             settle(page)
             answered = page.evaluate(FIRST_FIELD_TOP)

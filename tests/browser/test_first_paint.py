@@ -21,6 +21,8 @@ from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
 
 import pytest
 
+from app import OPENING_SHEET
+
 from .conftest import PHONE
 
 PAUSE_S = 1.0
@@ -67,7 +69,7 @@ def first_paint(browser, dist, keep_expect: bool) -> dict:
     ctx = browser.new_context(viewport=PHONE, service_workers="block")
     try:
         page = ctx.new_page()
-        page.goto(url + "#/sheet/correction", wait_until="load")
+        page.goto(url + f"#/sheet/{OPENING_SHEET}", wait_until="load")
         page.wait_for_function("() => performance.getEntriesByName('first-contentful-paint').length > 0")
         return page.evaluate("""() => {
             const nav = performance.getEntriesByType('navigation')[0];

@@ -32,6 +32,7 @@ HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(os.path.dirname(HERE))
 sys.path.insert(0, ROOT)
 import build  # noqa: E402
+from app import OPENING_SHEET  # noqa: E402
 
 ARGS = [
     "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
@@ -51,7 +52,7 @@ py.runPython('1+1');
 postMessage('ready');
 """
 
-SHEET = "correction"  # the worksheet that opens first
+SHEET = OPENING_SHEET  # the worksheet that opens first
 QUIET_MS = 500  # pause after closing a measured page, so each start begins on a quiet machine
 EDIT_FIELD_CANDIDATES = ["p_kw", "f", "v_ll"]
 

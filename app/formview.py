@@ -1,0 +1,158 @@
+"""A worksheet's form as a small markup tree: the one source of the form's markup.
+
+The catalog ships each worksheet's tree (``"form"``); ``web/render.js`` instantiates it with the
+DOM builder, binds behaviour by the data-* hooks below and applies the current values; the build
+writes the opening worksheet's first sections into ``index.html`` with :func:`html`. Both forms
+therefore come from :func:`form_tree`, and a browser test compares their DOM for every worksheet.
+
+A node is ``[tag, {attribute: value}, *children]``; a child is a node or a text string; an
+attribute whose value is ``True`` is written bare (``hidden``, ``checked``). The tree is drawn for
+one set of values (the catalog's: the defaults). Which fields it shows comes from
+:meth:`app.sheet.Inputs.visible`, the rule that also decides what is validated; the shell keeps
+one generic copy of that rule for toggling fields while the user chooses.
+
+Hooks the shell binds by (it knows no worksheet): ``data-field`` on each field's wrapper;
+``data-insert`` (text put at the caret) and ``data-set`` (value to set) on chips; ``data-table``,
+``data-rows``, ``data-row-count`` and ``data-add-row`` in a table, whose rows the shell draws
+from the column declarations.
+"""
+
+from __future__ import annotations
+
+from html import escape
+from typing import Optional
+
+from .sheet import Field, Inputs, Worksheet
+
+VOID = frozenset({"input"})
+# (shown, spoken name, text inserted) for the chips under a complex field
+COMPLEX_CHIPS = (("j", "imaginary j", "j"), ("∠", "angle mark", "∠"), ("−", "minus", "-"))
+
+
+def form_tree(sheet: Worksheet, values: Optional[dict] = None) -> list:
+    """The form of ``sheet`` as a list of top-level nodes, drawn for ``values`` (field name →
+    text; the defaults for anything missing): fields before the first group, then one
+    ``fieldset.group`` per group, hidden when none of its fields is shown."""
+    ins = Inputs(sheet, values or {})
+    top: list = []
+    groups: list[tuple[list, list[bool]]] = []
+    for f in sheet.fields:
+        if f.group:
+            groups.append((["fieldset", {"class": "group"}, ["legend", {}, f.group]], []))
+            top.append(groups[-1][0])
+        shown = ins.visible(f.name)
+        node = field_node(f, ins.text_of(f.name))
+        if not shown:
+            node[1]["hidden"] = True
+        if groups:
+            groups[-1][0].append(node)
+            groups[-1][1].append(shown)
+        else:
+            top.append(node)
+    for node, shown in groups:
+        if not any(shown):
+            node[1]["hidden"] = True
+    return top
+
+
+def _unit_span(unit: str) -> list:
+    return ["span", {"class": "unit"}, f" ({unit})"] if unit else ["span", {"class": "unit"}]
+
+
+def field_node(f: Field, value: str) -> list:
+    """One field's wrapper (label or legend, help, control, chips, error paragraph) by its widget."""
+    n, fid = f.name, f"in-{f.name}"
+    described = f"help-{n} err-{n}" if f.help else f"err-{n}"
+    wrap: list = ["div", {"class": f"field kind-{f.kind}", "data-field": n}]
+    help_ = [["p", {"class": "help", "id": f"help-{n}"}, f.help]] if f.help else []
+    err = ["p", {"class": "err", "id": f"err-{n}", "hidden": True}]
+    if f.widget == "buttons":
+        row: list = ["div", {"class": "seg-row"}]
+        for v, lab in f.options:
+            radio = {"type": "radio", "name": fid, "id": f"{fid}-{v}", "value": v}
+            if v == value:
+                radio["checked"] = True
+            row.append(["span", {"class": "seg-opt"}, ["input", radio], ["label", {"for": f"{fid}-{v}"}, lab]])
+        return wrap + [["fieldset", {"class": "seg", "aria-describedby": described}, ["legend", {}, f.label], row], *help_, err]
+    if f.widget == "table":
+        head = ["div", {"class": "tbl-row tbl-head", "aria-hidden": "true"},
+                *[["span", {"class": "tbl-cell", "data-kind": c.kind}, c.label + (f" ({c.unit})" if c.unit else "")] for c in f.columns],
+                ["span", {"class": "tbl-act"}]]
+        foot = ["div", {"class": "tbl-foot"}, ["button", {"type": "button", "class": "btn", "data-add-row": True}, "Add row"],
+                ["p", {"class": "muted tbl-count", "data-row-count": True}]]
+        box = ["div", {"class": "tbl", "role": "group", "aria-labelledby": f"{fid}-label", "aria-describedby": described,
+                       "data-table": True}, head, ["div", {"class": "tbl-body", "data-rows": True}], foot]
+        return wrap + [["div", {"class": "table-label", "id": f"{fid}-label"}, f.label, _unit_span(f.unit)], *help_, box, err]
+    if f.widget == "select":
+        control: list = ["select", {"id": fid, "aria-describedby": described}]
+        for v, lab in f.options:
+            control.append(["option", {"value": v, "selected": True} if v == value else {"value": v}, lab])
+    else:
+        attrs = {"id": fid, "aria-describedby": described, "spellcheck": "false", "autocapitalize": "off"}
+        if f.placeholder:
+            attrs["placeholder"] = f.placeholder
+        if f.widget == "textarea":
+            control = ["textarea", {**attrs, "rows": "3"}, value]
+        else:
+            attrs.update({"type": "text", "value": value, "enterkeyhint": "next"})
+            if f.kind == "number":
+                attrs["inputmode"] = "decimal"
+            control = ["input", attrs]
+    chips = []
+    if f.kind == "complex":
+        for shown, name, text in COMPLEX_CHIPS:
+            chips.append(["button", {"type": "button", "class": "chip", "aria-label": f"Insert {name}", "data-insert": text}, shown])
+    for s in f.suggest:
+        spoken = f" {f.unit}" if f.unit else ""
+        shown = f" {f.unit}" if f.unit and f.unit != "%" else f.unit
+        chips.append(["button", {"type": "button", "class": "chip", "aria-label": f"Set {f.label} to {s}{spoken}", "data-set": s}, f"{s}{shown}"])
+    wrap += [["label", {"for": fid}, f.label, _unit_span(f.unit)], *help_, control]
+    if chips:
+        wrap.append(["div", {"class": "chips"}, *chips])
+    wrap.append(err)
+    return wrap
+
+
+def html(nodes: list) -> str:
+    """Serialise nodes as HTML (text and attribute values escaped)."""
+    out: list[str] = []
+
+    def put(node) -> None:
+        if isinstance(node, str):
+            out.append(escape(node, quote=False))
+            return
+        tag, attrs, *children = node
+        out.append(f"<{tag}")
+        for k, v in attrs.items():
+            out.append(f" {k}" if v is True else f' {k}="{escape(str(v))}"')
+        out.append(">")
+        if tag in VOID:
+            return
+        if tag == "textarea":
+            out.append("\n")  # the parser drops one leading newline in a textarea: keep the value's own
+        for c in children:
+            put(c)
+        out.append(f"</{tag}>")
+
+    for n in nodes:
+        put(n)
+    return "".join(out)
+
+
+def _has_table(node) -> bool:
+    return not isinstance(node, str) and ("data-table" in node[1] or any(_has_table(c) for c in node[2:]))
+
+
+def first_sections_html(tree: list, sections: Optional[int] = None) -> Optional[str]:
+    """HTML of a form tree's top-level nodes up to its ``sections``-th group (all if None), for
+    the first paint; None when that part holds a table (the shell draws its rows)."""
+    part, n = [], 0
+    for node in tree:
+        if node[0] == "fieldset" and node[1].get("class") == "group":
+            n += 1
+            if sections is not None and n > sections:
+                break
+        part.append(node)
+    if any(_has_table(node) for node in part):
+        return None
+    return html(part)
