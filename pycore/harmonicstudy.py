@@ -274,3 +274,19 @@ def demo_six_step() -> Study:
         {h: 2.0 for h in range(2, 51)},  # invented background: 2 A at every order, so all 49 orders count
     ])
     return run_study(bus, inj, 2000.0)
+
+
+TUNED_ONTO = 0.02
+"""A detuned step whose tuning order 1/√p lies within ±2 % of a harmonic present is a filter tuned
+on it, not a detuned step: it would draw that harmonic from the whole network (screening choice)."""
+
+
+@guarded
+def tuned_onto(p: float, harmonics) -> Optional[int]:
+    """The harmonic order present that a detuning factor p [fraction] tunes onto (within ±TUNED_ONTO
+    of 1/√p), or None."""
+    if not (0.0 < p < 1.0):
+        return None
+    n = 1.0 / math.sqrt(p)
+    hits = [h for h in harmonics if abs(n / h - 1.0) <= TUNED_ONTO]
+    return min(hits, key=lambda h: abs(n - h)) if hits else None
