@@ -208,6 +208,16 @@ def _step_model(i: int, s: Step, v: float, kc: float) -> StepModel:
     return StepModel(q, float(p), x_c, x_l, x_l / rq if p > 0 else 0.0, u_r, u_r * u_r / x_c_nom / 1000.0)
 
 
+def _indices(bus: Bus, steps_in) -> list:
+    """The step indices as a list, or InputError when one is not a step of the bus."""
+    out = []
+    for k in steps_in:
+        if isinstance(k, bool) or not isinstance(k, int) or not (0 <= k < len(bus.steps)):
+            raise InputError("A step switched in is not one of the bank's steps.")
+        out.append(k)
+    return out
+
+
 def _r_h(r: float, h: float, how: str) -> float:
     return r * math.sqrt(h) if how == "sqrt" else r
 
@@ -235,7 +245,7 @@ def bus_impedance(bus: Bus, steps_in: Sequence[int], h: float) -> complex:
     """Impedance Z_bus(h) [Ω per phase] seen at the bus with the steps whose indices (from 0)
     are in ``steps_in`` switched in; complex infinity at an undamped resonance."""
     y = base_admittance(bus, h)
-    for k in steps_in:
+    for k in _indices(bus, steps_in):
         y += 1.0 / bus.steps[k].impedance(h)
     if y == 0:
         return complex(math.inf, 0.0)
@@ -260,6 +270,9 @@ def solve(bus: Bus, steps_in: Sequence[int], injections: dict) -> Solution:
     injections {order h ≥ 2: I_h [A rms, line current]}; V_h = I_h·Z_bus(h); each step draws
     V_h/Z_step(h), the supply V_h/Z_supply(h). Each step's fundamental current V_ph/Z_step(1)
     is added as order 1. Dugan et al., harmonics chapters (current injection at a bus)."""
+    steps_in = _indices(bus, steps_in)
+    if not isinstance(injections, dict):
+        raise InputError("The harmonic currents could not be read.")
     v, sup = {}, {}
     br = {k: {1: bus.v_phase / bus.steps[k].impedance(1.0)} for k in steps_in}
     for h, i_h in injections.items():
@@ -275,6 +288,7 @@ def solve(bus: Bus, steps_in: Sequence[int], injections: dict) -> Solution:
 def capacitor_voltage_pu(bus: Bus, k: int, branch_current: dict) -> dict:
     """{h: |V_C,h|} [per unit of the capacitor's rated rms voltage] of step k from its branch
     currents {h: I_h [A]}: V_C,h = |I_h|·X_C/h (X_C the actual reactance) over U_rated/√3."""
+    (k,) = _indices(bus, [k])
     s = bus.steps[k]
     base = s.u_rated_v / SQRT3
     return {h: abs(i) * s.x_c / h / base for h, i in branch_current.items()}
@@ -283,6 +297,7 @@ def capacitor_voltage_pu(bus: Bus, k: int, branch_current: dict) -> dict:
 @guarded
 def rated_current_a(bus: Bus, k: int) -> float:
     """Rated current [A] of step k's capacitor: Q_rated/(√3·U_rated)."""
+    (k,) = _indices(bus, [k])
     s = bus.steps[k]
     return s.q_rated_kvar * 1000.0 / (SQRT3 * s.u_rated_v)
 
@@ -300,5 +315,5 @@ def impedance_curve(bus: Bus, steps_in: Sequence[int], h_lo: float = 1.0, h_hi: 
     """[(h, |Z_bus(h)| [Ω])] from h_lo to h_hi at ``step`` orders, for plots."""
     if not (0 < h_lo < h_hi) or not (step > 0) or (h_hi - h_lo) / step > 20000:
         raise InputError("The order range must run upwards from above zero, with at most 20000 points.")
-    n = int(round((h_hi - h_lo) / step))
+    n = max(1, int(round((h_hi - h_lo) / step)))
     return [(h, abs(bus_impedance(bus, steps_in, h))) for h in (h_lo + (h_hi - h_lo) * i / n for i in range(n + 1))]

@@ -99,6 +99,7 @@ class Study:
         return any(c.warnings or c.severity > 1.0 or c.amplification > AMPLIFY_FACTOR for c in self.combos)
 
 
+@guarded
 def combo_label(steps_in) -> str:
     """'steps 1+3+4' style label (steps numbered from 1) for indices from 0."""
     if not steps_in:
@@ -288,5 +289,5 @@ def tuned_onto(p: float, harmonics) -> Optional[int]:
     if not (0.0 < p < 1.0):
         return None
     n = 1.0 / math.sqrt(p)
-    hits = [h for h in harmonics if abs(n / h - 1.0) <= TUNED_ONTO]
+    hits = [h for h in harmonics if h > 0 and abs(n / h - 1.0) <= TUNED_ONTO]
     return min(hits, key=lambda h: abs(n - h)) if hits else None

@@ -153,7 +153,7 @@ def resonance_orders(bus: harmonicbus.Bus, steps_in: Sequence[int], cap_factor: 
     with the capacitance times cap_factor and the transformer impedance times z_factor."""
     if not (cap_factor > 0 and z_factor > 0):
         raise InputError("Tolerance factors must be above zero.")
-    return _orders(bus, steps_in, cap_factor, z_factor)
+    return _orders(bus, harmonicbus._indices(bus, steps_in), cap_factor, z_factor)
 
 
 def _orders(bus, steps_in, kc=1.0, kz=1.0):
@@ -168,7 +168,7 @@ def tuning_orders(bus: harmonicbus.Bus, steps_in: Sequence[int], cap_factor: flo
     """Series-resonance (tuning) orders 1/√(p·cap_factor) [-] of the detuned steps in, ascending, distinct."""
     if not (cap_factor > 0):
         raise InputError("Tolerance factors must be above zero.")
-    return _tuning(bus, steps_in, cap_factor)
+    return _tuning(bus, harmonicbus._indices(bus, steps_in), cap_factor)
 
 
 def _tuning(bus, steps_in, kc=1.0):
@@ -192,6 +192,8 @@ def screen(bus: harmonicbus.Bus, combos: Sequence, harmonics: Sequence[int], tol
     _check_tol(tolerances)
     if not (0.0 <= band < 1.0):
         raise InputError("The band around each harmonic must be from 0 % to below 100 %.")
+    combos = [(str(label), harmonicbus._indices(bus, steps_in)) for label, steps_in in combos]
+    harmonics = [h for h in harmonics if isinstance(h, (int, float)) and not isinstance(h, bool) and h >= 1]
     return _screen(bus, combos, harmonics, tolerances, band)
 
 
