@@ -181,7 +181,7 @@ def _th(h: int) -> str:
 
 
 def _pct(v: float) -> str:
-    return f"{v * 100:+.1f} %".replace("+0.0 %", "0 %")
+    return "0 %" if v == 0 else f"{v * 100:+.3g} %".replace("-", "\u2212")
 
 
 @guarded
