@@ -27,7 +27,7 @@ def res(out, name):
 def test_defaults_compute_with_worst_first_plot_recommendation_and_caution():
     out = run({})
     assert out["ok"], out["field_errors"]
-    assert [r["name"] for r in out["results"] if r.get("key")] == ["worst", "h_res", "thd_v", "duty"]
+    assert [r["name"] for r in out["results"] if r.get("key")] == ["worst", "h_res", "thd_v", "duty", "tdd"]
     titles = [t["title"] for t in out["tables"]]
     assert titles[0] == "Every step combination, worst first"
     assert len(out["tables"][0]["rows"]) == 15  # 2^4 − 1 combinations with the bank in
@@ -55,6 +55,9 @@ def test_bank_out_voltage_reading_becomes_16_percent_with_the_bank():
     volts = next(t for t in out["tables"] if t["title"] == "Harmonic voltages")["rows"]
     assert volts[0][0] == "5" and volts[0][2] == "2"
     assert float(volts[0][3]) == pytest.approx(16.1, abs=0.1)
+    # the capacitor's 5th-harmonic current: V_5·5/X_C = 0.161·(480/√3)·5·700e3/480² A
+    assert float(volts[0][4]) == pytest.approx(float(volts[0][3]) / 100 * 480 / math.sqrt(3) * 5 * 700e3 / 480**2,
+                                               rel=2e-3)
     assert res(out, "thd_v")["status"] == "fail"
     # the same reading taken with the bank in service is only 2 %
     out_in = run({"tx_kva": "1000", "tx_z": "5.75", "tx_xr": "5", "motor_kva": "0", "load_kw": "300",

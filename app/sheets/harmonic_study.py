@@ -245,7 +245,7 @@ def _results(out, study, options, band, profile):
                status="" if wd is None else {"ok": "ok", "short": "warn", "fail": "fail"}[wd.status],
                method="V_rms = √ΣV_h², V_peak = ΣV_h, I_rms = √ΣI_h², Q = ΣV_h·I_h per unit of rating",
                source=capduty.DUTY_PROFILES[profile][3])
-    out.result("tdd", "Current distortion (TDD) into the supply", c.tdd, "%", digits=3, group=G,
+    out.result("tdd", "Current distortion (TDD) into the supply", c.tdd, "%", digits=3, group=G, key=True,
                status="ok" if c.ok_current else "fail", display=f"{fmt.sig(c.tdd, 3)} % (limit {fmt.sig(c.tdd_limit)} %, "
                f"I_SC/I_L = {fmt.sig(study.isc_il, 3)})", method="TDD = √ΣI_h²/I_L, I_h the supply's share of the "
                "injected current", source=SRC_519)
@@ -271,9 +271,13 @@ def _results(out, study, options, band, profile):
                 fmt.sig(d.i_rms, 4), fmt.sig(d.kvar, 4), fmt.sig(d.i_rms_a, 4),
                 {"ok": "ok", "short": "8 h in 24 h only", "fail": "over"}[d.status]] for d in worst.duties],
               note="RMS current is also the reactor's current for a detuned step (its thermal rating).")
-    out.table("Harmonic voltages", ["Order", "Injected A", "V_h % bank out", f"V_h % {worst.label}"],
+    sol = harmonicbus.solve(bus, worst.steps_in, study.injection)
+    out.table("Harmonic voltages", ["Order", "Injected A", "V_h % bank out", f"V_h % {worst.label}"]
+              + [f"Step {k + 1} A" for k in worst.steps_in],
               [[str(h), fmt.sig(study.injection[h], 3), fmt.sig(study.bank_out.v_pct[h], 3), fmt.sig(worst.v_pct[h], 3)]
-               for h in sorted(study.injection) if study.injection[h] > 0])
+               + [fmt.sig(abs(sol.steps[k][h]), 3) for k in worst.steps_in]
+               for h in sorted(study.injection) if study.injection[h] > 0],
+              note="Step currents are each step's branch current at that order (through its reactor when detuned).")
     _recommendation(out, options)
     # one warning per distinct electrical state: equal steps make many combinations alike
     seen, shown, more = set(), 0, 0
