@@ -100,8 +100,10 @@ def _spectrum(ins, name, percent):
     spec = {}
     for r in rows:
         n, h, v = r["_row"], r["h"], r["level"]
-        if h != math.floor(h) or h < 2 or h > 50:
-            raise FieldError(name, f"Row {n}: the harmonic order must be a whole number from 2 to 50 (got {fmt.sig(h)}).")
+        lo, hi = harmonicsources.ORDER_MIN, harmonicsources.ORDER_MAX
+        if h != math.floor(h) or h < lo or h > hi:
+            raise FieldError(name, f"Row {n}: the harmonic order must be a whole number from {lo} to {hi} "
+                                   f"(got {fmt.sig(h)}).")
         if v < 0:
             raise FieldError(name, f"Row {n}: the level cannot be negative.")
         if percent and v > 100:
