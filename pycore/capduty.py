@@ -188,3 +188,53 @@ def rated_current_a(q_rated_kvar: float, u_rated_v: float, phases: int = 3) -> f
         raise InputError("Rated kvar and voltage must be above zero.")
     k = math.sqrt(3.0) if phases == 3 else 1.0
     return q_rated_kvar * 1e3 / (k * u_rated_v)
+
+
+# --- duty profiles: IEEE Std 18 and IEC 60831-1 -------------------------------------------
+
+IEC60831_EDITION = "IEC 60831-1 (self-healing LV shunt capacitors; limits from memory)"
+
+IEC60831_LIMITS_PERCENT = {
+    "v_rms": 100.0,
+    "i_rms": 130.0,
+}
+"""IEC 60831-1 (from memory): 1.00·U_N continuously (the highest average over any period of
+energisation), and a maximum rms current of 1.30·I_N including harmonics (up to 1.43·I_N with
+the capacitance tolerance). No separate peak-voltage or kvar limit is applied here."""
+
+IEC60831_SHORT_TIME_V_PERCENT = 110.0
+IEC60831_SHORT_TIME_TEXT = "8 h in every 24 h"
+"""IEC 60831-1 (from memory): 1.10·U_N allowed for 8 h in every 24 h (supply regulation and
+fluctuation)."""
+
+DUTY_PROFILES = {
+    "ieee18": ("IEEE Std 18", IEEE18_LIMITS_PERCENT, None, IEEE18_EDITION),
+    "iec60831": ("IEC 60831-1", IEC60831_LIMITS_PERCENT, (IEC60831_SHORT_TIME_V_PERCENT, IEC60831_SHORT_TIME_TEXT),
+                 IEC60831_EDITION),
+}
+"""Duty profiles by id: (name, continuous limits in % of rating, (short-time rms voltage %,
+duration) or None, source)."""
+
+
+@guarded
+def profile_check(values_percent: dict, profile: str = "ieee18") -> list:
+    """Check duty values {'v_rms', 'v_peak', 'i_rms', 'kvar': % of rating} against a profile of
+    :data:`DUTY_PROFILES`. Returns [(name, value %, limit %, status)] for the quantities the
+    profile limits, status 'ok', 'short' (over the continuous rms voltage but within the
+    short-time allowance: acceptable only for that duration) or 'fail'. At the limit passes."""
+    if profile not in DUTY_PROFILES:
+        raise InputError("Choose IEEE Std 18 or IEC 60831-1 as the duty profile.")
+    _, limits, short, _ = DUTY_PROFILES[profile]
+    rows = []
+    for name in ("v_rms", "v_peak", "i_rms", "kvar"):
+        if name not in limits or name not in values_percent:
+            continue
+        val, lim = float(values_percent[name]), limits[name]
+        if val <= lim * (1 + 1e-12):
+            status = "ok"
+        elif name == "v_rms" and short is not None and val <= short[0] * (1 + 1e-12):
+            status = "short"
+        else:
+            status = "fail"
+        rows.append((name, val, lim, status))
+    return rows

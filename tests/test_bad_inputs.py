@@ -57,6 +57,8 @@ RATED = {"basis": "rated"}
 PENALTY = {"tariff": "penalty"}
 KVARH = {"tariff": "kvarh"}
 LOSSES = {"add_losses": "yes"}
+HS_CURRENT = {"source": "current"}
+HS_VOLTAGE = {"source": "voltage"}
 
 # (worksheet, field, typed text, other inputs, a word the message must contain or "")
 BAD = [
@@ -233,6 +235,31 @@ BAD = [
     ("savings", "hours_month", "800", LOSSES, "at most 744"),
     ("savings", "cost", "-1", {}, "above 0"),
     ("savings", "cost", "=SUM(A1:A9)", {}, "number"),
+    # ------------------------------------------------------------------ harmonic study
+    ("harmonic_study", "v_ll", "480 kV", {}, "at most"),
+    ("harmonic_study", "tx_kva", "0", {}, "above 0"),
+    ("harmonic_study", "tx_z", "0.1", {}, "at least 0.5"),
+    ("harmonic_study", "steps", table(["100", "detuned", "", ""]), {}, "detuning factor"),
+    ("harmonic_study", "steps", table(["100", "detuned", "4", ""]), {}, "onto the 5th"),  # 1/√0.04 = 5
+    ("harmonic_study", "steps", table(["100", "plain", "", ""], ["x", "plain", "", ""]), {}, "row 2"),
+    ("harmonic_study", "steps", table(["100 Mvar", "plain", "", ""]), {}, "short-circuit"),
+    ("harmonic_study", "steps", "[]", {}, "enter"),
+    ("harmonic_study", "typical", "[]", {}, "enter"),  # no source data
+    ("harmonic_study", "typical", table(["six_pulse_ideal", "-5"]), {}, "row 1"),
+    ("harmonic_study", "i_spec", table(["5.5", "3"]), HS_CURRENT, "whole number"),
+    ("harmonic_study", "i_spec", table(["1", "30"]), HS_CURRENT, "2 to 50"),
+    ("harmonic_study", "i_spec", table(["5", "130"]), HS_CURRENT, "100"),
+    ("harmonic_study", "i_spec", table(["5", "0"]), HS_CURRENT, "above zero"),  # no source data
+    ("harmonic_study", "i1", "0", HS_CURRENT, "above 0"),
+    ("harmonic_study", "v_spec", table(["5", "101"]), HS_VOLTAGE, "100"),
+    ("harmonic_study", "v_spec", table(["60", "1"]), HS_VOLTAGE, "2 to 50"),
+    ("harmonic_study", "v_spec", table(["5", "2"], ["5", "1"]), HS_VOLTAGE, "twice"),
+    ("harmonic_study", "v_spec", "[]", HS_VOLTAGE, "enter"),  # no source data
+    ("harmonic_study", "cap_hi", "50", {}, "at most 30"),
+    ("harmonic_study", "band", "-1", {}, "at least 0"),
+    ("harmonic_study", "i_load", "-5", {}, "above 0"),
+    ("harmonic_study", "i_load", "", {"load_kw": "0", "motor_kva": "0", "source": "current", "i_unit": "amps"},
+     "maximum demand"),
 ]
 
 # Words a message for a person never contains (Python internals leaking through).
@@ -298,6 +325,7 @@ COMMAS = [
     ("bus_scan", "tx_z", "5,5", "5.5", {}),
     ("detuned", "p", "5,67", "5.67", {}),
     ("cap_duty", "u_bus", "415,5", "415.5", {}),
+    ("harmonic_study", "tx_z", "5,75", "5.75", {}),
     ("impedance", "z", "12,5 - j4,7", "12.5 - j4.7", Z),
     ("lc_resonance", "l", "1,2", "1.2", {}),
     ("bank_health", "m12", "482,7", "482.7", {}),

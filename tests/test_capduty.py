@@ -193,3 +193,15 @@ def test_rated_current():
     # Three-phase line current Q/(√3·U): 50 kvar at 440 V → 65.6 A; single-phase Q/U.
     assert capduty.rated_current_a(50, 440) == pytest.approx(50e3 / (math.sqrt(3) * 440))
     assert capduty.rated_current_a(10, 240, phases=1) == pytest.approx(10e3 / 240)
+
+
+def test_duty_profiles_ieee18_and_iec60831():
+    # IEEE Std 18-2002: 110 % rms V, 120 % peak V, 135 % rms I, 135 % kvar; at the limit passes
+    rows = capduty.profile_check({"v_rms": 110.0, "v_peak": 120.1, "i_rms": 135.0, "kvar": 100.0}, "ieee18")
+    assert rows == [("v_rms", 110.0, 110.0, "ok"), ("v_peak", 120.1, 120.0, "fail"), ("i_rms", 135.0, 135.0, "ok"),
+                    ("kvar", 100.0, 135.0, "ok")]
+    # IEC 60831-1 (from memory): 1.00·U_N continuous, 1.10·U_N for 8 h in 24 h, 1.30·I_N; no peak or kvar limit
+    rows = capduty.profile_check({"v_rms": 103.6, "v_peak": 150.0, "i_rms": 129.0, "kvar": 150.0}, "iec60831")
+    assert rows == [("v_rms", 103.6, 100.0, "short"), ("i_rms", 129.0, 130.0, "ok")]
+    assert capduty.profile_check({"v_rms": 110.5}, "iec60831") == [("v_rms", 110.5, 100.0, "fail")]
+    assert capduty.DUTY_PROFILES["iec60831"][2] == (110.0, "8 h in every 24 h")

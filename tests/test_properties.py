@@ -29,8 +29,9 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 import pycore
-from pycore import (bankhealth, banksteps, busscan, cables, capacitor, capduty, correction, detuning, healthverdict,
-                    inrush, orderlist, phasor, savings, supply, survey)
+from pycore import (bankhealth, banksteps, busscan, cables, capacitor, capduty, correction, detuning, harmonicbus,
+                    harmonicsources, harmonicstudy, healthverdict, ieee519, inrush, orderlist, phasor, resonancescreen,
+                    savings, supply, survey)
 from pycore.errors import InputError, guarded
 
 SETTINGS = settings(max_examples=200, deadline=None, database=None,
@@ -356,6 +357,40 @@ MODEL = st.builds(_model_from, st.tuples(POS, POS, POS, POS, st.none() | POS, st
     lambda m: m is not None)
 
 
+OPT_POS = st.none() | POS
+HSTEP = st.builds(harmonicbus.Step, F, F, st.none() | F, F) | st.builds(
+    harmonicbus.Step, POS, st.sampled_from([0.0, 0.0567, 0.07, 0.14]))
+
+
+def _hbus_from(args):
+    try:
+        return harmonicbus.build_bus(*args)
+    except InputError:
+        return None
+
+
+HBUS = st.builds(_hbus_from, st.tuples(POS, POS, POS, POS, OPT_POS, OPT_POS, OPT_POS, st.none() | F, st.none() | F, POS,
+                                        st.lists(HSTEP, max_size=3), st.sampled_from(["constant", "sqrt"]))).filter(
+    lambda b: b is not None)
+IDX = st.lists(st.integers(-1, 3), max_size=3)
+ORDERS = st.integers(-2, 60) | F
+HSPEC = st.dictionaries(ORDERS, F, max_size=4)
+HTOL = st.builds(resonancescreen.Tolerances, F, F, F, F)
+KIND = st.sampled_from(list(harmonicsources.TYPICAL_SPECTRA) + ["other"])
+PROFILE = st.sampled_from(["ieee18", "iec60831", "nema"])
+
+
+def _study_from(args):
+    try:
+        return harmonicstudy.run_study(*args)
+    except InputError:
+        return None
+
+
+STUDY = st.builds(_study_from, st.tuples(HBUS, st.dictionaries(st.integers(2, 50), F, min_size=1, max_size=3), POS,
+                                         PROFILE)).filter(lambda s: s is not None)
+
+
 def A(*strats, **kw):
     """Arguments: a strategy for (positional tuple, keyword dict)."""
     return st.tuples(st.tuples(*strats), st.fixed_dictionaries(kw))
@@ -417,6 +452,7 @@ CASES = {
     "capduty.duty_from_capacitor_voltages": A(SPECTRUM, F),
     "capduty.capacitor_duty": A(F, F, SPECTRUM, st.sampled_from(["voltage", "current", "power"]), F, F),
     "capduty.rated_current_a": A(F, F, PHASES),
+    "capduty.profile_check": A(st.dictionaries(st.sampled_from(["v_rms", "v_peak", "i_rms", "kvar", "x"]), F), PROFILE),
     # complexparse
     "complexparse.parse_complex": A(TEXT, UNIT),
     # correction
@@ -449,6 +485,47 @@ CASES = {
     "detuning.branch_impedance": A(F, F, F),
     "detuning.bus_impedance": A(F, F, F, F),
     "detuning.bus_resonance_order": A(F, F, F),
+    # harmonicbus
+    "harmonicbus.build_bus": A(F, F, F, F, OPT, OPT, OPT, OPT, OPT, F, st.lists(HSTEP, max_size=3),
+                               st.sampled_from(["constant", "sqrt", "cubic"]), F, F),
+    "harmonicbus.supply_impedance": A(HBUS, F),
+    "harmonicbus.base_admittance": A(HBUS, F),
+    "harmonicbus.bus_impedance": A(HBUS, IDX, F),
+    "harmonicbus.solve": A(HBUS, IDX, HSPEC),
+    "harmonicbus.capacitor_voltage_pu": A(HBUS, st.integers(-1, 3), HSPEC),
+    "harmonicbus.rated_current_a": A(HBUS, st.integers(-1, 3)),
+    "harmonicbus.with_steps": A(HBUS, st.lists(HSTEP, max_size=3)),
+    "harmonicbus.impedance_curve": A(HBUS, IDX, H, H, _bounded(0.05, 10.0)),
+    # harmonicsources
+    "harmonicsources.check_orders": A(HSPEC, BOOL),
+    "harmonicsources.fundamental_current_a": A(F, F, F),
+    "harmonicsources.typical_injection": A(KIND, F, F),
+    "harmonicsources.injection_from_percent": A(HSPEC, F),
+    "harmonicsources.combine": A(st.lists(HSPEC, max_size=3)),
+    "harmonicsources.injection_from_voltage": A(HBUS, IDX, HSPEC),
+    "harmonicsources.voltage_percent": A(HBUS, IDX, HSPEC),
+    "harmonicsources.screening_orders": A(HSPEC, st.integers(-1, 60)),
+    # harmonicstudy
+    "harmonicstudy.combo_label": A(IDX),
+    "harmonicstudy.run_study": A(HBUS, HSPEC, F, PROFILE),
+    "harmonicstudy.lowest_harmonic": A(HSPEC),
+    "harmonicstudy.fitting_factors": A(F),
+    "harmonicstudy.recommend": A(STUDY),
+    "harmonicstudy.demo_six_step": A(),
+    "harmonicstudy.tuned_onto": A(F, st.lists(st.integers(-2, 50), max_size=4)),
+    # ieee519
+    "ieee519.current_limits": A(F),
+    "ieee519.individual_current_limit": A(ORDERS, F),
+    "ieee519.check": A(HSPEC, HSPEC, F, F),
+    # resonancescreen
+    "resonancescreen.band_hits": A(F, F, st.lists(st.integers(-2, 50), max_size=4), F),
+    "resonancescreen.resonance_orders": A(HBUS, IDX, F, F),
+    "resonancescreen.tuning_orders": A(HBUS, IDX, F),
+    "resonancescreen.screen": A(HBUS, st.lists(st.tuples(st.text(max_size=3), IDX), max_size=3),
+                                st.lists(st.integers(-2, 50), max_size=4), HTOL, F),
+    "resonancescreen.screen_bank": A(F, F, F, F, st.lists(st.tuples(st.text(max_size=3), st.lists(st.tuples(F, F),
+                                                                                                   max_size=2)), max_size=2),
+                                     st.lists(st.integers(-2, 50), max_size=4), OPT, OPT, F, HTOL, F),
     # motorcap
     "motorcap.magnetising_kvar": A(F, F),
     "motorcap.magnetising_kvar_estimate": A(F, F, F, F),
@@ -579,7 +656,9 @@ CASES.update({
 # The dynamic-programming searches are the slow ones: fewer examples keep the file quick.
 SLOW = {"banksteps.best_step_count": 40, "banksteps.plan_steps": 100, "busscan.scan": 60, "busscan.find_peak": 100,
         "busscan.supply_scan": 40, "stepplans.three_plans": 30, "orderlist.design_bank": 60, "orderlist.order_rows": 20,
-        "orderlist.as_table": 10, "orderlist.as_text": 10, "inrush.limiting_inductance_h": 80}
+        "orderlist.as_table": 10, "orderlist.as_text": 10, "inrush.limiting_inductance_h": 80,
+        "busscan.supply_scan": 40, "harmonicstudy.demo_six_step": 3, "harmonicstudy.recommend": 30,
+        "harmonicstudy.run_study": 80, "harmonicbus.impedance_curve": 60}
 
 
 def _public_functions():
