@@ -657,7 +657,7 @@ CASES.update({
 SLOW = {"banksteps.best_step_count": 40, "banksteps.plan_steps": 100, "busscan.scan": 60, "busscan.find_peak": 100,
         "busscan.supply_scan": 40, "stepplans.three_plans": 30, "orderlist.design_bank": 60, "orderlist.order_rows": 20,
         "orderlist.as_table": 10, "orderlist.as_text": 10, "inrush.limiting_inductance_h": 80,
-        "busscan.supply_scan": 40, "harmonicstudy.demo_six_step": 3, "harmonicstudy.recommend": 30,
+        "harmonicstudy.demo_six_step": 3, "harmonicstudy.recommend": 30,
         "harmonicstudy.run_study": 80, "harmonicbus.impedance_curve": 60}
 
 
