@@ -206,6 +206,8 @@ def read_profile(text: str, *, date_order: str = "auto", roles: str = "", stamps
         ks = Counter(_cell_kind(r[j]) for r in sample if j < len(r))
         kinds.append(ks.most_common(1)[0][0])
 
+    num_cols = [j for j in range(width) if kinds[j] == "number"]
+    comma = sep != "," and any("," in r[j] for r in data[:500] for j in num_cols if j < len(r))
     notes: list[str] = []
     if roles.strip():
         typed = pc.parse_roles(roles)
@@ -242,7 +244,7 @@ def read_profile(text: str, *, date_order: str = "auto", roles: str = "", stamps
             a, b = value_cols[0], value_cols[1]
             second = [r[b] for r in sample if b < len(r)]
             try:
-                vals = [_float(c, sep != ",") for c in second]
+                vals = [_float(c, comma) for c in second]
                 looks_pf = all(0 < abs(v) <= 1 for v in vals)
             except ValueError:
                 looks_pf = False
@@ -262,8 +264,6 @@ def read_profile(text: str, *, date_order: str = "auto", roles: str = "", stamps
                     + (f" (× {s:g} to kilo units)" if s != 1.0 else "")) for j, (r, s) in enumerate(col_roles)]
     und.columns.append(("", "", f"roles {how}"))
 
-    comma = sep != "," and any("," in r[j] for r in data[:500] for j in range(min(width, len(r)))
-                               if role_names[j] not in pc.TIME_ROLES and role_names[j] != "skip")
     und.decimal = "comma" if comma else "point"
 
     # -- time stamps: split once, read each distinct date and each distinct time once

@@ -52,7 +52,7 @@ def order_rows(T: list, R: list, V: list, intervals_min, mixed_share: float):
     phase_counts = Counter(t % step for t in T)
     phase, on_grid = phase_counts.most_common(1)[0]
     off = len(T) - on_grid
-    if off > mixed_share * len(T):
+    if off >= 3 and off > mixed_share * len(T):
         raise InputError(f"Mixed interval lengths: {off} of {len(T)} rows are off the {_minutes(step)} grid of the others. "
                          "Split the file into parts with one interval length each.")
     flagged: list = []
