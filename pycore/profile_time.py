@@ -24,6 +24,12 @@ _TIME = re.compile(r"^(\d{1,2}):(\d{2})(?::(\d{2})(?:[.,]\d+)?)?\s*([AaPp]\.?[Mm
 _ZONE = re.compile(r"(Z|[+-]\d{2}:?\d{2})$")
 
 ORDERS = ("auto", "dmy", "mdy")
+
+
+class DateOrderError(InputError):
+    """The dates could be read day first or month first and the data cannot tell: the user
+    must choose (the message says so)."""
+
 ORDER_WORDS = {"ymd": "year first (ISO 8601)", "dmy": "day first", "mdy": "month first"}
 
 
@@ -122,7 +128,7 @@ def resolve_order(dates_in_file_order: list[str], forced: str = "auto") -> tuple
     first_big = any(not p[3] and p[0] > 12 for p in parts)
     second_big = any(not p[3] and p[1] > 12 for p in parts)
     if first_big and second_big:
-        raise InputError("Some dates have a day above 12 first and others second: the dates are mixed; "
+        raise DateOrderError("Some dates have a day above 12 first and others second: the dates are mixed; "
                          "choose the date order or check the file.")
     if first_big:
         return "dmy", "day first (a first number above 12 was found)"
@@ -134,7 +140,7 @@ def resolve_order(dates_in_file_order: list[str], forced: str = "auto") -> tuple
         score[order] = sum(1 for x, y in zip(ords, ords[1:]) if x is not None and y is not None and y - x == 1)
     if score["dmy"] == score["mdy"]:
         ex = next(d for d in dates_in_file_order if date_parts(d) and not date_parts(d)[3])
-        raise InputError(f"The dates could be day first or month first (e.g. {ex}): choose the date order.")
+        raise DateOrderError(f"The dates could be day first or month first (e.g. {ex}): choose the date order.")
     order = "dmy" if score["dmy"] > score["mdy"] else "mdy"
     return order, f"{ORDER_WORDS[order]} (consecutive dates step by one day when read this way)"
 
