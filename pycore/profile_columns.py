@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import re
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 ROLE_WORDS = {
     "time": "date and time",
@@ -68,6 +68,7 @@ def _compact(word: str) -> str:
     return re.sub(r"[\s_\-()\[\]]+", "", word.lower())
 
 
+@guarded
 def parse_roles(text: str) -> list[tuple[str, float]]:
     """Column roles as a user types them, in column order, separated by commas or semicolons:
     e.g. ``time, kW, kvar`` or ``date; time; kWh; kvarh lag; kvarh lead; -`` (``-`` or ``skip``
@@ -91,6 +92,7 @@ def parse_roles(text: str) -> list[tuple[str, float]]:
     return out
 
 
+@guarded
 def header_role(name: str) -> tuple[str, float] | None:
     """The role a header name suggests, with the scale to kilo units (``'Demand (MW)'`` →
     ``('kw', 1000)``), or None when the name says nothing usable (e.g. 'Status')."""
@@ -124,6 +126,7 @@ def header_role(name: str) -> tuple[str, float] | None:
     return None
 
 
+@guarded
 def layout(roles: list[str]) -> tuple[str, str]:
     """The roles that give P and Q, as ``(p_role, q_kind)``: q_kind is 'kvar' (one signed
     column), 'lag_lead' (lagging and leading in separate columns), 'kva' or 'pf'. Raises

@@ -92,7 +92,7 @@ class Simulation:
     positions: list = field(default_factory=list)
 
 
-def step_choice(q1: float, need: float, tots: list) -> float:
+def _choice(q1: float, need: float, tots: list) -> float:
     """The controller's choice [kvar] among step totals ``tots`` (ascending, 0 first) for an
     interval whose load after the fixed part draws ``q1`` [kvar] and needs ``need`` [kvar] to
     reach the target: the smallest total ≥ need that does not exceed q1 (would not lead), else
@@ -104,6 +104,9 @@ def step_choice(q1: float, need: float, tots: list) -> float:
         return tots[j]
     j = bisect_right(tots, q1 + _TOL) - 1
     return tots[j] if j >= 0 else 0.0
+
+
+step_choice = guarded(_choice)
 
 
 @guarded
@@ -129,7 +132,7 @@ def simulate(t: list, p: list, q: list, interval_s: int, bank: Bank, pf_target: 
     q1 = [b - fixed for b in q] if fixed else list(q)
     allowed = [a * k if a > 0 else 0.0 for a in p]
     if steps:
-        chosen = list(map(step_choice, q1, [x - y for x, y in zip(q1, allowed)], [tots] * len(q1)))
+        chosen = list(map(_choice, q1, [x - y for x, y in zip(q1, allowed)], [tots] * len(q1)))
         after = [x - c for x, c in zip(q1, chosen)]
         given = [fixed + c for c in chosen]
     else:

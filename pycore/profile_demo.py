@@ -13,12 +13,14 @@ import math
 import random
 from datetime import date, timedelta
 
+from .errors import guarded
 from .profile_control import Bank, simulate
 from .profile_read import read_profile
 from .profile_stats import (curve_points, daily_profile, duration, kvar_for_billing, kvar_for_share,
                             kvar_kept_lagging, needs, pf_per_interval, totals)
 
 
+@guarded
 def demo_rows(days: int = 7, interval_min: int = 15, start: date = date(2025, 3, 3), seed: int = 7) -> list:
     """[(date, minute of the day at the interval's end, kW, kvar)] for an invented plant."""
     rnd = random.Random(seed)
@@ -38,6 +40,7 @@ def demo_rows(days: int = 7, interval_min: int = 15, start: date = date(2025, 3,
     return out
 
 
+@guarded
 def demo_text(days: int = 7, interval_min: int = 15, start: date = date(2025, 3, 3), seed: int = 7) -> str:
     """CSV text (comma, decimal point, header ``Time,kW,kvar``; each stamp marks the end of its
     interval, 24:00 written as 00:00 of the next day) of :func:`demo_rows`."""
@@ -49,6 +52,7 @@ def demo_text(days: int = 7, interval_min: int = 15, start: date = date(2025, 3,
     return "\n".join(lines) + "\n"
 
 
+@guarded
 def read_and_analyse(text: str, pf_target: float = 0.95, share: float = 0.95, bank: Bank | None = None) -> dict:
     """Read a profile's text and work out every figure the load-profile worksheet shows (totals,
     duration curves, daily profile, the three kvar figures, a controller simulation). Returns

@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 
 from . import profile_columns as pc
 from . import profile_time as pt
-from .errors import InputError
+from .errors import InputError, guarded
 
 MAX_CHARS = 20_000_000
 """Largest text read [characters]: 20 MB, about four years of 5-minute rows (our own limit)."""
@@ -152,6 +152,7 @@ def _float(cell: str, comma: bool) -> float:
     return v
 
 
+@guarded
 def read_profile(text: str, *, date_order: str = "auto", roles: str = "", stamps: str = "end") -> Profile:
     """Read a load profile from text (see the module notes).
 

@@ -12,7 +12,7 @@ from __future__ import annotations
 from collections import Counter
 
 from . import profile_time as pt
-from .errors import InputError
+from .errors import InputError, guarded
 
 _FORWARD_MONTHS = (3, 4, 9, 10)  # months in which clocks go forward, north or south (common practice)
 
@@ -22,6 +22,7 @@ def _minutes(s: int) -> str:
     return f"{m:g} min" if m < 120 else f"{m / 60:g} h"
 
 
+@guarded
 def order_rows(T: list, R: list, V: list, intervals_min, mixed_share: float):
     """Check the rows' times ``T`` [s] (line numbers ``R``, value lists ``V``) in file order.
 
@@ -31,6 +32,8 @@ def order_rows(T: list, R: list, V: list, intervals_min, mixed_share: float):
     and gaps as (stamp before [s], stamp after [s], intervals missing, note). Raises
     :class:`InputError` when the interval is not one accepted, or when more than
     ``mixed_share`` of the steps or rows belong to another interval length."""
+    if len(R) != len(T) or any(len(v) != len(T) for v in V) or not intervals_min:
+        raise InputError("Times, rows and values must be lists of the same length.")
     uniq = sorted(set(T))
     if len(uniq) < 2:
         raise InputError("All rows carry the same time: the profile needs one row per interval.")

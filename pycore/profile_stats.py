@@ -83,6 +83,7 @@ def totals(p: list, q: list, h: float) -> Totals:
                   n * h, n, sum(1 for x in p if x > 0), math.fsum(p) / n)
 
 
+@guarded
 def needs(p: list, q: list, pf_target: float) -> list:
     """kvar needed in each importing interval [kvar]: max(0, Q − P·tan φ₂) for P > 0 (IEEE Std
     141, power-factor chapter), in the profile's order; intervals with P ≤ 0 are left out."""
@@ -90,6 +91,7 @@ def needs(p: list, q: list, pf_target: float) -> list:
     return [max(0.0, b - a * k) for a, b in zip(p, q) if a > 0]
 
 
+@guarded
 def quantile_low(sorted_values: list, share: float) -> float:
     """The smallest value reached by at least ``share`` of the values (lower empirical quantile,
     numpy's 'inverted_cdf'): sorted_values ascending, 0 < share ≤ 1."""
@@ -153,22 +155,27 @@ def kvar_kept_lagging(p: list, q: list, share: float = 0.95) -> float:
     if not qs:
         raise InputError("No interval imports power: there is nothing to correct.")
     n = len(qs)
-    return max(0.0, qs[n - math.ceil(share * n - 1e-9)])
+    return max(0.0, qs[n - max(1, math.ceil(share * n - 1e-9))])
 
 
+@guarded
 def pf_per_interval(p: list, q: list) -> list:
     """Power factor P/√(P² + Q²) of each importing interval (P > 0) [dimensionless], in order."""
     return [a / math.hypot(a, b) for a, b in zip(p, q) if a > 0]
 
 
+@guarded
 def duration(values: list) -> list:
     """Duration curve: the values sorted from largest to smallest, each held for one interval."""
     return sorted(values, reverse=True)
 
 
+@guarded
 def curve_points(curve: list, n_points: int = 240) -> list:
     """Up to ``n_points`` points [(share of time [%], value)] along a duration curve, each value
     at the middle of its interval's share of the time, first and last kept."""
+    if n_points < 2:
+        raise InputError("A curve needs at least two points.")
     n = len(curve)
     if n == 0:
         return []

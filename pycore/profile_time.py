@@ -15,7 +15,7 @@ from __future__ import annotations
 import re
 from datetime import date
 
-from .errors import InputError
+from .errors import InputError, guarded
 
 DAY_S = 86_400
 
@@ -33,6 +33,7 @@ class DateOrderError(InputError):
 ORDER_WORDS = {"ymd": "year first (ISO 8601)", "dmy": "day first", "mdy": "month first"}
 
 
+@guarded
 def split_stamp(text: str) -> tuple[str, str, bool]:
     """Split ``'2025-03-31 07:15'`` or ``'2025-03-31T07:15Z'`` into date text, time text, and
     whether a time-zone suffix was set aside. A cell with no time gives ``(text, '', False)``."""
@@ -51,6 +52,7 @@ def split_stamp(text: str) -> tuple[str, str, bool]:
     return d, t, zoned
 
 
+@guarded
 def time_of_day(text: str) -> int | None:
     """Seconds after midnight [s] for a time of day such as ``7:15``, ``07:15:30`` or
     ``7:15 pm``; 86 400 for ``24:00``; None when the text is not a time."""
@@ -73,6 +75,7 @@ def time_of_day(text: str) -> int | None:
     return h * 3600 + mi * 60 + sec
 
 
+@guarded
 def date_parts(text: str) -> tuple[int, int, int, bool] | None:
     """The three numbers of a date and whether the year comes first (4-digit first group);
     None when the text is not a date of the accepted shapes."""
@@ -91,6 +94,7 @@ def _year(y: int) -> int:
     return 2000 + y if y < 100 else y
 
 
+@guarded
 def ordinal(parts: tuple[int, int, int, bool], order: str) -> int | None:
     """Day number (``date.toordinal``) for date parts read in ``order`` ('dmy' or 'mdy'; a
     year-first date is always year-month-day); None for an impossible date such as 31/02."""
@@ -105,6 +109,7 @@ def ordinal(parts: tuple[int, int, int, bool], order: str) -> int | None:
         return None
 
 
+@guarded
 def resolve_order(dates_in_file_order: list[str], forced: str = "auto") -> tuple[str, str]:
     """Decide how to read ``a/b/year`` dates: returns ``(order, how)`` with order 'dmy', 'mdy'
     or 'ymd' and a sentence saying how it was decided.
@@ -145,12 +150,14 @@ def resolve_order(dates_in_file_order: list[str], forced: str = "auto") -> tuple
     return order, f"{ORDER_WORDS[order]} (consecutive dates step by one day when read this way)"
 
 
+@guarded
 def month_of(day_ordinal: int) -> tuple[int, int]:
     """(year, month) of a day number."""
     d = date.fromordinal(day_ordinal)
     return d.year, d.month
 
 
+@guarded
 def stamp_text(t: int) -> str:
     """``YYYY-MM-DD HH:MM`` for a time t [s from 0001-01-01]."""
     if t < DAY_S:
