@@ -120,6 +120,8 @@ def simulate(t: list, p: list, q: list, interval_s: int, bank: Bank, pf_target: 
         raise InputError("The target power factor must be above 0 and at most 1.")
     if basis not in ("net", "lagging"):
         raise InputError("The kvarh basis must be net or lagging.")
+    if not len(t) == len(p) == len(q):
+        raise InputError("The profile's lists must be of the same length (one entry per interval).")
     steps = [float(s) for s in bank.steps]
     if len(steps) > MAX_STEPS:
         raise InputError(f"At most {MAX_STEPS} steps.")

@@ -34,10 +34,12 @@ def order_rows(T: list, R: list, V: list, intervals_min, mixed_share: float):
     ``mixed_share`` of the steps or rows belong to another interval length."""
     if len(R) != len(T) or any(len(v) != len(T) for v in V) or not intervals_min:
         raise InputError("Times, rows and values must be lists of the same length.")
-    uniq = sorted(set(T))
+    file_steps = [b - a for a, b in zip(T, T[1:])]
+    increasing = bool(file_steps) and min(file_steps) > 0
+    uniq = T if increasing else sorted(set(T))
     if len(uniq) < 2:
         raise InputError("All rows carry the same time: the profile needs one row per interval.")
-    steps = [b - a for a, b in zip(uniq, uniq[1:])]
+    steps = file_steps if increasing else [b - a for a, b in zip(uniq, uniq[1:])]
     diffs = Counter(steps)
     step, n_step = diffs.most_common(1)[0]
     allowed = {m * 60 for m in intervals_min}
@@ -60,8 +62,7 @@ def order_rows(T: list, R: list, V: list, intervals_min, mixed_share: float):
                          "Split the file into parts with one interval length each.")
     flagged: list = []
     skipped: list = []
-    file_steps = [b - a for a, b in zip(T, T[1:])]
-    if min(file_steps) > 0 and on_grid == len(T):
+    if increasing and on_grid == len(T):
         # the usual file: strictly increasing, on one grid (no duplicates, nothing backwards)
         gaps = [_gap(T[i], T[i + 1], step) for i, d in enumerate(file_steps) if d > step]
         return list(range(len(T))), step, flagged, skipped, gaps

@@ -28,6 +28,11 @@ def _tan(pf: float) -> float:
     return math.sqrt(max(0.0, 1.0 - pf * pf)) / pf
 
 
+def _same_length(*lists) -> None:
+    if len({len(x) for x in lists}) > 1:
+        raise InputError("The profile's lists must be of the same length (one entry per interval).")
+
+
 def _share(share: float) -> None:
     if not (isinstance(share, (int, float)) and 0 < share <= 1):
         raise InputError("The share of intervals must be above 0 % and at most 100 %.")
@@ -87,6 +92,7 @@ def totals(p: list, q: list, h: float) -> Totals:
 def needs(p: list, q: list, pf_target: float) -> list:
     """kvar needed in each importing interval [kvar]: max(0, Q − P·tan φ₂) for P > 0 (IEEE Std
     141, power-factor chapter), in the profile's order; intervals with P ≤ 0 are left out."""
+    _same_length(p, q)
     k = _tan(pf_target)
     return [max(0.0, b - a * k) for a, b in zip(p, q) if a > 0]
 
@@ -108,6 +114,7 @@ def kvar_for_share(p: list, q: list, pf_target: float, share: float = 0.95) -> t
     with ideal control (in each interval the bank gives what is needed up to its size), and the
     index of the interval that sets it (the design point). An interval meets the target when
     its need max(0, Q − P·tan φ₂) ≤ Q_C (IEEE Std 141 power-factor chapter; lower quantile)."""
+    _same_length(p, q)
     _share(share)
     k = _tan(pf_target)
     idx = [i for i, a in enumerate(p) if a > 0]
@@ -125,6 +132,7 @@ def kvar_for_billing(p: list, q: list, h: float, pf_target: float, basis: str = 
     ``basis`` 'net': kvarh billed as lagging − leading; 'lagging': lagging kvarh only. Solves
     C + h·Σ max(0, Q_i − Q_C) = ΣkWh·tan φ₂ exactly over the sorted Q (piecewise linear), C
     being the leading kvarh on a net basis. Utility billing practice; power triangle. [kvar]"""
+    _same_length(p, q)
     if basis not in ("net", "lagging"):
         raise InputError("The kvarh basis must be net or lagging.")
     k = _tan(pf_target)
@@ -150,6 +158,7 @@ def kvar_kept_lagging(p: list, q: list, share: float = 0.95) -> float:
     of the importing intervals still lagging: the largest x with #(Q ≥ x) ≥ share·n, i.e. the
     light-load intervals' reactive power (power triangle; lower quantile from the top). Zero
     when more than 1 − share of the intervals already lead."""
+    _same_length(p, q)
     _share(share)
     qs = sorted(b for a, b in zip(p, q) if a > 0)
     if not qs:
@@ -161,6 +170,7 @@ def kvar_kept_lagging(p: list, q: list, share: float = 0.95) -> float:
 @guarded
 def pf_per_interval(p: list, q: list) -> list:
     """Power factor P/√(P² + Q²) of each importing interval (P > 0) [dimensionless], in order."""
+    _same_length(p, q)
     return [a / math.hypot(a, b) for a, b in zip(p, q) if a > 0]
 
 
@@ -190,16 +200,13 @@ def curve_points(curve: list, n_points: int = 240) -> list:
 def daily_profile(t: list, p: list, q: list, interval_s: int) -> list:
     """Mean demand by time of day: [(start of the slot [s after midnight], mean P [kW], mean Q
     [kvar], intervals averaged)] for each slot of ``interval_s`` [s] that has data."""
-    if interval_s <= 0:
-        raise InputError("The interval must be above zero.")
-    acc: dict = {}
-    for ti, a, b in zip(t, p, q):
-        slot = (ti % DAY_S) // interval_s
-        e = acc.get(slot)
-        if e is None:
-            acc[slot] = [a, b, 1]
-        else:
-            e[0] += a
-            e[1] += b
-            e[2] += 1
-    return [(s * interval_s, e[0] / e[2], e[1] / e[2], e[2]) for s, e in sorted(acc.items())]
+    _same_length(t, p, q)
+    if not 0 < interval_s <= DAY_S:
+        raise InputError("The interval must be above zero and at most a day.")
+    n_slots = -(-DAY_S // interval_s)
+    sp, sq, cnt = [0.0] * n_slots, [0.0] * n_slots, [0] * n_slots
+    for slot, a, b in zip([(ti % DAY_S) // interval_s for ti in t], p, q):
+        sp[slot] += a
+        sq[slot] += b
+        cnt[slot] += 1
+    return [(s * interval_s, sp[s] / cnt[s], sq[s] / cnt[s], cnt[s]) for s in range(n_slots) if cnt[s]]
