@@ -234,7 +234,7 @@ def compute(ins, out):
             out.warn(f"{_pct(w.lead)} of the intervals lead with this bank: a leading power factor raises the voltage and may be billed.")
 
     _understood(out, prof)
-    _figures(out, prof, target, sim)
+    _figures(out, prof, target, sim, q_share)
     _links(out, prof, target, design, sim, basis)
     if prof.skipped:
         out.warn(f"{len(prof.skipped):,} row(s) were left out: see the rows listed below.")
@@ -273,24 +273,29 @@ def _understood(out, prof):
                   note=f"and {more:,} more gaps" if more > 0 else "Times as stamped in the file.")
 
 
-def _figures(out, prof, target, sim):
+def _figures(out, prof, target, sim, q_share):
     p, q = prof.p, prof.q
     need = ps.curve_points(ps.duration(ps.needs(p, q, target)))
     qc = ps.curve_points(ps.duration([b for a, b in zip(p, q) if a > 0]))
     out.figure("kvar duration", xy_chart(
         "kvar duration", [{"points": qc, "label": "Q drawn", "cls": "fp-s1"},
-                          {"points": need, "label": f"needed for {target:.2f}", "cls": "fp-s2"}],
+                          {"points": need, "label": f"needed for {target:.2f}", "cls": "fp-s2"},
+                          {"points": [(0.0, q_share), (100.0, q_share)], "label": f"{fmt.sig(q_share, 3)} kvar",
+                           "cls": "fp-s4", "dash": "5 4", "width": 1.5}],
         x_label="share of intervals at or above (%)", y_label="kvar", width=400, height=300,
         desc="Reactive power and the kvar needed to reach the target, sorted from largest to smallest."))
-    series = [{"points": ps.curve_points(sorted(ps.pf_per_interval(p, q))), "label": "before", "cls": "fp-s1"}]
+    series = [{"points": ps.curve_points(ps.duration(ps.pf_per_interval(p, q))), "label": "before", "cls": "fp-s1"}]
     if sim is not None:
         after = [b - c for b, c in zip(q, sim.given)]
-        pf_after = sorted(a / abs(complex(a, b)) for a, b in zip(p, after) if a > 0)
+        pf_after = ps.duration([a / abs(complex(a, b)) for a, b in zip(p, after) if a > 0])
         series.append({"points": ps.curve_points(pf_after), "label": "with the bank", "cls": "fp-s2"})
+    series.append({"points": [(0.0, target), (100.0, target)], "label": f"target {target:.2f}", "cls": "fp-s4",
+                   "dash": "5 4", "width": 1.5})
+    series.append({"points": [(0.0, 1.07)], "cls": "fp-bg"})  # not drawn: head room above PF 1 for the legend
     out.figure("Power-factor duration", xy_chart(
-        "Power-factor duration", series, x_label="share of intervals at or below (%)", y_label="power factor",
+        "Power-factor duration", series, x_label="share of intervals at or above (%)", y_label="power factor",
         width=400, height=300, markers=[],
-        desc=f"Power factor of each interval sorted from lowest to highest; the target is {target:.2f}. "
+        desc=f"Power factor of each interval sorted from highest to lowest; the target is {target:.2f}. "
              "Leading intervals count by their magnitude."))
     daily = ps.daily_profile(prof.t, p, q, prof.interval_s)
     out.figure("Daily profile", xy_chart(
