@@ -237,3 +237,27 @@ def test_bad_text_gets_a_clear_message(text, word):
 def test_size_limit_is_stated():
     with pytest.raises(InputError, match="at most 20 MB"):
         read("x" * (pr.MAX_CHARS + 1))
+
+
+def test_end_stamps_put_midnight_in_the_day_before():
+    # a stamp at 00:00 that marks the end of its interval belongs to the previous day (and month)
+    from pycore.profile_control import Bank, simulate
+    text = _rows([("2025-01-31 23:30", 10, 5), ("2025-01-31 23:45", 10, 5), ("2025-02-01 00:00", 10, 5),
+                  ("2025-02-01 00:15", 20, 5)])
+    end = read(text)
+    sim = simulate(end.t, end.p, end.q, end.interval_s, Bank(), 0.95)
+    assert [m.label for m in sim.months] == ["2025-01", "2025-02"]
+    assert sim.months[0].kwh == pytest.approx(3 * 10 * 0.25) and sim.months[1].kwh == pytest.approx(20 * 0.25)
+    start = read(text, stamps="start")
+    sim = simulate(start.t, start.p, start.q, start.interval_s, Bank(), 0.95)
+    assert sim.months[0].kwh == pytest.approx(2 * 10 * 0.25)
+
+
+def test_lagging_and_leading_columns_net_out():
+    text = ("Time,kvarh lag,kvarh lead,kWh\n"
+            "2025-06-02 00:15,10,0,25\n2025-06-02 00:30,0,4,25\n2025-06-02 00:45,6,1,25\n")
+    prof = read(text)
+    assert prof.q == pytest.approx([40.0, -16.0, 20.0])  # (lag − lead) ÷ 0.25 h
+    assert prof.p == pytest.approx([100.0, 100.0, 100.0])
+    t = totals(prof.p, prof.q, prof.hours)
+    assert t.kvarh_lag == pytest.approx(15.0) and t.kvarh_lead == pytest.approx(4.0)
