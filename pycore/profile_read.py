@@ -23,6 +23,7 @@ from dataclasses import dataclass, field
 from . import profile_columns as pc
 from . import profile_time as pt
 from .errors import InputError, guarded
+from .profile_reactive import layout_words, reactive
 
 MAX_CHARS = 20_000_000
 """Largest text read [characters]: 20 MB, about four years of 5-minute rows (our own limit)."""
@@ -33,8 +34,6 @@ INTERVALS_MIN = (5, 10, 15, 30, 60)
 MIXED_SHARE = 0.10
 """Above this share of steps at a second interval length (or rows off the interval grid) a file
 is refused as mixed; below it those rows are listed and left out (our own choice)."""
-PF_KVA_SLACK = 0.01
-"""kVA may fall below kW by this fraction (meter rounding) and is then read as PF 1 (our own)."""
 _SAMPLE = 60
 
 
@@ -340,7 +339,7 @@ def read_profile(text: str, *, date_order: str = "auto", roles: str = "", stamps
     cols = {role: [V[k][i] for i in keep] for k, (_, role, _) in enumerate(used)}
     scale = {role: (1.0 / h if role in pc.ENERGY_ROLES else 1.0) for role in cols}
     P = [v * scale[p_role] for v in cols[p_role]]
-    Q, q_notes, q_bad = _reactive(cols, scale, q_kind, P)
+    Q, q_notes, q_bad = reactive(cols, scale, q_kind, P)
     notes.extend(q_notes)
     rows_kept = [R[i] for i in keep]
     t_kept = [T[i] - (interval_s if stamps == "end" else 0) for i in keep]
@@ -355,7 +354,7 @@ def read_profile(text: str, *, date_order: str = "auto", roles: str = "", stamps
             flagged.append((rows_kept[i], "negative kW: power exported in this interval"))
     if len(P) < 2:
         raise InputError("Fewer than two intervals remain after the rows listed were left out.")
-    und.layout = _layout_words(p_role, q_kind, role_names)
+    und.layout = layout_words(p_role, q_kind, role_names)
     und.interval_min = interval_s // 60
     und.first, und.last = t_kept[0], t_kept[-1]
     und.rows_used = len(P)
@@ -389,63 +388,3 @@ def _column(data: list, j: int, comma: bool, scale: float) -> list:
     if scale != 1.0:
         vals = [None if v is None else v * scale for v in vals]
     return vals
-
-
-def _reactive(cols: dict, scale: dict, q_kind: str, P: list) -> tuple[list, list, dict]:
-    """Q [kvar, + lagging] per interval from the Q columns; notes; {index: reason} for intervals
-    whose Q cannot be found."""
-    notes: list[str] = []
-    bad: dict[int, str] = {}
-    if q_kind == "kvar":
-        role = "kvar" if "kvar" in cols else "kvarh"
-        k = scale[role]
-        return [v * k for v in cols[role]], notes, bad
-    if q_kind == "lag_lead":
-        lag = next((r for r in ("kvar_lag", "kvarh_lag") if r in cols), None)
-        lead = next((r for r in ("kvar_lead", "kvarh_lead") if r in cols), None)
-        n = len(P)
-        a = [v * scale[lag] for v in cols[lag]] if lag else [0.0] * n
-        b = [v * scale[lead] for v in cols[lead]] if lead else [0.0] * n
-        if not lead:
-            notes.append("Only lagging kvar is given: leading kvar is taken as zero.")
-        if not lag:
-            notes.append("Only leading kvar is given: lagging kvar is taken as zero.")
-        return [x - abs(y) for x, y in zip(a, b)], notes, bad
-    if q_kind == "kva":
-        role = "kva" if "kva" in cols else "kvah"
-        k = scale[role]
-        out = []
-        for i, (p, s) in enumerate(zip(P, cols[role])):
-            s *= k
-            d = s * s - p * p
-            if d < 0:
-                if s < abs(p) * (1 - PF_KVA_SLACK):
-                    bad[i] = "kVA below kW: not a possible reading"
-                d = 0.0
-            out.append(math.sqrt(d))
-        notes.append("kvar is found from kVA and kW and taken as lagging (kVA carries no sign).")
-        return out, notes, bad
-    out = []
-    pfs = cols["pf"]
-    percent = all(1.0 < abs(v) <= 100.0 for v in pfs[:200] if v != 0)
-    if percent:
-        notes.append("Power factors above 1 are read as percentages.")
-    for i, (p, pf) in enumerate(zip(P, pfs)):
-        if percent:
-            pf /= 100.0
-        if pf <= 0 or pf > 1:
-            bad[i] = ("negative power factor: the meter's sign convention (leading or export) is not known"
-                      if pf < 0 else "power factor 0 or above 1: not a possible reading")
-            out.append(0.0)
-            continue
-        out.append(p * math.sqrt(1 - pf * pf) / pf)
-    notes.append("kvar is found from kW and power factor and taken as lagging.")
-    return out, notes, bad
-
-
-def _layout_words(p_role: str, q_kind: str, roles: list[str]) -> str:
-    p = "kW" if p_role == "kw" else "kWh per interval (÷ interval length)"
-    q = {"kvar": "kvar" if "kvar" in roles else "kvarh per interval (÷ interval length)",
-         "lag_lead": "lagging − leading " + ("kvarh" if any(r.startswith("kvarh") for r in roles) else "kvar"),
-         "kva": "√(kVA² − kW²), lagging", "pf": "kW·tan(acos PF), lagging"}[q_kind]
-    return f"P from {p}; Q from {q}"
