@@ -260,6 +260,20 @@ BAD = [
     ("harmonic_study", "i_load", "-5", {}, "above 0"),
     ("harmonic_study", "i_load", "", {"load_kw": "0", "motor_kva": "0", "source": "current", "i_unit": "amps"},
      "maximum demand"),
+    # ------------------------------------------------------------------ load_profile
+    ("load_profile", "profile", "", {}, "empty"),
+    ("load_profile", "profile", "PK\x03\x04\x00\x00", {}, "not text"),
+    ("load_profile", "profile", "Time,kW,kvar\n2025-01-01 00:15,5,5\n", {}, "one row"),
+    ("load_profile", "profile", "Time,kW,kvar\n2025-01-01 00:15,5,5\n2025-01-01 00:22,5,5\n", {}, "7 min"),
+    ("load_profile", "profile", "Time,kW,kvar\nx,y,z\n", {}, "no row"),
+    ("load_profile", "profile", "Time,kW,kvar\n2025-01-01 00:15,-5,5\n2025-01-01 00:30,-5,5\n", {}, "imports"),
+    ("load_profile", "roles", "time, kW, kvar, volts", {}, "column 4"),
+    ("load_profile", "target_pf", "0.95 lead", {}, "lagging"),
+    ("load_profile", "target_pf", "1.2", {}, "impossible"),
+    ("load_profile", "target_pf", "", {}, "enter"),
+    ("load_profile", "share", "30", {}, "at least 50"),
+    ("load_profile", "steps", "25, -5", {}, "item 2"),
+    ("load_profile", "fixed_kvar", "0", {"bank": "fixed"}, "above 0"),
 ]
 
 # Words a message for a person never contains (Python internals leaking through).
@@ -331,6 +345,7 @@ COMMAS = [
     ("bank_health", "m12", "482,7", "482.7", {}),
     ("motor_cap", "pf_full", "0,86", "0.86", {}),
     ("savings", "pf1", "0,78", "0.78", {}),
+    ("load_profile", "target_pf", "0,95", "0.95", {}),
 ]
 
 

@@ -30,8 +30,8 @@ from hypothesis import strategies as st
 
 import pycore
 from pycore import (bankhealth, banksteps, busscan, cables, capacitor, capduty, correction, detuning, harmonicbus,
-                    harmonicsources, harmonicstudy, healthverdict, ieee519, inrush, orderlist, phasor, resonancescreen,
-                    savings, supply, survey)
+                    harmonicsources, harmonicstudy, healthverdict, ieee519, inrush, orderlist, phasor, profile_columns,
+                    profile_control, resonancescreen, savings, supply, survey)
 from pycore.errors import InputError, guarded
 
 SETTINGS = settings(max_examples=200, deadline=None, database=None,
@@ -341,6 +341,15 @@ RATINGS = st.lists(F, min_size=0, max_size=4)
 SPECTRUM = st.dictionaries(st.integers(-3, 60) | F, F, max_size=5)
 LOAD = st.builds(correction.Load, F, F)
 SLOAD = st.builds(survey.Load, st.text(max_size=5), F, F, F, OPT)
+PROFILE_ROLES = set(profile_columns.ROLE_WORDS)
+PSTAMP = st.sampled_from(["2025-03-31 07:15", "31/03/25 7:15 pm", "2025-03-31T07:15+01:00", "03.04.2025", "9999-12-31 24:00"])
+INTS = st.lists(st.integers(-10**12, 10**12) | st.integers(), max_size=6)
+PTEXT = st.sampled_from([
+    "Time,kW,kvar\n2025-01-01 00:15,5,5\n2025-01-01 00:30,6,-1\n",
+    "Time;kWh;PF\n01.01.2025 00:15;5,5;0,9\n01.01.2025 00:30;6;1e308\n",
+    "Time,kW,kVA\n9999-12-31 23:00,1e308,1e308\n9999-12-31 24:00,-1e308,0\n",
+    "0001-01-01 00:00,1,1\n0001-01-01 01:00,1,1\n",
+])
 BAND = st.sampled_from(list(bankhealth.BANDS.values())) | st.builds(
     bankhealth.Band, st.just("custom"), F, F, st.just("own"), st.just("own"))
 H = _bounded(-100.0, 100.0)  # harmonic-order range ends (a plotting parameter, kept to a sane span)
@@ -591,6 +600,51 @@ CASES = {
     "survey.make_load": A(st.text(max_size=5), F, OPT, BOOL, OPT, OPT, OPT),
     "survey.row_totals": A(SLOAD, F),
     "survey.survey_totals": A(st.lists(SLOAD, max_size=4), F),
+    # load profiles (issue 15) and the pieces the correction worksheet will call
+    "pfparse.parse_pf": A(TEXT),
+    "pfparse.parse_lagging_pf": A(TEXT),
+    "transformer.typical_no_load_pct": A(F),
+    "transformer.reactive_kvar": A(F, F, F, F),
+    "transformer.no_load_compensation_kvar": A(F, F),
+    "transformer.kvar_for_primary_target": A(F, F, F, F, F, F),
+    "bankoutput.with_bank_at": A(F, F, F, F, F, F, F),
+    "bankoutput.kvar_to_switch_off": A(F, F, F),
+    "profile_columns.parse_roles": A(TEXT | st.sampled_from(["time, kW, kvar", "date; time; kWh; kvarh lag", ""])),
+    "profile_columns.header_role": A(TEXT | st.sampled_from(["Demand (MW)", "kvarh lead", "PF", "Status"])),
+    "profile_columns.layout": A(st.lists(st.sampled_from(sorted(PROFILE_ROLES)) | st.text(max_size=4), max_size=5)),
+    "profile_time.split_stamp": A(TEXT | PSTAMP),
+    "profile_time.time_of_day": A(TEXT | st.sampled_from(["7:15", "24:00", "12:30 PM", "13:00 am", "23:61"])),
+    "profile_time.date_parts": A(TEXT | PSTAMP),
+    "profile_time.ordinal": A(st.tuples(st.integers(), st.integers(), st.integers(), BOOL), st.sampled_from(["dmy", "mdy", "x"])),
+    "profile_time.resolve_order": A(st.lists(TEXT | PSTAMP, max_size=4), st.sampled_from(["auto", "dmy", "mdy", "x"])),
+    "profile_time.month_of": A(st.integers()),
+    "profile_time.stamp_text": A(st.integers()),
+    "profile_sequence.order_rows": A(INTS, INTS, st.lists(st.lists(F, max_size=6), max_size=2),
+                                     st.sampled_from([(5, 15), (60,), ()]), F),
+    "profile_read.read_profile": A(TEXT | PTEXT),
+    "profile_reactive.reactive": A(st.dictionaries(st.sampled_from(sorted(PROFILE_ROLES)), LIST3, max_size=3),
+                                   st.dictionaries(st.sampled_from(sorted(PROFILE_ROLES)), F, max_size=3),
+                                   st.sampled_from(["kvar", "lag_lead", "kva", "pf", "x"]), LIST3),
+    "profile_reactive.layout_words": A(st.sampled_from(["kw", "kwh", "x"]), st.sampled_from(["kvar", "lag_lead", "kva", "pf", "x"]),
+                                       st.lists(st.sampled_from(sorted(PROFILE_ROLES)), max_size=4)),
+    "profile_stats.billing_pf": A(F, F),
+    "profile_stats.totals": A(LIST3, LIST3, F),
+    "profile_stats.needs": A(LIST3, LIST3, F),
+    "profile_stats.quantile_low": A(LIST3.map(sorted), F),
+    "profile_stats.kvar_for_share": A(LIST3, LIST3, F, F),
+    "profile_stats.kvar_for_billing": A(LIST3, LIST3, F, F, st.sampled_from(["net", "lagging", "x"])),
+    "profile_stats.kvar_kept_lagging": A(LIST3, LIST3, F),
+    "profile_stats.pf_per_interval": A(LIST3, LIST3),
+    "profile_stats.duration": A(LIST3),
+    "profile_stats.curve_points": A(LIST3, st.integers(-2, 300)),
+    "profile_stats.daily_profile": A(INTS, LIST3, LIST3, st.integers(-10, 10**6)),
+    "profile_control.step_choice": A(F, F, LIST3.map(sorted)),
+    "profile_control.simulate": A(INTS, LIST3, LIST3, st.integers(-10, 10**6),
+                                  st.builds(profile_control.Bank, F, st.lists(F, max_size=3).map(tuple)), F,
+                                  st.sampled_from(["net", "lagging", "x"])),
+    "profile_demo.demo_rows": A(st.integers(-1, 2), st.sampled_from([5, 15, 60, 7, 0, -5])),
+    "profile_demo.demo_text": A(st.integers(-1, 2), st.sampled_from([5, 15, 60, 7, 0, -5])),
+    "profile_demo.read_and_analyse": A(TEXT | PTEXT, F, F),
 }
 
 # Switching, discharge, protection, cable, step plans, bank losses, health verdicts, order list (issue 16).
@@ -658,7 +712,8 @@ SLOW = {"banksteps.best_step_count": 40, "banksteps.plan_steps": 100, "busscan.s
         "busscan.supply_scan": 40, "stepplans.three_plans": 30, "orderlist.design_bank": 60, "orderlist.order_rows": 20,
         "orderlist.as_table": 10, "orderlist.as_text": 10, "inrush.limiting_inductance_h": 80,
         "harmonicstudy.demo_six_step": 3, "harmonicstudy.recommend": 30,
-        "harmonicstudy.run_study": 80, "harmonicbus.impedance_curve": 60}
+        "harmonicstudy.run_study": 80, "harmonicbus.impedance_curve": 60,
+        "profile_demo.read_and_analyse": 40, "profile_read.read_profile": 100}
 
 
 def _public_functions():
