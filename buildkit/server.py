@@ -8,6 +8,7 @@ it has (304). It counts the bytes it writes (``Server.bytes_sent``), which the b
 
 from __future__ import annotations
 
+import email.utils
 import http.server
 import os
 import socket
@@ -59,7 +60,7 @@ class Handler(http.server.SimpleHTTPRequestHandler):
         body = gz if coded else path
         st = os.stat(body)
         etag = f'"{st.st_mtime_ns:x}-{st.st_size:x}{"-gz" if coded else ""}"'
-        if etag in [t.strip() for t in self.headers.get("If-None-Match", "").split(",")]:
+        if self._unchanged(etag, st.st_mtime):
             self.send_response(304)
             self.send_header("ETag", etag)
             self.send_header("Vary", "Accept-Encoding")
@@ -76,6 +77,19 @@ class Handler(http.server.SimpleHTTPRequestHandler):
         self.send_header("Last-Modified", self.date_time_string(int(st.st_mtime)))
         self.end_headers()
         return f
+
+    def _unchanged(self, etag: str, mtime: float) -> bool:
+        """The browser's copy is current: its ETag matches, or (without one) its date is not older."""
+        inm = self.headers.get("If-None-Match")
+        if inm is not None:
+            return etag in [t.strip() for t in inm.split(",")]
+        ims = self.headers.get("If-Modified-Since")
+        if ims:
+            try:
+                return int(mtime) <= email.utils.parsedate_to_datetime(ims).timestamp()
+            except (TypeError, ValueError, OverflowError):
+                return False
+        return False
 
     def end_headers(self):
         # Always revalidate, so a new sw.js is seen at once; the service worker does the caching.
