@@ -1,7 +1,7 @@
 """The static HTTP server for dist/ (`python3 build.py serve`, and the browser tests and benchmark).
 
 It sends a file's gzip copy (``name.gz``, written by the build) with ``Content-Encoding: gzip`` when
-the browser accepts gzip, as a static host would; the Content-Type stays the file's own (so
+the browser accepts gzip and the copy is not older than the file, as a static host would; the Content-Type stays the file's own (so
 ``.wasm`` is ``application/wasm`` either way). ETag and Last-Modified let a browser revalidate a file
 it has (304). It counts the bytes it writes (``Server.bytes_sent``), which the benchmark reads.
 """
@@ -55,7 +55,8 @@ class Handler(http.server.SimpleHTTPRequestHandler):
             return super().send_head()  # index.html, redirects and 404 as before
         accepts = self.headers.get("Accept-Encoding", "")
         gz = path + ".gz"
-        coded = os.path.isfile(gz) and any(a.split(";")[0].strip() == "gzip" and "q=0" not in a.replace(" ", "")
+        # a copy older than its file (the file edited after the build) is never sent
+        coded = os.path.isfile(gz) and os.stat(gz).st_mtime_ns >= os.stat(path).st_mtime_ns and any(a.split(";")[0].strip() == "gzip" and "q=0" not in a.replace(" ", "")
                                            for a in accepts.split(","))
         body = gz if coded else path
         st = os.stat(body)

@@ -103,6 +103,24 @@ def test_server_sends_gzip_when_accepted_with_the_files_own_type(dist):
         srv.shutdown()
 
 
+def test_server_never_sends_a_gzip_copy_older_than_its_file(dist, tmp_path):
+    import http.client
+    import shutil
+
+    copy = str(tmp_path / "d")
+    shutil.copytree(dist, copy)
+    with open(os.path.join(copy, "app.css"), "a") as fh:  # edited after the build, as an update test does
+        fh.write("\n/* edited */\n")
+    srv, url = build.serve_in_thread(copy)
+    try:
+        c = http.client.HTTPConnection("127.0.0.1", srv.server_address[1])
+        c.request("GET", "/app.css", headers={"Accept-Encoding": "gzip"})
+        r = c.getresponse()
+        assert r.getheader("Content-Encoding") is None and r.read().endswith(b"/* edited */\n")
+    finally:
+        srv.shutdown()
+
+
 def test_app_wheel_is_pure_python_and_complete(dist):
     engine = json.load(open(os.path.join(dist, "engine.json")))
     path = os.path.join(dist, "wheels", engine["app_wheel"])
