@@ -346,6 +346,9 @@ def measure_visit(dist: str, pw, name: str, bps: float, latency: int) -> dict:
             page.goto(url + f"#/sheet/{SHEET}", timeout=300_000)
             page.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=600_000)
             result = page.evaluate("() => window.fieldphasor.perf.firstResult")
+            # where the time went: the worker's marks (the shell keeps them in the page's time)
+            marks = page.evaluate("""() => Object.fromEntries(Object.entries(window.fieldphasor.engine.marks)
+                .map(([k, v]) => [k, Math.round(v)]))""")
             page.wait_for_function("() => window.__fpOffline", timeout=600_000)
             offline = page.evaluate("() => window.__fpOffline")
             sent = srv.bytes_sent
@@ -359,7 +362,8 @@ def measure_visit(dist: str, pw, name: str, bps: float, latency: int) -> dict:
     finally:
         srv.shutdown()
         shutil.rmtree(profile, ignore_errors=True)
-    return {"bytes": sent, "result_ms": result, "offline_ms": offline, "offline_checked": works, "throttled": throttled}
+    return {"bytes": sent, "result_ms": result, "offline_ms": offline, "offline_checked": works, "throttled": throttled,
+            "marks": marks}
 
 
 def measure_visits(args) -> dict:
@@ -374,6 +378,7 @@ def measure_visits(args) -> dict:
             out[f"visit_{name}_bytes"] = v["bytes"]
             out[f"visit_{name}_offline_checked"] = v["offline_checked"]
             out[f"visit_{name}_throttled_targets"] = v["throttled"]
+            out[f"visit_{name}_worker_marks"] = v["marks"]
     out["first_visit_bytes"] = out["visit_fast_bytes"]
     out["visit_links"] = {name: {"bits_per_s": bps, "latency_ms": latency} for name, bps, latency in LINKS}
     return out
