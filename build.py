@@ -63,7 +63,7 @@ def cmd_bench(args) -> int:
     cmd = [py, os.path.join(ROOT, "tests", "tools", "bench.py"), "--dist", DIST, "--runs", str(args.runs)]
     if args.out:
         cmd += ["--out", args.out]
-    cmd += args.bench_args  # e.g. --edits N, --installer micropip, --no-snapshot (see tests/tools/bench.py)
+    cmd += args.bench_args  # e.g. --edits N, --installer micropip, --no-snapshot, --only-visit (see tests/tools/bench.py)
     return subprocess.run(cmd, cwd=ROOT).returncode
 
 

@@ -4,6 +4,7 @@ Same sources → byte-identical output."""
 
 from __future__ import annotations
 
+import gzip
 import hashlib
 import json
 import os
@@ -13,7 +14,19 @@ from .common import APP_NAME, BACKGROUND, DIST, THEME, WEB, app_module, log, rea
 from .fetch import PYODIDE_FILES, PYODIDE_VERSION, WHEELS, fetch_pyodide, fetch_wheels
 from .icons import build_icons
 from .prerender import render_index
+from .stdlib import write_trimmed
 from .wheel import build_app_wheel
+
+# Shipped but not precached: fetched (and then kept, digest-checked, by the service worker) only by
+# the micropip install path (?installer=micropip), which loads the whole standard library and
+# Pyodide's package list. The default start passes a package list with no packages (engine.json's
+# "pyodide_lock") and reads the trimmed standard library.
+FULL_STDLIB = "pyodide/python_stdlib-full.zip"
+ON_DEMAND = ("pyodide/pyodide-lock.json", FULL_STDLIB, *(f"wheels/{w}" for w in WHEELS))
+# Files a static host may send compressed: a gzip copy is written beside each (name + ".gz") when
+# it is at least this much smaller; the zips and wheels are deflated already, PNGs too.
+GZIP_MIN_SAVING = 0.10
+GZIP_TYPES = (".html", ".js", ".mjs", ".css", ".json", ".webmanifest", ".svg", ".wasm")
 
 
 def catalog_json() -> str:
@@ -29,7 +42,15 @@ def build(quiet: bool = False) -> str:
     os.makedirs(os.path.join(tmp, "pyodide"))
     os.makedirs(os.path.join(tmp, "wheels"))
     for f in PYODIDE_FILES:
-        shutil.copyfile(os.path.join(pyodide_dir, f), os.path.join(tmp, "pyodide", f))
+        if f != "python_stdlib.zip":
+            shutil.copyfile(os.path.join(pyodide_dir, f), os.path.join(tmp, "pyodide", f))
+    # The standard library the default start reads: only the modules the app, Pyodide and the
+    # worker's paths import (buildkit/stdlib.py); the whole one is kept for the micropip path.
+    full_stdlib = os.path.join(pyodide_dir, "python_stdlib.zip")
+    write_trimmed(full_stdlib, os.path.join(tmp, "pyodide", "python_stdlib.zip"))
+    shutil.copyfile(full_stdlib, os.path.join(tmp, FULL_STDLIB))
+    with open(os.path.join(pyodide_dir, "pyodide-lock.json"), encoding="utf-8") as fh:
+        lock_info = json.load(fh)["info"]
     for w in WHEELS:
         shutil.copyfile(os.path.join(wheels_dir, w), os.path.join(tmp, "wheels", w))
     app_wheel = build_app_wheel(os.path.join(tmp, "wheels"))
@@ -81,34 +102,65 @@ def build(quiet: bool = False) -> str:
         "wheels": sorted(WHEELS),
         "app_wheel": app_wheel,
         "app_wheel_sha256": sha256_file(os.path.join(tmp, "wheels", app_wheel)),
+        # loadPyodide waits for a package list before it returns; the app installs no Pyodide
+        # packages, so the default start passes this one (Pyodide's own "info", no packages)
+        # instead of fetching pyodide-lock.json (119 kB). The micropip path reads the real one.
+        "pyodide_lock": {"info": lock_info, "packages": {}},
+        "full_stdlib": FULL_STDLIB,
     }
     with open(os.path.join(tmp, "engine.json"), "w", encoding="utf-8") as fh:
         json.dump(engine, fh, indent=2, sort_keys=True)
 
     assets, cache_version = write_service_worker(tmp, version)
+    gz = write_gzip_copies(tmp)
     shutil.rmtree(DIST, ignore_errors=True)
     os.rename(tmp, DIST)
     if not quiet:
         total = sum(os.path.getsize(os.path.join(DIST, a)) for a, _ in assets)
-        log(f"dist/ ready: {len(assets)} files, {total / 1e6:.2f} MB precached, cache {cache_version}")
+        sent = sum(gz.get(a, os.path.getsize(os.path.join(DIST, a))) for a, _ in assets)
+        log(f"dist/ ready: {len(assets)} files, {total / 1e6:.2f} MB precached ({sent / 1e6:.2f} MB as sent gzipped),"
+            f" cache {cache_version}")
     return DIST
+
+
+def write_gzip_copies(folder: str) -> dict:
+    """Beside each compressible file write ``name.gz`` (gzip level 9, no name, time 0: the same
+    bytes every build) when it saves at least GZIP_MIN_SAVING. Returns {path: gzip size}."""
+    out = {}
+    for sub, dirs, names in os.walk(folder):
+        dirs.sort()
+        for n in sorted(names):
+            if not n.endswith(GZIP_TYPES):
+                continue
+            path = os.path.join(sub, n)
+            with open(path, "rb") as fh:
+                data = fh.read()
+            packed = gzip.compress(data, compresslevel=9, mtime=0)
+            if len(packed) <= (1 - GZIP_MIN_SAVING) * len(data):
+                with open(path + ".gz", "wb") as fh:
+                    fh.write(packed)
+                out[os.path.relpath(path, folder).replace(os.sep, "/")] = len(packed)
+    return out
 
 
 def write_service_worker(folder: str, version: str) -> tuple[list, str]:
     """Write ``folder``/sw.js from web/sw.js with the precache list of every other file in
-    ``folder`` and its SHA-256; VERSION is the hash of that list. Returns (assets, VERSION)."""
-    assets = []
+    ``folder`` and its SHA-256 (ASSETS), and the files kept only once asked for (ON_DEMAND, with
+    theirs); VERSION is the hash of both lists together. Returns (precached assets, VERSION)."""
+    assets, lazy = [], []
     for sub, dirs, names in os.walk(folder):
         dirs.sort()
         for n in sorted(names):
             rel = os.path.relpath(os.path.join(sub, n), folder).replace(os.sep, "/")
-            if rel != "sw.js":
-                assets.append([rel, sha256_file(os.path.join(sub, n))])
+            if rel != "sw.js" and not rel.endswith(".gz"):
+                (lazy if rel in ON_DEMAND else assets).append([rel, sha256_file(os.path.join(sub, n))])
     assets.sort()
-    cache_version = hashlib.sha256(json.dumps(assets).encode()).hexdigest()[:16]
+    lazy.sort()
+    cache_version = hashlib.sha256(json.dumps(sorted(assets + lazy)).encode()).hexdigest()[:16]
     with open(os.path.join(WEB, "sw.js"), encoding="utf-8") as fh:
         sw = fh.read()
     sw = sw.replace("/*@ASSETS@*/[]", json.dumps(assets, separators=(",", ":")))
+    sw = sw.replace("/*@ON_DEMAND@*/[]", json.dumps(lazy, separators=(",", ":")))
     sw = sw.replace('"@VERSION@"', json.dumps(cache_version))
     sw = sw.replace('"@APP_VERSION@"', json.dumps(version))
     with open(os.path.join(folder, "sw.js"), "w", encoding="utf-8") as fh:

@@ -36,13 +36,90 @@ def test_building_twice_gives_identical_output(dist):
 
 
 def test_precache_lists_every_file_with_its_hash(dist):
+    """Every file is precached or kept on demand (the micropip path's), with its digest; the gzip
+    copies are never asked for by name (a server sends them in place of the file)."""
     sw = open(os.path.join(dist, "sw.js"), encoding="utf-8").read()
     assets = json.loads(re.search(r"const ASSETS = (\[.*?\]);", sw, re.S).group(1))
-    listed = {p: h for p, h in assets}
-    on_disk = {k.replace(os.sep, "/"): v for k, v in tree_digest(dist).items() if k != "sw.js"}
-    assert listed == on_disk
+    lazy = json.loads(re.search(r"const ON_DEMAND = (\[.*?\]);", sw, re.S).group(1))
+    listed = {p: h for p, h in assets + lazy}
+    on_disk = {k.replace(os.sep, "/"): v for k, v in tree_digest(dist).items() if k != "sw.js" and not k.endswith(".gz")}
+    assert listed == on_disk and len(listed) == len(assets) + len(lazy)
+    engine = json.load(open(os.path.join(dist, "engine.json")))
+    assert {p for p, _ in lazy} == {"pyodide/pyodide-lock.json", engine["full_stdlib"]} | {f"wheels/{w}" for w in engine["wheels"]}
+    precached = {p for p, _ in assets}
+    assert {"pyodide/pyodide.asm.wasm", "pyodide/python_stdlib.zip", f"wheels/{engine['app_wheel']}"} <= precached
     version = re.search(r'const VERSION = "([0-9a-f]+)"', sw).group(1)
-    assert version == hashlib.sha256(json.dumps(sorted(assets)).encode()).hexdigest()[:16]
+    assert version == hashlib.sha256(json.dumps(sorted(assets + lazy)).encode()).hexdigest()[:16]
+
+
+def test_gzip_copies_hold_exactly_their_files(dist):
+    import gzip
+
+    copies = [k for k in tree_digest(dist) if k.endswith(".gz")]
+    assert "pyodide/pyodide.asm.wasm.gz" in [c.replace(os.sep, "/") for c in copies] and "index.html.gz" in copies
+    for c in copies:
+        packed = open(os.path.join(dist, c), "rb").read()
+        plain = open(os.path.join(dist, c[:-3]), "rb").read()
+        assert gzip.decompress(packed) == plain, c
+        assert len(packed) <= 0.9 * len(plain)
+    assert not os.path.exists(os.path.join(dist, "pyodide", "python_stdlib.zip.gz"))  # deflated already
+
+
+def test_server_sends_gzip_when_accepted_with_the_files_own_type(dist):
+    """The dev server negotiates: gzip body with Content-Encoding when accepted, the plain file
+    otherwise; .wasm is application/wasm either way; a matching ETag gets 304; bytes are counted."""
+    import gzip
+    import http.client
+
+    srv, url = build.serve_in_thread(dist)
+    try:
+        port = srv.server_address[1]
+        wasm = open(os.path.join(dist, "pyodide", "pyodide.asm.wasm"), "rb").read()
+
+        def get(path, headers):
+            c = http.client.HTTPConnection("127.0.0.1", port)
+            c.request("GET", path, headers=headers)
+            r = c.getresponse()
+            body = r.read()
+            c.close()
+            return r, body
+
+        srv.bytes_sent = 0
+        r, body = get("/pyodide/pyodide.asm.wasm", {"Accept-Encoding": "gzip, deflate, br"})
+        assert r.status == 200 and r.getheader("Content-Encoding") == "gzip"
+        assert r.getheader("Content-Type") == "application/wasm" and "Accept-Encoding" in r.getheader("Vary")
+        assert gzip.decompress(body) == wasm and len(body) < 0.5 * len(wasm)
+        assert len(body) < srv.bytes_sent < len(body) + 1000
+        r2, _ = get("/pyodide/pyodide.asm.wasm", {"Accept-Encoding": "gzip", "If-None-Match": r.getheader("ETag")})
+        assert r2.status == 304
+        r3, body3 = get("/pyodide/pyodide.asm.wasm", {})
+        assert r3.status == 200 and r3.getheader("Content-Encoding") is None and body3 == wasm
+        assert r3.getheader("Content-Type") == "application/wasm"
+        r4, body4 = get("/", {"Accept-Encoding": "gzip"})
+        assert r4.getheader("Content-Encoding") == "gzip" and r4.getheader("Content-Type").startswith("text/html")
+        assert gzip.decompress(body4) == open(os.path.join(dist, "index.html"), "rb").read()
+        r5, body5 = get("/pyodide/python_stdlib.zip", {"Accept-Encoding": "gzip"})
+        assert r5.getheader("Content-Encoding") is None and body5[:2] == b"PK"
+    finally:
+        srv.shutdown()
+
+
+def test_server_never_sends_a_gzip_copy_older_than_its_file(dist, tmp_path):
+    import http.client
+    import shutil
+
+    copy = str(tmp_path / "d")
+    shutil.copytree(dist, copy)
+    with open(os.path.join(copy, "app.css"), "a") as fh:  # edited after the build, as an update test does
+        fh.write("\n/* edited */\n")
+    srv, url = build.serve_in_thread(copy)
+    try:
+        c = http.client.HTTPConnection("127.0.0.1", srv.server_address[1])
+        c.request("GET", "/app.css", headers={"Accept-Encoding": "gzip"})
+        r = c.getresponse()
+        assert r.getheader("Content-Encoding") is None and r.read().endswith(b"/* edited */\n")
+    finally:
+        srv.shutdown()
 
 
 def test_app_wheel_is_pure_python_and_complete(dist):
@@ -76,6 +153,9 @@ def test_pyodide_pinned_and_wasm_served_with_right_type(dist):
     assert os.path.exists(os.path.join(dist, "pyodide", "pyodide.asm.wasm"))
     lock = json.load(open(os.path.join(dist, "pyodide", "pyodide-lock.json")))
     assert lock["info"]["python"].startswith("3.14")
+    # the default start's package list: Pyodide's own info (its ABI is checked), no packages
+    engine = json.load(open(os.path.join(dist, "engine.json")))
+    assert engine["pyodide_lock"] == {"info": lock["info"], "packages": {}}
     assert build.Handler.extensions_map[".wasm"] == "application/wasm"
 
 

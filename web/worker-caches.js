@@ -11,7 +11,23 @@ function hex(buffer) {
 }
 
 // ---- the app wheel ----
-export const fetchInfo = () => fetch(here("./engine.json")).then((r) => r.json());
+let infoPromise = null;
+export const fetchInfo = () => (infoPromise ||= fetch(here("./engine.json")).then((r) => r.json()));
+
+// loadPyodide's options. The default start reads the trimmed standard library shipped as
+// pyodide/python_stdlib.zip and passes engine.json's package list with no packages (loadPyodide
+// waits for a package list; the app installs none), so it never fetches pyodide-lock.json. The
+// micropip path reads the whole standard library and Pyodide's real package list, both fetched
+// only when that path is asked for (see DEVELOPERS.md).
+export async function pyodideOptions(installer) {
+  const opts = { indexURL: here("./pyodide/"), stdout: () => {}, stderr: (s) => console.warn(s) };
+  if (installer === "micropip") {
+    opts.stdLibURL = here(`./${(await fetchInfo()).full_stdlib}`);
+  } else {
+    opts.lockFileContents = fetchInfo().then((info) => info.pyodide_lock);
+  }
+  return opts;
+}
 
 export async function fetchWheel(info) {
   const r = await fetch(here(`./wheels/${info.app_wheel}`));

@@ -5,7 +5,7 @@
 // worker-caches.js.
 import { loadPyodide } from "./pyodide/pyodide.mjs";
 import {
-  here, fetchInfo, fetchWheel, unpackWheel, findSnapshot, bootFromSnapshot, makeSnapshot,
+  here, fetchInfo, pyodideOptions, fetchWheel, unpackWheel, findSnapshot, bootFromSnapshot, makeSnapshot,
   readBytecode, restoreBytecode, saveBytecode,
 } from "./worker-caches.js";
 
@@ -15,7 +15,6 @@ const OPTS = new URLSearchParams(self.name || "");
 const ROLE = OPTS.has("snapshot-maker") ? "maker" : "engine";
 const INSTALLER = OPTS.get("installer") === "micropip" ? "micropip" : "unpack";
 const USE_SNAPSHOT = OPTS.get("snapshot") !== "off" && INSTALLER === "unpack";
-const PYODIDE_OPTS = { indexURL: here("./pyodide/"), stdout: () => {}, stderr: (s) => console.warn(s) };
 const marks = {};
 // Marks are sent in the page's time: this worker's clock plus its time origin.
 const mark = (name) => {
@@ -51,6 +50,7 @@ let engine = null;
 async function bootEngine() {
   mark("worker-start");
   const infoP = fetchInfo();
+  const PYODIDE_OPTS = await pyodideOptions(INSTALLER);
   let pyodide = null;
   let info = null;
   let appWheel = null;
@@ -125,7 +125,7 @@ const OPS = {
 };
 
 if (ROLE === "maker") {
-  makeSnapshot(PYODIDE_OPTS).then(
+  pyodideOptions(INSTALLER).then(makeSnapshot).then(
     (bytes) => postMessage({ type: "snapshot-saved", bytes }),
     (err) => postMessage({ type: "snapshot-failed", error: String((err && err.message) || err) }),
   );

@@ -158,13 +158,26 @@ def test_second_start_uses_bytecode_cache_and_gives_same_answers(browser, site):
 
 
 def test_micropip_install_path_works_offline(browser, site):
-    """The wheel can also be installed by micropip from the wheels shipped in dist/."""
+    """The wheel can also be installed by micropip from the wheels shipped in dist/. That path's
+    files (micropip, the whole standard library, pyodide-lock.json) are not precached: the service
+    worker keeps each, digest-checked, the first time a page it controls asks for it."""
     with guarded_page(browser, site, viewport=PHONE) as page:
         ctx = page.context
         page.goto(site + "?installer=micropip#/sheet/impedance")
         wait_ready(page)
         page.evaluate("async () => { await navigator.serviceWorker.ready; }")
         page.wait_for_function("() => !!navigator.serviceWorker.controller", timeout=30_000)
+        fetched = page.guard.requests
+        for name in ("micropip-", "python_stdlib-full.zip", "pyodide-lock.json"):
+            assert any(name in u for u in fetched), name
+        page.reload()  # online, now under the service worker: it keeps the on-demand files
+        wait_ready(page)
+        kept = page.evaluate("""async () => {
+            const c = await caches.open((await caches.keys()).find(k => k.startsWith('fieldphasor-')));
+            return (await c.keys()).map(r => r.url);
+        }""")
+        for name in ("micropip-", "python_stdlib-full.zip", "pyodide-lock.json"):
+            assert any(name in u for u in kept), name
         ctx.set_offline(True)
         page.reload()
         wait_ready(page)

@@ -15,6 +15,13 @@ Figures (milliseconds from navigation start unless noted):
   throttled_*            the same main-thread figures with CDP CPU throttling 4× (the worker is not slowed)
   precache_bytes         total bytes the service worker precaches
   js_heap_bytes          main-thread JS heap after the first result (the worker's wasm memory is separate)
+First visit (a fresh profile each time, the dev server sending gzip where it helps, CDP network
+emulation on the page, its workers and its service worker; `--only-visit` runs just this part):
+  first_visit_bytes      bytes the server sent until the app works offline (10 Mbit/s link)
+  visit_fast_result_ms   first result on screen, 10 Mbit/s down and up, 40 ms latency
+  visit_fast_offline_ms  the service worker active with the whole build cached (then checked: the
+                         page reloaded with the network off reaches a result)
+  visit_slow_result_ms, visit_slow_offline_ms   the same on a 1.6 Mbit/s, 150 ms link
 Speed targets are printed beside the figures; nothing here fails a test.
 """
 
@@ -53,6 +60,16 @@ postMessage('ready');
 """
 
 SHEET = OPENING_SHEET  # the worksheet that opens first
+# First-visit links (issue 18): name, throughput [bit/s] (both directions), latency [ms]
+LINKS = (("fast", 10e6, 40), ("slow", 1.6e6, 150))
+# Issue 18 targets (printed, never asserted)
+VISIT_TARGETS = {"fast": (8_000, 12_000), "slow": (35_000, 45_000)}
+FIRST_VISIT_BYTES_TARGET = 5e6
+# When the page first had an active service worker, i.e. the whole build precached (install waits
+# for every file): recorded from the first script of every page.
+OFFLINE_READY_JS = """
+if ('serviceWorker' in navigator) navigator.serviceWorker.ready.then(() => { window.__fpOffline = performance.now(); });
+"""
 QUIET_MS = 500  # pause after closing a measured page, so each start begins on a quiet machine
 EDIT_FIELD_CANDIDATES = ["p_kw", "f", "v_ll"]
 
@@ -279,6 +296,113 @@ def measure(args) -> dict:
     return out
 
 
+def throttle(ctx, page, cond: dict) -> list:
+    """CDP network emulation on ``page`` and on each worker and service worker it starts.
+    Conditions set on a page's session cover that target's own requests only; the engine worker
+    fetches Pyodide and the service worker precaches. So the page's session auto-attaches to each
+    such target (paused until set up; non-flattened sessions, addressed by Target.sendMessageToTarget)
+    and sets the same conditions there. Returns the list of target types so throttled."""
+    cdp = ctx.new_cdp_session(page)
+    cdp.send("Network.enable")
+    cdp.send("Network.emulateNetworkConditions", cond)
+    seen, ids = ["page"], iter(range(1, 1_000_000))
+
+    def attached(ev):
+        sid = ev["sessionId"]
+
+        def send(method, params=None):
+            msg = {"id": next(ids), "method": method, "params": params or {}}
+            cdp.send("Target.sendMessageToTarget", {"sessionId": sid, "message": json.dumps(msg)})
+
+        try:
+            send("Network.enable")
+            send("Network.emulateNetworkConditions", cond)
+            seen.append(ev["targetInfo"]["type"])
+        finally:
+            if ev.get("waitingForDebugger"):
+                send("Runtime.runIfWaitingForDebugger")
+
+    cdp.on("Target.attachedToTarget", attached)
+    cdp.send("Target.setAutoAttach", {"autoAttach": True, "waitForDebuggerOnStart": True, "flatten": False})
+    return seen
+
+
+def measure_visit(dist: str, pw, name: str, bps: float, latency: int) -> dict:
+    """One first visit in a fresh profile on an emulated link: bytes sent by the server, time to
+    the first result, time until the whole build is precached; then offline, a reload must reach a
+    result (so "works offline" is checked, not assumed)."""
+    import shutil
+
+    srv, url = build.serve_in_thread(dist)
+    profile = tempfile.mkdtemp(prefix=f"fp-visit-{name}-")
+    cond = {"offline": False, "latency": latency, "downloadThroughput": bps / 8, "uploadThroughput": bps / 8}
+    try:
+        ctx = pw.chromium.launch_persistent_context(profile, executable_path=build.CHROMIUM, args=ARGS,
+                                                    viewport={"width": 390, "height": 844})
+        try:
+            ctx.add_init_script(OFFLINE_READY_JS)
+            page = ctx.pages[0] if ctx.pages else ctx.new_page()
+            throttled = throttle(ctx, page, cond)
+            srv.bytes_sent = 0
+            page.goto(url + f"#/sheet/{SHEET}", timeout=300_000)
+            page.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=600_000)
+            result = page.evaluate("() => window.fieldphasor.perf.firstResult")
+            # where the time went: the worker's marks (the shell keeps them in the page's time)
+            marks = page.evaluate("""() => Object.fromEntries(Object.entries(window.fieldphasor.engine.marks)
+                .map(([k, v]) => [k, Math.round(v)]))""")
+            page.wait_for_function("() => window.__fpOffline", timeout=600_000)
+            offline = page.evaluate("() => window.__fpOffline")
+            sent = srv.bytes_sent
+            ctx.set_offline(True)
+            page.reload()
+            page.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.firstResult", timeout=120_000)
+            works = page.evaluate("() => !!navigator.serviceWorker.controller")
+            throttled = sorted(set(throttled))
+        finally:
+            ctx.close()
+    finally:
+        srv.shutdown()
+        shutil.rmtree(profile, ignore_errors=True)
+    return {"bytes": sent, "result_ms": result, "offline_ms": offline, "offline_checked": works, "throttled": throttled,
+            "marks": marks}
+
+
+def measure_visits(args) -> dict:
+    from playwright.sync_api import sync_playwright
+
+    out = {}
+    with sync_playwright() as pw:
+        for name, bps, latency in LINKS:
+            v = measure_visit(args.dist, pw, name, bps, latency)
+            out[f"visit_{name}_result_ms"] = v["result_ms"]
+            out[f"visit_{name}_offline_ms"] = v["offline_ms"]
+            out[f"visit_{name}_bytes"] = v["bytes"]
+            out[f"visit_{name}_offline_checked"] = v["offline_checked"]
+            out[f"visit_{name}_throttled_targets"] = v["throttled"]
+            out[f"visit_{name}_worker_marks"] = v["marks"]
+    out["first_visit_bytes"] = out["visit_fast_bytes"]
+    out["visit_links"] = {name: {"bits_per_s": bps, "latency_ms": latency} for name, bps, latency in LINKS}
+    return out
+
+
+def report_visits(r: dict) -> str:
+    rows = [("first-visit transfer", r["first_visit_bytes"] / 1e6, "MB", f"≤ {FIRST_VISIT_BYTES_TARGET / 1e6:.0f} MB",
+             r["first_visit_bytes"] <= FIRST_VISIT_BYTES_TARGET)]
+    for name, bps, latency in LINKS:
+        res_t, off_t = VISIT_TARGETS[name]
+        link = f"{bps / 1e6:g} Mbit/s, {latency} ms"
+        rows.append((f"first visit, {link}: first result", r[f"visit_{name}_result_ms"], "ms", f"≤ {res_t / 1000:g} s",
+                     r[f"visit_{name}_result_ms"] <= res_t))
+        rows.append((f"first visit, {link}: works offline", r[f"visit_{name}_offline_ms"], "ms", f"≤ {off_t / 1000:g} s",
+                     r[f"visit_{name}_offline_ms"] <= off_t and r[f"visit_{name}_offline_checked"]))
+    lines = [f"{'first visit (fresh profile, emulated link)':46} {'value':>10}  {'target':12} met"]
+    for name, v, unit, target, ok in rows:
+        lines.append(f"{name:46} {v:8.1f} {unit:2}  {target:12} {'yes' if ok else 'NO'}")
+    lines.append("(bytes as sent by the dev server, gzip where it helps, until the whole build was precached; "
+                 "'works offline' also checked by an offline reload reaching a result)")
+    return "\n".join(lines)
+
+
 def report(r: dict) -> str:
     b = r["bare_boot_ms"] or 1
     rows = [
@@ -287,7 +411,7 @@ def report(r: dict) -> str:
         ("form accepts input (painted)", r["input_ready_ms"], "ms", "≤ 300 ms", r["input_ready_ms"] <= 300),
         ("shell scripts took over the form", r["shell_ready_ms"], "ms", "—", None),
         ("worker script running", r["worker_start_ms"], "ms", "—", None),
-        ("engine ready", r["engine_ready_ms"], "ms", "—", None),
+        ("engine ready", r["engine_ready_ms"], "ms", "≤ 500 ms (issue 18)", r["engine_ready_ms"] <= 500),
         ("  of which Python up" + (" (snapshot restored)" if r["runs_from_snapshot"] else ""), r["worker_python_ready_ms"], "ms", "—", None),
         ("  of which " + ("wheel + probe check" if r["runs_from_snapshot"] else f"app install ({r['installer']})"),
          r["worker_app_install_ms"], "ms", "—", None),
@@ -296,7 +420,7 @@ def report(r: dict) -> str:
         ("recompute median (after debounce)", r["recompute_median_ms"], "ms", "≤ 16 ms", r["recompute_median_ms"] <= 16),
         ("recompute p95 (after debounce)", r["recompute_p95_ms"], "ms", "≤ 50 ms", r["recompute_p95_ms"] <= 50),
         ("debounce", r["recompute_debounce_ms"], "ms", "—", None),
-        ("first paint, 4× CPU throttle", r["throttled_first_paint_ms"], "ms", "≤ 300 ms", r["throttled_first_paint_ms"] <= 300),
+        ("first paint, 4× CPU throttle", r["throttled_first_paint_ms"], "ms", "≤ 250 ms (issue 18)", r["throttled_first_paint_ms"] <= 250),
         ("form accepts input, 4× CPU throttle", r["throttled_input_ready_ms"], "ms", "≤ 300 ms", r["throttled_input_ready_ms"] <= 300),
         ("shell took over, 4× CPU throttle", r["throttled_shell_ready_ms"], "ms", "—", None),
         ("precached", r["precache_bytes"] / 1e6, "MB", "≤ 16 MB", r["precache_bytes"] <= 16e6),
@@ -325,11 +449,19 @@ def main():
                     help="how the worker installs the app wheel (default: the app's own default)")
     ap.add_argument("--no-snapshot", dest="snapshot", action="store_false",
                     help="start without the memory snapshot (?snapshot=off), to measure the plain boot path")
+    ap.add_argument("--only-visit", action="store_true",
+                    help="measure only the first visits on the emulated links (slow: about a minute on 1.6 Mbit/s)")
+    ap.add_argument("--no-visit", dest="visit", action="store_false", help="skip the first visits")
     args = ap.parse_args()
     if args.installer == "micropip":
         args.snapshot = False  # the worker makes and uses snapshots on its default install path only
-    r = measure(args)
-    print(report(r))
+    r = {} if args.only_visit else measure(args)
+    if args.visit:
+        r.update(measure_visits(args))
+    if not args.only_visit:
+        print(report(r))
+    if args.visit:
+        print(report_visits(r))
     path = args.out or os.path.join(args.dist, "bench.json")
     with open(path, "w") as fh:
         json.dump(r, fh, indent=2)

@@ -1,0 +1,143 @@
+"""The trimmed standard-library archive (buildkit/stdlib.py) holds every module the app needs.
+
+Two checks, because CPython 3.11 here and Pyodide's Python 3.14 import different submodules
+(3.11's fractions imports decimal when it loads; 3.14's only inside a function):
+- in CPython: import every module of app/ and pycore/ and run every worksheet, report format, jobs
+  export, the snapshot warm-up and the bytecode cache, recording each import the app's own code
+  makes (any depth: a function-level import counts when it runs); every standard-library module so
+  imported that is pure Python in Pyodide's library (has source in its python_stdlib.zip) must be
+  in the trimmed archive. What those modules import in turn is 3.14's business, hence:
+- in Pyodide itself under Node.js (tests/pyodide_node_check.mjs), the same work from the trimmed
+  archive gives every worksheet's and report's output equal to CPython's, and the modules 3.14
+  loads for that work when it has the whole library are all in the trimmed archive (so a module
+  whose import a library catches and works around is not silently missing either).
+The browser tests run from the same trimmed archive (it is dist/pyodide/python_stdlib.zip).
+"""
+
+import json
+import os
+import shutil
+import subprocess
+import sys
+import zipfile
+
+import pytest
+
+import build
+from buildkit.assemble import FULL_STDLIB
+
+NODE = shutil.which("node")
+
+
+@pytest.fixture(scope="module")
+def dist():
+    if not (os.environ.get("FIELDPHASOR_DIST_BUILT") and os.path.exists(os.path.join(build.DIST, "sw.js"))):
+        build.build(quiet=True)
+    return build.DIST
+
+
+def archive_modules(path):
+    out = set()
+    with zipfile.ZipFile(path) as zf:
+        for n in zf.namelist():
+            if n.endswith(".py"):
+                out.add(n[:-3].replace("/", ".").removesuffix(".__init__"))
+    return out
+
+
+def same_cells(a: str, b: str) -> bool:
+    """Two CSV texts with the same cells, numbers equal to 12 significant digits."""
+    import csv
+    import io
+    import math
+
+    ra, rb = list(csv.reader(io.StringIO(a))), list(csv.reader(io.StringIO(b)))
+    if [len(r) for r in ra] != [len(r) for r in rb]:
+        return False
+    for x, y in zip((c for r in ra for c in r), (c for r in rb for c in r)):
+        if x == y:
+            continue
+        try:
+            if not math.isclose(float(x), float(y), rel_tol=1e-12):
+                return False
+        except ValueError:
+            return False
+    return True
+
+
+CPYTHON_RUN = r"""
+import builtins, json, os, pkgutil, importlib, sys
+before = set(sys.modules)
+wanted = set()  # modules the app's own code imports (not what the standard library imports)
+plain_import = builtins.__import__
+def recording_import(name, globals=None, locals=None, fromlist=(), level=0):
+    mod = plain_import(name, globals, locals, fromlist, level)
+    importer = (globals or {}).get("__name__", "")
+    if level == 0 and importer.split(".")[0] in ("app", "pycore"):
+        wanted.add(name)
+        for sub in fromlist or ():
+            if f"{name}.{sub}" in sys.modules:
+                wanted.add(f"{name}.{sub}")
+    return mod
+builtins.__import__ = recording_import
+for pkg in ("pycore", "app"):
+    mod = importlib.import_module(pkg)
+    for info in pkgutil.walk_packages(mod.__path__, pkg + "."):
+        importlib.import_module(info.name)
+from app import bridge, bytecache, snapshot
+snapshot.prepare()
+bytecache.archive(before)
+demo = bridge.demo_job()
+for f in ("html", "text", "csv"):
+    bridge.report(demo, f, '{"date": "2000-01-01"}')
+print(json.dumps(sorted(wanted)))
+"""
+
+
+def test_every_stdlib_module_the_app_imports_is_in_the_archive(dist):
+    out = subprocess.run([sys.executable, "-c", CPYTHON_RUN], cwd=build.ROOT, capture_output=True, text=True, check=True)
+    loaded = json.loads(out.stdout.strip().splitlines()[-1])
+    full = archive_modules(os.path.join(dist, FULL_STDLIB))
+    trimmed = archive_modules(os.path.join(dist, "pyodide", "python_stdlib.zip"))
+    assert trimmed < full
+    assert {"json", "dataclasses", "zipfile", "fractions"} <= trimmed  # what the app plainly imports
+    needed = {m for m in loaded if m.split(".")[0] not in ("app", "pycore") and m in full}
+    assert {"json", "dataclasses", "zipfile"} <= needed, "the recording saw too little"
+    assert sorted(needed - trimmed) == []
+
+
+@pytest.mark.skipif(not NODE, reason="Node.js is not installed (npm brings it; the build needs it)")
+def test_pyodide_runs_every_worksheet_and_report_from_the_trimmed_archive(dist, tmp_path):
+    from app import bridge
+
+    demo = bridge.demo_job()  # one job for both runtimes (it carries fresh ids)
+    job_file = tmp_path / "job.json"
+    job_file.write_text(demo, encoding="utf-8")
+
+    def run(stdlib):
+        out = subprocess.run([NODE, os.path.join(build.ROOT, "tests", "pyodide_node_check.mjs"), dist, stdlib, str(job_file)],
+                             capture_output=True, text=True, timeout=600)
+        assert out.returncode == 0, "\n".join(x for x in out.stderr.splitlines() if len(x) < 400)[-3000:]
+        return json.loads(out.stdout.strip().splitlines()[-1])
+
+    trimmed_zip = os.path.join(dist, "pyodide", "python_stdlib.zip")
+    trimmed = run(trimmed_zip)
+    whole = run(os.path.join(dist, FULL_STDLIB))
+
+    # the same answers as CPython (the reference) for every worksheet and report format
+    assert sorted(trimmed["results"]) == sorted(bridge.sheets())
+    for sheet_id, text in trimmed["results"].items():
+        got, ref = json.loads(text), json.loads(bridge.compute(sheet_id, "{}"))
+        assert got["ok"], (sheet_id, got)
+        assert [(r["name"], r["display"]) for r in got["results"]] == [(r["name"], r["display"]) for r in ref["results"]]
+    for fmt, text in trimmed["reports"].items():
+        got, ref = json.loads(text), json.loads(bridge.report(demo, fmt, '{"date": "2000-01-01"}'))
+        assert got["ok"] and got.keys() == ref.keys(), fmt
+        if fmt == "csv":  # raw values may differ in the last bit (another libm): compare as numbers
+            assert same_cells(got["text"], ref["text"])
+        else:
+            assert got == ref, fmt
+    # what 3.14 loads for that work with the whole library at hand is all in the trimmed one
+    with zipfile.ZipFile(trimmed_zip) as zf:
+        assert sorted(set(whole["files"]) - set(zf.namelist())) == []
+    assert trimmed["files"] == whole["files"] and len(whole["files"]) > 50
