@@ -9,6 +9,7 @@ from pycore import bankhealth as bh
 from pycore.errors import InputError
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import Svg
 
@@ -23,12 +24,10 @@ _PHASE_FIELDS = ("c1", "c2", "c3")
 _CURRENT_FIELDS = ("i1", "i2", "i3")
 
 FIELDS = [
-    Field("q_rated", "Rated output", unit="kvar", default="50", min=0, min_open=True, max=1e6,
-          group="Nameplate", help="Total nameplate kvar of the bank (or of the three-phase unit) at its rated voltage and frequency."),
-    Field("v_rated", "Rated voltage", unit="V", default="400", min=1, max=1e6,
-          suggest=["400", "415", "440", "480", "525", "690"],
-          help="Nameplate voltage, line-to-line. Type 13.8 kV for a medium-voltage bank."),
-    Field("f_rated", "Rated frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
+    Q.CAPACITOR_KVAR.field("q_rated", "Rated output", default="50", group="Nameplate",
+                           note="The total for the bank (or the three-phase unit)."),
+    Q.CAPACITOR_VOLTAGE.field("v_rated", "Rated voltage", default="400", note="Type 13.8 kV for a medium-voltage bank."),
+    Q.CAPACITOR_FREQUENCY.field("f_rated", default="50"),
     Field("connection", "Connection", kind="choice", default="delta",
           options=[("delta", "Delta"), ("wye", "Wye, star point floating"), ("wye_n", "Wye, star point to neutral or earth")],
           help="Most low-voltage banks and three-phase cans are delta inside. Wye banks are usual at medium voltage."),
@@ -59,14 +58,12 @@ FIELDS = [
           show_when={"field": "mode", "in": ["current"]}),
     Field("i3", "Current in L3", unit="A", default="67.9", min=0, min_open=True, max=1e6,
           show_when={"field": "mode", "in": ["current"]}),
-    Field("v_meas", "Voltage while measuring", unit="V", default="405", min=0, min_open=True, max=1e6,
-          show_when={"field": "mode", "in": ["current"]},
-          help="Line-to-line voltage at the bank at the time of the current readings (average of the three)."),
-    Field("v_sys", "System voltage", unit="V", default="", required=False, min=0, min_open=True, max=1e6,
-          group="At the site", placeholder="same as rated",
-          help="Line-to-line voltage the bank runs at, for its real kvar. Blank: the rated voltage."),
-    Field("f_sys", "System frequency", unit="Hz", default="", required=False, min=10, max=1000,
-          suggest=["50", "60"], placeholder="same as rated", help="Blank: the rated frequency."),
+    Q.MEASURED_VOLTAGE.field("v_meas", "Voltage while measuring", default="405", show_when={"field": "mode", "in": ["current"]},
+                             note="At the bank at the time of the current readings (average of the three)."),
+    Q.SYSTEM_VOLTAGE.field("v_sys", "System voltage", default="", required=False, group="At the site",
+                           placeholder="same as rated", note="The bank's real kvar is worked out at it. Blank: the rated voltage."),
+    Q.SYSTEM_FREQUENCY.field("f_sys", "System frequency", default="", required=False, placeholder="same as rated",
+                             note="Blank: the rated frequency."),
     Field("band", "Tolerance band", kind="choice", default="iec60831", group="Verdict",
           options=[(k, b.label) for k, b in bh.BANDS.items()] + [("custom", "My own limits")],
           help="The as-made capacitance tolerance of the standard the bank was built to. IEC 60831-1 for "

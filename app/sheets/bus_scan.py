@@ -14,6 +14,7 @@ from pycore import busscan, supply
 from pycore.errors import InputError
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
@@ -24,62 +25,14 @@ SRC_PU = "Per-unit method, IEEE Std 141 (Red Book), short-circuit chapter"
 MAX_STEPS = 12
 
 FIELDS = [
-    Field(
-        "v_ll",
-        "System voltage (line to line)",
-        unit="V",
-        default="400",
-        min=0,
-        min_open=True,
-        max=69000,
-        suggest=["400", "480", "600", "690"],
-        group="Supply",
-        help="The bus voltage the capacitors connect to; kV may be typed (0.48 kV).",
-    ),
-    Field("f", "Frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
-    Field(
-        "tx_kva",
-        "Transformer rating",
-        unit="kVA",
-        default="1250",
-        min=0,
-        min_open=True,
-        max=1e6,
-        suggest=["500", "1000", "1600", "2500"],
-        help="Nameplate rating of the transformer feeding the bus; MVA may be typed (1.6 MVA).",
-    ),
-    Field(
-        "tx_z",
-        "Transformer impedance",
-        unit="%",
-        default="6",
-        min=0.5,
-        max=40,
-        suggest=["4", "5.75", "6"],
-        help="Impedance voltage from the nameplate, in % on the transformer's own rating.",
-    ),
-    Field(
-        "x_r",
-        "Transformer X/R ratio",
-        default="5",
-        required=False,
-        min=0,
-        min_open=True,
-        max=100,
-        help="Optional. Empty: the transformer is taken as a pure reactance (no damping, the highest peaks).",
-    ),
-    Field(
-        "fault_mva",
-        "Upstream fault level",
-        unit="MVA",
-        default="250",
-        required=False,
-        min=0,
-        min_open=True,
-        max=1e5,
-        help="Optional: the utility's short-circuit level at the transformer's primary. Empty: infinite bus "
-        "(puts the resonance slightly high).",
-    ),
+    Q.SYSTEM_VOLTAGE.field("v_ll", "System voltage (line to line)", default="400", group="Supply"),
+    Q.SYSTEM_FREQUENCY.field("f", default="50"),
+    Q.TRANSFORMER_KVA.field("tx_kva", default="1250"),
+    Q.TRANSFORMER_Z.field("tx_z", default="6"),
+    Q.TRANSFORMER_XR.field("x_r", default="5", required=False,
+                           note="Optional. Empty: the transformer is taken as a pure reactance (no damping, the highest peaks)."),
+    Q.FAULT_MVA.field("fault_mva", default="250", required=False,
+                      note="Optional. Empty: infinite bus (puts the resonance slightly high)."),
     Field(
         "load_kw",
         "Resistive load (damping)",
@@ -103,19 +56,9 @@ FIELDS = [
         ],
         help="Single-phase rectifier loads add the 3rd harmonic to the harmonics checked.",
     ),
-    Field(
-        "steps",
-        "Capacitor steps",
-        kind="list",
-        unit="kvar",
-        default="50, 50, 100, 100, 100",
-        min=0,
-        min_open=True,
-        max=1e5,
-        group="Capacitor bank",
-        help="Step sizes in kvar at the system voltage, in the order the controller switches them in "
-        "(comma separated). Each combination 1, 1+2, 1+2+3… is scanned.",
-    ),
+    Q.BANK_KVAR.field("steps", "Capacitor steps", kind="list", default="50, 50, 100, 100, 100", group="Capacitor bank",
+                      note="Step sizes in the order the controller switches them in (comma separated). "
+                           "Each combination 1, 1+2, 1+2+3… is scanned."),
     Field(
         "margin",
         "Margin around each harmonic",

@@ -9,6 +9,7 @@ from pycore import capduty
 from pycore.errors import InputError
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import Svg, nice_ticks
 
@@ -18,21 +19,16 @@ SRC_519 = "IEEE Std 519-2014, Table 1 (voltage distortion limits)"
 SRC_CIRCUIT = "Circuit theory: X_C = 1/(2πfC), so I_h = h·V_h in per unit"
 
 FIELDS = [
-    Field("u_rated", "Capacitor rated voltage", unit="V", default="440", min=0, min_open=True, max=100000,
-          suggest=["400", "440", "480", "525", "600"], group="Capacitor rating",
-          help="Nameplate rated voltage (line-to-line for a three-phase unit)."),
-    Field("q_rated", "Capacitor rated power", unit="kvar", default="50", min=0, min_open=True, max=1e6,
-          help="Nameplate kvar at the rated voltage and frequency."),
-    Field("f_rated", "Rated frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
+    Q.CAPACITOR_VOLTAGE.field("u_rated", default="440", group="Capacitor rating"),
+    Q.CAPACITOR_KVAR.field("q_rated", default="50"),
+    Q.CAPACITOR_FREQUENCY.field("f_rated", default="50"),
     Field("phases", "Unit", kind="choice", default="3",
           options=[("3", "Three-phase (voltages line-to-line)"), ("1", "Single-phase")],
           help="Only the rated current in amperes depends on this; the % results do not."),
-    Field("u_bus", "Bus voltage, fundamental", unit="V", default="400", min=0, min_open=True, max=1000000,
-          group="Operating conditions",
-          help="The fundamental voltage where the bank connects, on the same basis as the rating. "
-               "Its level also picks the IEEE 519 voltage limits."),
-    Field("f_sys", "System frequency", unit="Hz", default="", required=False, min=10, max=1000, suggest=["50", "60"],
-          help="Leave blank when it equals the rated frequency. A 50 Hz capacitor on 60 Hz draws 20 % more current."),
+    Q.SYSTEM_VOLTAGE.field("u_bus", "Bus voltage, fundamental", default="400", group="Operating conditions",
+                           note="On the same basis as the rating. Its level also picks the IEEE 519 voltage limits."),
+    Q.SYSTEM_FREQUENCY.field("f_sys", "System frequency", default="", required=False,
+                             note="Leave blank when it equals the rated frequency. A 50 Hz capacitor on 60 Hz draws 20 % more current."),
     Field("p", "Series reactor detuning factor", unit="%", default="0", min=0, max=100, max_open=True,
           suggest=["0", "5.67", "7", "14"],
           help="0 for a plain bank on the bus. For a detuned bank, p = X_L/X_C in %: the capacitor then sees U/(1 − p) "

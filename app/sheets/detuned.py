@@ -9,6 +9,7 @@ from pycore import detuning, supply
 from pycore.errors import InputError
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
@@ -18,12 +19,10 @@ SRC_PRACTICE = "Common practice (makers' catalogues and trade tables; not a stan
 SRC_SUPPLY = "Per-unit short-circuit method, IEEE Std 141 (Red Book); resonance order, IEEE Std 1036"
 
 FIELDS = [
-    Field("u", "System voltage (line-to-line)", unit="V", default="400", min=50, max=36000,
-          suggest=["400", "480", "600", "690"], group="Bus and bank",
-          help="The bus voltage the bank connects to, line-to-line. 0.4 kV is read as 400 V."),
-    Field("f", "System frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
-    Field("q", "Reactive power wanted at system voltage", unit="kvar", default="200", min=0, min_open=True, max=1e6,
-          help="What the whole bank should deliver at the system voltage, all steps in. 0.2 Mvar is read as 200 kvar."),
+    Q.SYSTEM_VOLTAGE.field("u", default="400", group="Bus and bank"),
+    Q.SYSTEM_FREQUENCY.field("f", "System frequency", default="50"),
+    Q.BANK_KVAR.field("q", "Reactive power wanted at system voltage", default="200",
+                      note="What the whole bank should deliver, all steps in. 0.2 Mvar is read as 200 kvar."),
     Field("steps", "Number of equal steps", default="4", min=1, max=24, suggest=["1", "4", "6", "8"],
           help="Each step is its own reactor and capacitor; the results per step use the bank's kvar divided by this."),
     Field("spec", "Tuning given as", kind="choice", default="p", group="Tuning",
@@ -38,16 +37,14 @@ FIELDS = [
           help="Series-resonance frequency of the branch; it must be above the system frequency. 7 % at 50 Hz is about 189 Hz."),
     Field("h_low", "Lowest harmonic present", default="5", min=2, max=50, suggest=["3", "5", "7"],
           help="The lowest harmonic order with real content at the bus: 5 for six-pulse drives, 3 where single-phase loads are many."),
-    Field("u_cap", "Capacitor rated voltage", unit="V", default="", required=False, min=0, min_open=True, max=100000,
-          group="Capacitor",
-          help="Leave blank to have one chosen from common low-voltage ratings; enter the maker's rating to use it instead."),
+    Q.CAPACITOR_VOLTAGE.field("u_cap", default="", required=False, group="Capacitor",
+                              note="Leave blank to have one chosen from common low-voltage ratings; enter the maker's rating to use it instead."),
     Field("margin", "Voltage margin for choosing the rating", unit="%", default="10", min=0, max=50, suggest=["5", "10", "15"],
           help="The rated voltage must exceed the capacitor's fundamental voltage U/(1 − p) by this much (supply tolerance, harmonics)."),
-    Field("s_kva", "Supply transformer rating", unit="kVA", default="1000", required=False, min=0, min_open=True, max=1e6,
-          group="Supply (optional, for the bus resonance)",
-          help="Leave blank to skip the bus resonance. 1 MVA is read as 1000 kVA."),
-    Field("z_pct", "Transformer impedance", unit="%", default="6", required=False, min=0, min_open=True, max=40,
-          help="Nameplate impedance in % on the transformer's own rating."),
+    Q.TRANSFORMER_KVA.field("s_kva", "Supply transformer rating", default="1000", required=False,
+                            group="Supply (optional, for the bus resonance)",
+                            note="Leave blank to skip the bus resonance."),
+    Q.TRANSFORMER_Z.field("z_pct", default="6", required=False),
 ]
 
 

@@ -8,6 +8,7 @@ from pycore.capacitor import capacitance_uf
 from pycore.errors import InputError
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 
 SRC_AC = "AC power, circuit theory: P = √3·V·I·cos φ, Q = √3·V·I·sin φ (Alexander & Sadiku)"
@@ -19,14 +20,13 @@ SRC_NEC_9 = "NFPA 70 (NEC) 460.9: overload setting based on the improved power f
 SRC_NEC_8 = "NFPA 70 (NEC) 460.8(A): capacitor conductors at least 135 % of rated capacitor current"
 
 FIELDS = [
-    Field("v", "Rated voltage", unit="V", default="400", min=1, max=1e5,
-          group="Motor nameplate", suggest=["400", "415", "460", "480", "575", "690"],
-          help="Line-to-line. The capacitor is rated at this voltage too."),
-    Field("f", "Frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
+    Q.SYSTEM_VOLTAGE.field("v", "Rated voltage", default="400", group="Motor nameplate",
+                           note="The motor's; the capacitor is rated at this voltage too."),
+    Q.SYSTEM_FREQUENCY.field("f", default="50"),
     Field("i_full", "Full-load current", unit="A", default="68", min=0, min_open=True, max=1e5,
           help="Nameplate full-load amperes at the rated voltage."),
-    Field("pf_full", "Full-load power factor", default="0.86", min=0, min_open=True, max=1,
-          help="Lagging, as a decimal (0.86). From the nameplate or the maker's data sheet."),
+    Q.POWER_FACTOR.field("pf_full", "Full-load power factor", default="0.86",
+                         note="Lagging. From the nameplate or the maker's data sheet."),
     Field("basis", "Magnetising current from", kind="choice", default="i0", group="Magnetising current",
           options=[("i0", "No-load current (measured or from the maker)"),
                    ("rated", "Rated data only (rough estimate)")],
@@ -38,6 +38,7 @@ FIELDS = [
     Field("lr_ratio", "Locked-rotor ÷ full-load current", default="6", min=1, min_open=True, max=20,
           show_when={"field": "basis", "in": ["rated"]}, suggest=["5", "6", "7", "8"],
           help="From the data sheet or the code letter; 6 to 7 is typical of general-purpose motors."),
+    # a terminal capacitor is at most the motor's magnetising kvar: far below a bank's limits, so its own field
     Field("q_cap", "Capacitor to check", unit="kvar", default="", required=False, min=0, min_open=True, max=1e5,
           group="Check a capacitor (optional)", placeholder="none",
           help="The kvar, at the motor's rated voltage, of a capacitor already fitted or proposed."),

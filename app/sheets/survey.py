@@ -7,6 +7,7 @@ from pycore.phasor import power_factor
 from pycore.errors import InputError
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import Svg
 
@@ -41,7 +42,7 @@ FIELDS = [
         ),
         columns=[
             Column("name", "Load", kind="text", required=False),
-            Column("p", "P", unit="kW", required=False, min=0),
+            Column("p", "P", unit="kW", required=False, min=0, max=Q.REAL_POWER.max),  # 0 kW: a spare, counted as nothing
             Column("pf", "PF", kind="text", required=False),
             Column("q", "Q", unit="kvar", required=False),
             Column("qty", "Quantity", required=False, min=0),
@@ -49,17 +50,7 @@ FIELDS = [
         ],
         max_rows=500,
     ),
-    Field(
-        "target_pf",
-        "Target power factor (lagging)",
-        default="0.95",
-        min=0,
-        min_open=True,
-        max=1,
-        group="Target",
-        suggest=["0.9", "0.92", "0.95", "0.98"],
-        help="The power factor to reach, usually the utility's threshold plus a margin.",
-    ),
+    Q.TARGET_POWER_FACTOR.field("target_pf", default="0.95", group="Target"),
 ]
 
 
