@@ -21,10 +21,13 @@ How the limits were reconciled (they had drifted between worksheets):
 - Transformer impedance: 0.5 % to 40 %. No power transformer has less than about 0.5 %
   impedance on its own rating (distribution units are 2–8 %; common practice), and below it
   the short-circuit level (and the resonance order) is wrong by the typing slip that gave it.
-- Sizes: a transformer up to 100 MVA, a bank up to 100 Mvar at its bus, a capacitor rated
-  up to 1000 Mvar (so that any bank up to 100 Mvar, rated up to three times the bus voltage
-  as :data:`pycore.capduty.BUS_TO_RATED_VOLTAGE_MAX` allows, fits), loads up to 10 GW:
-  bounds for catching a wrong prefix, not design limits.
+- Sizes: a transformer up to 100 MVA; a bank up to 50 Mvar at its bus (the largest banks
+  on buses up to 69 kV are tens of Mvar, common practice; it is also 1000 units of the
+  correction worksheet's largest default rating, 50 kvar, the most units
+  :data:`pycore.banksteps.MAX_UNITS` plans, so a link that carries a need opens a sizing
+  that works); a capacitor rated up to 1000 Mvar (so that any bank up to 50 Mvar, rated up
+  to three times the voltage it sees as :data:`pycore.capduty.BUS_TO_RATED_VOLTAGE_MAX`
+  allows, fits); loads up to 10 GW: bounds for catching a wrong prefix, not design limits.
 - Power factor: above 0 and at most 1, as a number (IEEE Std 141 power-factor chapter).
 """
 
@@ -123,7 +126,7 @@ CAPACITOR_KVAR = Quantity(
     help="Nameplate kvar at the rated voltage and frequency.", typical=("25", "50"),
 )
 BANK_KVAR = Quantity(
-    "kvar", 0, 100_000, min_open=True, default="200", label="Bank kvar at system voltage",
+    "kvar", 0, 50_000, min_open=True, default="200", label="Bank kvar at system voltage",
     help="kvar at the system voltage and frequency.", typical=("50", "200"),
 )
 EXISTING_KVAR = Quantity(

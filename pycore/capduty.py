@@ -32,6 +32,18 @@ IEEE18_LIMITS_PERCENT = {
 current at rated kvar and voltage, reactive power 135 % of rated kvar. IEEE Std 18-2002
 (the 1992 edition allowed 180 % current — from memory)."""
 
+BUS_TO_RATED_VOLTAGE_MAX = 3.0
+"""A capacitor whose bus voltage is more than this factor above or below its rated voltage is
+not a capacitor duty to check but a unit typed wrong (V for kV) or a capacitor that does not
+belong on that bus (common practice: units run within about ±10 % of rating)."""
+
+
+def voltage_ratio_plausible(u_bus_v: float, u_rated_v: float) -> bool:
+    """True when the bus voltage [V] lies within :data:`BUS_TO_RATED_VOLTAGE_MAX` of the
+    capacitor's rated voltage [V] either way (same basis: both line-to-line). Common practice."""
+    return u_rated_v / BUS_TO_RATED_VOLTAGE_MAX <= u_bus_v <= BUS_TO_RATED_VOLTAGE_MAX * u_rated_v
+
+
 HARMONIC_ORDER_MIN = 2
 HARMONIC_ORDER_MAX = 50
 """Orders accepted in a spectrum; IEEE Std 519-2014 sums THD up to the 50th."""

@@ -31,6 +31,14 @@ def transformer_short_circuit_kva(transformer_kva: float, z_percent: float, upst
     return 1.0 / (z_t + z_up)
 
 
+def bank_fits_bus(q_cap_kvar: float, s_sc_kva: float) -> bool:
+    """True when a bank of Q [kvar] is smaller than the bus short-circuit level S_sc [kVA].
+    At Q ≥ S_sc the √(S_sc/Q) resonance estimate falls to the fundamental or below and the
+    ΔV ≈ Q/S_sc approximation to 100 % or more: the figures are a unit or rating typed wrong,
+    not a bank (circuit theory; a real bank is a few per cent of S_sc, common practice)."""
+    return q_cap_kvar < s_sc_kva
+
+
 @guarded
 def resonance_order(s_sc_kva: float, q_cap_kvar: float) -> float:
     """Parallel-resonance harmonic order h ≈ √(S_sc/Q_cap) of a bank on a bus (dimensionless).

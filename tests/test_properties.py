@@ -412,6 +412,7 @@ CASES = {
     "capacitor.protection_range": A(F),
     # capduty
     "capduty.ieee519_voltage_limits": A(F),
+    "capduty.voltage_ratio_plausible": A(F, F),
     "capduty.thd_percent": A(SPECTRUM),
     "capduty.check_spectrum": A(SPECTRUM),
     "capduty.duty_from_capacitor_voltages": A(SPECTRUM, F),
@@ -506,6 +507,7 @@ CASES = {
     "supply.transformer_short_circuit_kva": A(F, F, OPT),
     "supply.resonance_order": A(F, F),
     "supply.voltage_rise_percent": A(F, F),
+    "supply.bank_fits_bus": A(F, F),
     "supply.near_harmonic": A(F, st.lists(st.integers(2, 50), max_size=5), F),
     # survey
     "survey.parse_pf": A(TEXT),

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 
-from pycore import busscan, supply
+from pycore import banksteps, busscan, supply
 from pycore.errors import InputError
 
 from .. import cautions, fmt
@@ -22,7 +22,9 @@ SRC_SCAN = "Circuit theory (parallel resonance of supply inductance and bank); p
 SRC_EST = "IEEE Std 1036 (shunt capacitor application guide); Dugan et al., Electrical Power Systems Quality"
 SRC_PU = "Per-unit method, IEEE Std 141 (Red Book), short-circuit chapter"
 
-MAX_STEPS = 12
+# the most steps a controller switches, plus the fixed capacitors already on the bus as a first step
+# (as the correction worksheet's link sends them)
+MAX_STEPS = banksteps.MAX_STEPS + 1
 
 FIELDS = [
     Q.SYSTEM_VOLTAGE.field("v_ll", "System voltage (line to line)", default="400", group="Supply"),
@@ -134,7 +136,7 @@ def compute(ins, out):
     except ArithmeticError:
         raise InputError("These values are out of range for a calculation; check the units.") from None
     total = peaks[-1].q_kvar
-    if total >= model.s_sc_kva:
+    if not supply.bank_fits_bus(total, model.s_sc_kva):
         raise FieldError("steps", f"The bank ({fmt.sig(total)} kvar) is as large as the bus short-circuit level "
                                   f"({fmt.sig(model.s_sc_kva)} kVA): check the step sizes and their unit (kvar).")
 

@@ -135,9 +135,10 @@ def compute(ins, out):
     spec = _spectrum(ins)
     if ins.errors or spec is None:
         return
-    if not (u_rated / 3.0 <= u_bus <= 3.0 * u_rated):
-        # a factor of 3 either way is no capacitor duty but a unit typed wrong (V for kV)
-        raise FieldError("u_bus", f"The bus voltage is {fmt.sig(u_bus / u_rated, 3)} times the capacitor's rated "
+    u_c = u_bus / (1.0 - p_pct / 100.0)  # the capacitor's fundamental voltage (raised by a series reactor)
+    if not capduty.voltage_ratio_plausible(u_c, u_rated):
+        seen = "The bus voltage" if p_pct == 0 else "The capacitor's voltage U/(1 − p)"
+        raise FieldError("u_bus", f"{seen} is {fmt.sig(u_c / u_rated, 3)} times the capacitor's rated "
                                   "voltage: check the units (V or kV) and that both are line-to-line, or both "
                                   "line-to-neutral.")
     f_ratio = 1.0 if f_sys is None else f_sys / f_rated

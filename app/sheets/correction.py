@@ -375,6 +375,11 @@ def compute(ins, out):
         total_rated = plan.total
     steps_sys = [s * factor for s in steps_rated]
     delivered = total_rated * factor
+    if not Q.BANK_KVAR.admits(delivered + existing):
+        raise FieldError("ratings", f"This bank would give {fmt.sig(delivered + existing)} kvar at the system voltage with the "
+                                    f"capacitors already there, more than the largest bank sized here "
+                                    f"({fmt.sig(Q.BANK_KVAR.max / 1000)} Mvar): check the load figures, the unit ratings and "
+                                    "the capacitor's rated voltage.")
     after = net.corrected(delivered)
     pf_after = after.pf
     i2 = after.current(v_i, phases)
@@ -584,6 +589,12 @@ def compute(ins, out):
             s_sc = supply.transformer_short_circuit_kva(tx_kva, tx_z, None if fault_mva is None else fault_mva * 1000.0)
         except InputError as e:  # pragma: no cover - fields are range-checked
             raise FieldError("tx_kva", str(e)) from None
+        if not supply.bank_fits_bus(delivered + existing, s_sc):
+            weak_utility = fault_mva is not None and fault_mva * 1000.0 < tx_kva / (tx_z / 100.0)
+            raise FieldError("fault_mva" if weak_utility else "tx_kva",
+                             f"The capacitors ({fmt.sig(delivered + existing)} kvar) are as large as the bus short-circuit "
+                             f"level ({fmt.sig(s_sc)} kVA): check the transformer rating and impedance"
+                             + (", the utility fault level" if fault_mva is not None else "") + " and their units.")
         G6 = "Supply"
         out.result("s_sc", "Short-circuit level at the bus", s_sc, "kVA", group=G6,
                    method="S_sc = 1/(Z%/100/S_t + 1/S_utility)", source=SRC_SUPPLY)

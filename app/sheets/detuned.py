@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import math
 
-from pycore import detuning, supply
+from pycore import capduty, detuning, supply
 from pycore.errors import InputError
 
 from .. import cautions, fmt
@@ -130,6 +130,10 @@ def compute(ins, out):
                                       "(capacitor voltage plus margin): enter the maker's rated voltage.")
     else:
         u_rated = u_cap
+    if not capduty.voltage_ratio_plausible(u_c, u_rated):
+        raise FieldError("u_cap", f"A capacitor rated {fmt.sig(u_rated)} V would run at {fmt.sig(u_c / u_rated, 3)} times "
+                                  f"its rating ({fmt.sig(u_c, 4)} V at the capacitor): "
+                                  + ("check the units (V or kV)." if not chosen else "enter the maker's rated voltage."))
     try:
         br = detuning.design_branch(u, f, q_step, p, u_rated)
     except InputError as e:

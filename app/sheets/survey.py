@@ -228,15 +228,35 @@ def compute(ins, out):
     out.caution(cautions.ESTIMATE)
 
 
+def _pf_link_text(pf: float, target: float) -> str:
+    """The power factor as typed text: 4 decimals, or more when 4 would round it up to the target."""
+    for d in (4, 6, 9, 12):
+        text = f"{pf:.{d}f}"
+        if 0 < float(text) < target:
+            return text
+    return repr(pf)
+
+
+def _number_text(v: float) -> str:
+    """A number as text the fields read back exactly enough (no ×10ⁿ display form)."""
+    return f"{v:.6g}"
+
+
 def _links(out, t, target):
     needing = [r for r in t.rows if r.need_each_kvar > 0 and r.load.quantity > 0 and r.load.p_kw > 0]
     needing.sort(key=lambda r: -r.need_row_kvar)
+    too_big = [r for r in needing if not Q.BANK_KVAR.admits(r.need_each_kvar)]
+    needing = [r for r in needing if Q.BANK_KVAR.admits(r.need_each_kvar)]
     for r in needing[:MAX_LINKS]:
         ld = r.load
         pf_each, _ = power_factor(complex(ld.p_kw, ld.q_kvar))
         out.link(f"Size correction for {ld.name}", "correction",
-                 {"basis": "p_pf", "p_kw": fmt.sig(ld.p_kw, 6), "pf1": f"{pf_each:.4f}", "pf1_sense": "lagging",
-                  "pf2": fmt.sig(target, 6), "light_p": ""})  # one load: no lightest-load check
+                 {"basis": "p_pf", "p_kw": _number_text(ld.p_kw), "pf1": _pf_link_text(pf_each, target),
+                  "pf1_sense": "lagging", "pf2": fmt.sig(target, 6), "light_p": ""})  # one load: no lightest-load check
+    if too_big:
+        out.notes.append(f"No correction link for {len(too_big)} row{'s' if len(too_big) > 1 else ''} needing more than "
+                         f"{fmt.sig(Q.BANK_KVAR.max / 1000)} Mvar each, the largest bank the correction worksheet sizes: "
+                         "check their figures.")
     if needing:
         extra = len(needing) - MAX_LINKS
         msg = "Correction links carry P and PF per unit (one of the quantity)"
@@ -245,9 +265,9 @@ def _links(out, t, target):
         else:
             msg += ", largest need first."
         out.notes.append(msg)
-    if t.central_kvar > 0:
+    if t.central_kvar > 0 and Q.REAL_POWER.admits(t.p_kw):
         out.link("Estimate savings and payback for this site", "savings",
-                 {"pf1": f"{t.pf:.4f}", "pf2": fmt.sig(target, 6), "p_kw": fmt.sig(t.p_kw, 6)})
+                 {"pf1": _pf_link_text(t.pf, target), "pf2": fmt.sig(target, 6), "p_kw": _number_text(t.p_kw)})
 
 
 SHEET = Worksheet(
