@@ -18,8 +18,9 @@ import math
 from dataclasses import dataclass
 
 from .errors import InputError, guarded
+from .references import ref
 
-IEEE18_EDITION = "IEEE Std 18-2002 (the 2012 revision is believed to keep the same limits, from memory)"
+IEEE18_EDITION = ref("ieee18")
 
 IEEE18_LIMITS_PERCENT = {
     "v_rms": 110.0,

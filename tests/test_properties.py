@@ -29,7 +29,7 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 import pycore
-from pycore import (bankhealth, banksteps, busscan, capacitor, capduty, correction, detuning, phasor, savings,
+from pycore import (bankhealth, banksteps, busscan, capacitor, capduty, correction, detuning, phasor, references, savings,
                     supply, survey)
 from pycore.errors import InputError, guarded
 
@@ -513,6 +513,9 @@ CASES = {
     "survey.parse_pf": A(TEXT),
     "survey.reactive_per_kw": A(F, BOOL),
     "survey.correction_kvar": A(F, F, F),
+    # the references table: any key of it (an unknown key is a programming error, caught at import)
+    "references.ref": A(st.sampled_from(sorted(references.REFERENCES))),
+    "references.cite": A(st.sampled_from(sorted(references.REFERENCES)), st.sampled_from(sorted(references.REFERENCES))),
     "survey.make_load": A(st.text(max_size=5), F, OPT, BOOL, OPT, OPT, OPT),
     "survey.row_totals": A(SLOAD, F),
     "survey.survey_totals": A(st.lists(SLOAD, max_size=4), F),

@@ -7,14 +7,15 @@ import math
 
 from pycore import bankhealth as bh
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import Svg
 
-SRC_CIRCUIT = "Circuit theory: Q = 2πf·C·V² per element, series/parallel capacitance, Y–Δ transformation (Alexander & Sadiku)"
-SRC_PRACTICE = "Common practice (no single published source)"
+SRC_CIRCUIT = ref("circuits_three_phase")
+SRC_PRACTICE = ref("practice")
 
 # A reading this many times the expected value is taken as an entry error, not a measurement.
 ABSURD_RATIO = 2.5
@@ -290,11 +291,11 @@ def compute(ins, out):
         imb = bh.imbalance_percent(c)
         ratio = bh.max_min_ratio(c)
         out.result("imbalance", "Imbalance between phases", imb, "%", group=g, digits=3,
-                   method="largest deviation from the mean ÷ mean", source=SRC_PRACTICE + "; the definition NEMA MG 1 uses for voltage unbalance")
+                   method="largest deviation from the mean ÷ mean", source=cite("practice", "nema_mg1"))
         out.result("ratio", "Largest ÷ smallest phase", ratio, "", group=g, digits=4,
                    status="ok" if ratio <= bh.IEC_RATIO_LIMIT else "warn",
                    method=f"C_max/C_min; a three-phase unit is made to ≤ {bh.IEC_RATIO_LIMIT}",
-                   source="IEC 60831-1, ratio of capacitances between line terminals of a three-phase unit (from memory)")
+                   source=ref("iec60831"))
         if ratio > bh.IEC_RATIO_LIMIT:
             out.warn(f"The phases differ by more than the {bh.IEC_RATIO_LIMIT} ratio a new three-phase unit is made to: "
                      "the bank draws unequal line currents.")
@@ -363,8 +364,6 @@ SHEET = Worksheet(
     cautions=[cautions.STORED_CHARGE, cautions.TEST_DEENERGISED, cautions.QUALIFIED, cautions.ESTIMATE],
     order=50,
     references=[
-        "C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (capacitors in series and parallel, Y–Δ, three-phase)",
-        "IEEE Std 18, IEEE Standard for Shunt Power Capacitors (capacitance tolerance)",
-        "IEC 60831-1, Shunt power capacitors of the self-healing type for AC systems ≤ 1000 V (tolerance; from memory)",
+        ref("circuits_three_phase"), ref("ieee18"), ref("iec60831"),
     ],
 )

@@ -12,15 +12,16 @@ import math
 
 from pycore import banksteps, busscan, supply
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
-SRC_SCAN = "Circuit theory (parallel resonance of supply inductance and bank); per-unit method, IEEE Std 141 (Red Book)"
-SRC_EST = "IEEE Std 1036 (shunt capacitor application guide); Dugan et al., Electrical Power Systems Quality"
-SRC_PU = "Per-unit method, IEEE Std 141 (Red Book), short-circuit chapter"
+SRC_SCAN = cite("circuits_resonance", "ieee141_sc")
+SRC_EST = cite("ieee1036", "dugan")
+SRC_PU = ref("ieee141_sc")
 
 # the most steps a controller switches, plus the fixed capacitors already on the bus as a first step
 # (as the correction worksheet's link sends them)
@@ -196,10 +197,10 @@ def compute(ins, out):
     out.result("near_count", "Combinations near a harmonic present", near_count, "",
                display=f"{near_count} of {len(peaks)} (harmonics {h_words}, ±{fmt.sig(margin)})",
                status="warn" if near_count else "ok", key=True,
-               method="|h_res − h| ≤ margin for h in the characteristic set", source="Screening rule, common practice; IEEE Std 519 (6k ± 1 harmonics)",
+               method="|h_res − h| ≤ margin for h in the characteristic set", source=cite("practice", "ieee519"),
                group=g_full)
     out.result("v_rise", "Voltage rise, all steps in", supply.voltage_rise_percent(total, model.s_sc_kva), "%", digits=3,
-               method="ΔV ≈ 100·Q/S_sc", source="Utility and handbook practice (common practice)", group=g_full)
+               method="ΔV ≈ 100·Q/S_sc", source=ref("practice"), group=g_full)
 
     g_sup = "Supply model"
     out.result("s_sc", "Short-circuit level at the bus", model.s_sc_kva, "kVA", digits=4,
@@ -253,9 +254,6 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=20,
     references=[
-        "IEEE Std 1036, Guide for the Application of Shunt Power Capacitors (resonance h ≈ √(S_sc/Q))",
-        "R. C. Dugan, M. F. McGranaghan, S. Santoso, H. W. Beaty, Electrical Power Systems Quality (capacitor resonance)",
-        "IEEE Std 141 (Red Book), per-unit short-circuit method",
-        "IEEE Std 519-2014 (characteristic harmonics of converters)",
+        ref("ieee1036"), ref("dugan"), ref("ieee141_sc"), ref("ieee519"),
     ],
 )

@@ -7,16 +7,17 @@ import math
 
 from pycore import capduty
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import Svg, nice_ticks
 
-SRC_18 = capduty.IEEE18_EDITION + ", continuous limits"
-SRC_1036 = "IEEE Std 1036, capacitor duty with harmonics (method from memory)"
-SRC_519 = "IEEE Std 519-2014, Table 1 (voltage distortion limits)"
-SRC_CIRCUIT = "Circuit theory: X_C = 1/(2πfC), so I_h = h·V_h in per unit"
+SRC_18 = ref("ieee18")
+SRC_1036 = ref("ieee1036")
+SRC_519 = ref("ieee519")
+SRC_CIRCUIT = ref("circuits_ac_power")
 
 FIELDS = [
     Q.CAPACITOR_VOLTAGE.field("u_rated", default="440", group="Capacitor rating"),
@@ -158,7 +159,7 @@ def compute(ins, out):
             failed.append(_NAMES[name].lower())
         out.result(name, f"{_NAMES[name]}, % of rated", val, "%", display=f"{fmt.sig(val, 4)} % — {word}",
                    status="ok" if ok else "fail", key=True, group=G, method=_METHODS[name],
-                   source=f"{SRC_1036}; limit {SRC_18}")
+                   source=cite("ieee1036", "ieee18"))
     verdict = ("Within all four IEEE Std 18 limits" if not failed
                else "Exceeds the IEEE Std 18 limit for " + ", ".join(failed))
     out.result("verdict", "Duty verdict", None, display=verdict, status="fail" if failed else "ok", key=True,
@@ -177,7 +178,7 @@ def compute(ins, out):
                source=SRC_CIRCUIT)
     v_c1 = duty.v_cap_pu[1] * 100
     out.result("v_c1", "Capacitor fundamental voltage, % of rated", v_c1, "%", digits=4, group="Currents",
-               method="U_bus/(1 − p)/U_rated", source="Circuit theory (voltage divider of the detuned branch)")
+               method="U_bus/(1 − p)/U_rated", source=ref("circuits_resonance"))
 
     ind_lim, thd_lim, band = capduty.ieee519_voltage_limits(u_bus)
     GB = f"Bus voltage distortion against IEEE Std 519-2014 ({band})"
@@ -241,8 +242,6 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.STORED_CHARGE, cautions.ESTIMATE],
     order=27,
     references=[
-        "IEEE Std 18-2002, Standard for Shunt Power Capacitors (continuous limits 110/120/135/135 %)",
-        "IEEE Std 1036, Guide for the Application of Shunt Power Capacitors (duty with harmonics)",
-        "IEEE Std 519-2014, Recommended Practice and Requirements for Harmonic Control, Table 1",
+        ref("ieee18"), ref("ieee1036"), ref("ieee519"),
     ],
 )

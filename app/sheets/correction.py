@@ -13,6 +13,7 @@ import re
 from pycore import banksteps, capacitor, correction, supply
 from pycore.correction import Load
 from pycore.errors import InputError
+from pycore.references import cite, ref
 from pycore.numparse import split_number
 
 from .. import cautions, fmt
@@ -20,15 +21,15 @@ from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import Svg
 
-SRC_TRIANGLE = "Power triangle, circuit theory (Alexander & Sadiku, Fundamentals of Electric Circuits, AC power analysis)"
-SRC_141 = "IEEE Std 141 (Red Book), power-factor chapter: Q = P·(tan φ₁ − tan φ₂)"
-SRC_CAP = "Circuit theory: X_C = 1/(2πfC), Q = V²/X_C"
-SRC_IEEE18 = "IEEE Std 18, shunt power capacitors (continuous limits 110 % V, 135 % kvar, 135 % I)"
-SRC_NEC = "NFPA 70 (NEC) Article 460.8"
-SRC_IEC = "IEC 60831-1 (maximum current 1.30·I_N, 1.43·I_N with capacitance tolerance; recalled)"
-SRC_SUPPLY = "Per-unit short-circuit method (IEEE Std 141, IEEE Std 399); resonance IEEE Std 1036 / Dugan et al., Electrical Power Systems Quality"
+SRC_TRIANGLE = ref("circuits_ac_power")
+SRC_141 = ref("ieee141_pf")
+SRC_CAP = ref("circuits_ac_power")
+SRC_IEEE18 = ref("ieee18")
+SRC_NEC = ref("nec460_8")
+SRC_IEC = ref("iec60831")
+SRC_SUPPLY = cite("ieee141_sc", "ieee399", "ieee1036", "dugan")
 MANY_UNITS_PER_STEP = 6  # more units than this in one step draws a warning (common practice: 1 to a few)
-SRC_STEPS = "Least-excess selection by dynamic programming over the purchasable unit ratings (this app)"
+SRC_STEPS = ref("this_app")
 
 BASES = [
     ("p_pf", "kW and power factor"),
@@ -424,7 +425,7 @@ def compute(ins, out):
     out.result("cable", cable_label, basis_cable["conductor"], "A", key=True,
                method=(f"{basis_cable['factor']} × I_N" if profile == "nec" else "1.43 × I_N (1.3 × I_N × 1.1 capacitance tolerance)")
                + f", I_N = {fmt.sig(i_basis)} A" + (" (current at system voltage and frequency, above the rated current)" if i_sys > i_rated * (1 + 1e-9) else ""),
-               source=SRC_NEC + " (A)" if profile == "nec" else SRC_IEC)
+               source=SRC_NEC if profile == "nec" else SRC_IEC)
 
     # --- present load
     G1 = "Load now" + (" (with the existing capacitors)" if existing > 0 else "")
@@ -435,7 +436,7 @@ def compute(ins, out):
     out.result("s", "Apparent power S", net.s_kva, "kVA", group=G1, method="S = √(P² + Q²)", source=SRC_TRIANGLE)
     out.result("pf1", "Power factor", pf1, "", display=_pf_text(pf1, net.sense), group=G1,
                method="PF = P/S" + (" = kWh/√(kWh² + kvarh²)" if basis == "bill_energy" else " = kW/kVA" if basis == "bill_demand" else ""),
-               source="Utility billing practice; " + SRC_TRIANGLE if basis.startswith("bill") else SRC_TRIANGLE)
+               source=cite("practice_billing", "circuits_ac_power") if basis.startswith("bill") else SRC_TRIANGLE)
     out.result("phi1", "Angle φ (current lags voltage)", net.phi_deg, "°", group=G1, method="φ = acos PF", source=SRC_TRIANGLE)
     out.result("i1", f"Line current at {fmt.sig(v_i)} V", i1, "A", group=G1,
                method="I = S/(√3·V)" if phases == 3 else "I = S/V", source=SRC_TRIANGLE)
@@ -444,7 +445,7 @@ def compute(ins, out):
             kw = vals.get(name) if name != "light_p" else light_p
             out.result(f"hp_{name}", f"{label} entered in hp", kw, "kW", group=G1,
                        display=f"{fmt.sig(kw / correction.HP_KW)} hp × 0.7457 kW/hp = {fmt.sig(kw)} kW",
-                       method="1 hp = 550 ft·lbf/s = 0.7457 kW", source="Common practice (mechanical horsepower)")
+                       method="1 hp = 550 ft·lbf/s = 0.7457 kW", source=ref("practice"))
             out.warn(f"{label} was entered in hp and taken as {fmt.sig(kw)} kW of electrical load. If it is a motor's nameplate "
                      "(shaft) rating, the electrical input is higher: divide by the motor efficiency (about 0.9 to 0.95).")
 
@@ -459,7 +460,7 @@ def compute(ins, out):
                method="Σ units − Q_r needed", source=SRC_STEPS)
     if existing > 0:
         out.result("existing", "Existing capacitors (kept)", existing, "kvar", group=G2,
-                   method="as entered; counted in the resonance check", source="Input")
+                   method="as entered; counted in the resonance check", source=ref("input"))
 
     # --- capacitor data
     G3 = "Capacitor data (whole bank)"
@@ -486,7 +487,7 @@ def compute(ins, out):
     G4 = "Cable and protection"
     if profile == "nec":
         out.result("disconnect", "Disconnect rating at least", basis_cable["disconnect"], "A", group=G4,
-                   method="1.35 × I_N", source=SRC_NEC + " (C)")
+                   method="1.35 × I_N", source=SRC_NEC)
     else:
         out.result("iec_13", "Maximum permissible current (1.3 × I_N)", 1.3 * i_basis, "A", group=G4,
                    method="1.30 × I_N", source=SRC_IEC)
@@ -494,7 +495,7 @@ def compute(ins, out):
                    method="1.30 × 1.10 × I_N", source=SRC_IEC)
     out.result("protection", "Protective device range (common practice)", None, "A", group=G4,
                display=f"{fmt.sig(prot_lo, 3)} to {fmt.sig(prot_hi, 3)} A: confirm against the capacitor and device makers' instructions",
-               method="1.35 to 1.65 × I_N; NEC 460.8(B) asks for a rating as low as practicable", source="Common practice; " + SRC_NEC)
+               method="1.35 to 1.65 × I_N; NEC 460.8(B) asks for a rating as low as practicable", source=cite("practice", "nec460_8"))
 
     # --- benefits
     G5 = "Benefits at full load"
@@ -602,10 +603,10 @@ def compute(ins, out):
         out.result("v_rise", "Voltage rise, whole new bank switched in", rise, "%", digits=3, group=G6,
                    status="warn" if rise > 3 else "ok",
                    method="ΔV ≈ 100·Q_C/S_sc (source reactance only; overstates the rise by up to about 10 % of itself for transformer X/R ≥ 3 at up to full load)",
-                   source="Utility and handbook practice (common practice); checked against an AC circuit solution")
+                   source=cite("practice", "ngspice_checked"))
         if bank == "auto":
             out.result("v_rise_step", "Voltage step, largest step switched", supply.voltage_rise_percent(max(steps_sys), s_sc), "%",
-                       digits=3, group=G6, method="ΔV ≈ 100·Q_step/S_sc", source="Common practice")
+                       digits=3, group=G6, method="ΔV ≈ 100·Q_step/S_sc", source=ref("practice"))
         if rise > 3:
             out.warn(f"Switching the whole bank raises the bus voltage by about {fmt.sig(rise, 2)} %: check light-load voltage, "
                      "and switch in steps (common practice keeps it under about 3 %).")
@@ -706,10 +707,6 @@ SHEET = Worksheet(
     cautions=[cautions.STORED_CHARGE, cautions.QUALIFIED, cautions.ESTIMATE],
     order=10,
     references=[
-        "IEEE Std 141 (Red Book), power-factor chapter (kvar multiplier)",
-        "IEEE Std 18, shunt power capacitors (continuous limits)",
-        "IEEE Std 1036, application guide for shunt power capacitors (resonance, voltage rise)",
-        "NFPA 70 (NEC) Article 460 (capacitor conductors, disconnect, discharge)",
-        "IEC 60831-1, shunt power capacitors of the self-healing type (current basis)",
+        ref("ieee141_pf"), ref("ieee18"), ref("ieee1036"), ref("nec460_8"), ref("iec60831"),
     ],
 )

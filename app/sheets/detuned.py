@@ -7,16 +7,17 @@ import math
 
 from pycore import capduty, detuning, supply
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
-SRC_CIRCUIT = "Circuit theory of the series L–C branch (e.g. Alexander & Sadiku, Fundamentals of Electric Circuits, resonance)"
-SRC_IEC = "Circuit theory; detuned banks as described in IEC 61642 (from memory)"
-SRC_PRACTICE = "Common practice (makers' catalogues and trade tables; not a standard)"
-SRC_SUPPLY = "Per-unit short-circuit method, IEEE Std 141 (Red Book); resonance order, IEEE Std 1036"
+SRC_CIRCUIT = ref("circuits_resonance")
+SRC_IEC = cite("circuits_resonance", "iec61642")
+SRC_PRACTICE = ref("practice_makers")
+SRC_SUPPLY = cite("ieee141_sc", "ieee1036")
 
 FIELDS = [
     Q.SYSTEM_VOLTAGE.field("u", default="400", group="Bus and bank"),
@@ -158,7 +159,7 @@ def compute(ins, out):
     out.result("clearance", "Tuning order against the lowest harmonic", 100 * clear, "%",
                display=f"n = {fmt.sig(n, 3)}: {word}", status=st, key=True, group=G1,
                method="(h_low − n)/h_low; the branch is inductive for every harmonic above n",
-               source=SRC_PRACTICE + " for the 10 % clearance")
+               source=SRC_PRACTICE)
     if st == "fail":
         out.warn(f"The tuning order {fmt.sig(n, 3)} is not below the lowest harmonic present ({fmt.sig(h_low)}). "
                  "Choose a larger detuning factor (14 % where the 3rd harmonic is present).")
@@ -192,10 +193,10 @@ def compute(ins, out):
         v_st = "ok"
     if chosen:
         label = f"{fmt.sig(u_rated)} V (lowest common rating ≥ {fmt.sig(u_c * (1 + margin / 100), 4)} V)"
-        src = SRC_PRACTICE + ": typical low-voltage capacitor ratings, from memory"
+        src = SRC_PRACTICE  # typical low-voltage capacitor ratings, from memory
     else:
         label = f"{fmt.sig(u_rated)} V (entered): U_C is {fmt.sig(ratio, 4)} % of it"
-        src = "Entered; IEEE Std 18-2002 allows 110 % of rated rms voltage continuously"
+        src = cite("input", "ieee18")  # 110 % of rated rms voltage continuously
     out.result("u_rated", "Capacitor rated voltage", u_rated, "V", display=label, key=True, status=v_st, group=G3,
                method=f"rating ≥ U_C·(1 + margin), margin {fmt.sig(margin)} %", source=src)
     if v_st == "fail":
@@ -246,8 +247,8 @@ def compute(ins, out):
                    display=f"h = {fmt.sig(h_det, 3)} ({fmt.sig(h_det * f, 4)} Hz), below n = {fmt.sig(n, 3)}",
                    status="ok" if h_det < h_low else "fail", key=True, group=GS,
                    method="h = 1/√(Q_C/S_sc + p), Q_C = U²/X_C of the capacitors at the bus voltage; "
-                          "fewer steps in move it up toward n, never above",
-                   source=SRC_CIRCUIT + "; reduces to IEEE Std 1036's √(S_sc/Q) for p = 0")
+                          "fewer steps in move it up toward n, never above; reduces to √(S_sc/Q) for p = 0",
+                   source=cite("circuits_resonance", "ieee1036"))
         out.notes.append("The bus plot is lossless: the positions of the peaks are meaningful, their heights are not.")
 
     out.figure("|Z| against harmonic order", _plot(br, n, h_low, x_s, bank.x_c_ohm, x_c_plain))
@@ -270,9 +271,6 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.STORED_CHARGE, cautions.ESTIMATE],
     order=25,
     references=[
-        "Circuit theory of the series L–C branch (C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits)",
-        "IEC 61642, Industrial a.c. networks affected by harmonics — application of filters and shunt capacitors",
-        "IEEE Std 18-2002, Shunt Power Capacitors (110 % rms voltage limit)",
-        "IEEE Std 1036, Guide for the Application of Shunt Power Capacitors (resonance order)",
+        ref("circuits_resonance"), ref("iec61642"), ref("ieee18"), ref("ieee1036"),
     ],
 )

@@ -6,13 +6,14 @@ import math
 
 from pycore import phasor
 from pycore.errors import InputError
+from pycore.references import cite, ref
 from pycore.numparse import parse_quantity
 
 from .. import cautions, fmt
 from ..sheet import OUT_OF_RANGE_MESSAGE, Column, Field, FieldError, Worksheet, out_of_range
 from ..svg import Svg
 
-SRC_PHASOR = "Circuit theory (Alexander & Sadiku, Fundamentals of Electric Circuits, phasors and impedance)"
+SRC_PHASOR = ref("circuits_phasors")
 
 FIELDS = [
     Field(
@@ -212,5 +213,5 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=30,
-    references=["C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (phasors, impedance, AC power)"],
+    references=[ref("circuits_phasors")],
 )

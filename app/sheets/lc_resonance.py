@@ -7,12 +7,13 @@ import math
 
 from pycore import resonance as rz
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
-SRC = "Alexander & Sadiku, Fundamentals of Electric Circuits, frequency response (series and parallel resonance)"
+SRC = ref("circuits_resonance")
 
 _OUT_OF_RANGE = "These values are out of range for a calculation (resonance outside 1 µHz to 1 THz); check the units: L in mH, C in µF."
 
@@ -268,7 +269,5 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=40,
-    references=[
-        "C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (frequency response: series and parallel resonance)"
-    ],
+    references=[ref("circuits_resonance")],
 )

@@ -6,18 +6,17 @@ from __future__ import annotations
 from pycore import motorcap as mc
 from pycore.capacitor import capacitance_uf
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 
-SRC_AC = "AC power, circuit theory: P = √3·V·I·cos φ, Q = √3·V·I·sin φ (Alexander & Sadiku)"
-SRC_LIMIT = ("No more than the no-load magnetising kvar, 90 % of it as margin: common practice; NEMA MG 1 Part 14 warns "
-             "against exceeding the maker's safe value (from memory)")
-SRC_ESTIMATE = ("Induction-motor equivalent circuit (e.g. Chapman, Electric Machinery Fundamentals): full-load kvar "
-                "less leakage kvar I²X, X from the locked-rotor current — a rough estimate")
-SRC_NEC_9 = "NFPA 70 (NEC) 460.9: overload setting based on the improved power factor"
-SRC_NEC_8 = "NFPA 70 (NEC) 460.8(A): capacitor conductors at least 135 % of rated capacitor current"
+SRC_AC = ref("circuits_ac_power")
+SRC_LIMIT = cite("practice", "nema_mg1")
+SRC_ESTIMATE = ref("machines")
+SRC_NEC_9 = ref("nec460_9")
+SRC_NEC_8 = ref("nec460_8")
 
 FIELDS = [
     Q.SYSTEM_VOLTAGE.field("v", "Rated voltage", default="400", group="Motor nameplate",
@@ -107,7 +106,7 @@ def compute(ins, out):
     out.result("c_max", "Capacitance per phase" + (" (delta)" if cap_conn == "delta" else " (wye)"),
                (c_d if cap_conn == "delta" else c_y) * 1e-6, "F", si=True, group=g,
                method="C = Q/(3·2πf·V²) delta; Q/(2πf·V²) wye",
-               source="Circuit theory: Q = 2πf·C·V² per element")
+               source=SRC_AC)
     try:
         fl = mc.full_load_with_capacitor(v, i_full, pf_full, q_max)
     except InputError as e:
@@ -169,8 +168,6 @@ SHEET = Worksheet(
     cautions=[cautions.STORED_CHARGE, cautions.QUALIFIED, cautions.ESTIMATE],
     order=55,
     references=[
-        "NFPA 70, National Electrical Code, Article 460 (460.8 conductors, 460.9 overload setting)",
-        "NEMA MG 1, Part 14, power-factor correction capacitors (from memory)",
-        "S. J. Chapman, Electric Machinery Fundamentals (induction-motor equivalent circuit)",
+        ref("nec460_8"), ref("nec460_9"), ref("nema_mg1"), ref("machines"),
     ],
 )

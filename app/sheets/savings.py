@@ -5,15 +5,16 @@ from __future__ import annotations
 import math
 
 from pycore import correction, savings
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 
-SRC_KVA = "Released kVA ΔS = P(1/PF₁ − 1/PF₂) (circuit theory; IEEE Std 141, Red Book, chapter on power factor)"
-SRC_TARIFF = "Common tariff structure (common practice); the tariff's own wording governs"
-SRC_LOSS = "I ∝ 1/PF at the same P and voltage, so I²R losses ∝ 1/PF² (circuit theory; IEEE Std 141, power factor chapter)"
-SRC_PAYBACK = "Simple payback = installed cost / yearly saving (common practice)"
+SRC_KVA = cite("circuits_ac_power", "ieee141_pf")
+SRC_TARIFF = ref("practice_tariff")
+SRC_LOSS = cite("circuits_ac_power", "ieee141_pf")
+SRC_PAYBACK = ref("practice")
 
 def _when(field, *values):
     return {"field": field, "in": list(values)}
@@ -213,6 +214,6 @@ SHEET = Worksheet(
     cautions=[cautions.ESTIMATE],
     order=60,
     references=[
-        "IEEE Std 141 (Red Book), Recommended Practice for Electric Power Distribution for Industrial Plants, chapter on power factor",
+        ref("ieee141_pf"),
     ],
 )

@@ -5,14 +5,15 @@ from __future__ import annotations
 from pycore import survey
 from pycore.phasor import power_factor
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import Svg
 
-SRC_SUM = "Complex power adds: S = Σ(P + jQ) (Alexander & Sadiku, Fundamentals of Electric Circuits, AC power)"
-SRC_KVAR = "IEEE Std 141 (Red Book), chapter on power factor: kvar = P(tan φ1 − tan φ2)"
+SRC_SUM = ref("circuits_ac_power")
+SRC_KVAR = ref("ieee141_pf")
 
 MAX_LINKS = 20
 
@@ -154,7 +155,7 @@ def compute(ins, out):
     out.result("pf_site", "Overall power factor", t.pf, "", display=_pf_text(t.pf, t.pf_word), key=True, group=g1,
                status="ok" if t.pf_word != "leading" and t.pf >= target else "warn",
                method="PF = ΣP / √((ΣP)² + (ΣQ)²), from summed P and Q, not an average of row PFs", source=SRC_SUM)
-    out.result("units", "Units counted", t.units, "", group=g1, method="Σ quantity (blank = 1)", source="—")
+    out.result("units", "Units counted", t.units, "", group=g1, method="Σ quantity (blank = 1)", source=ref("input"))
 
     g2 = f"Correction to PF {fmt.sig(target)} lagging"
     out.result("central_kvar", "One central bank", t.central_kvar, "kvar", key=True, group=g2,
@@ -279,7 +280,6 @@ SHEET = Worksheet(
     cautions=[cautions.ESTIMATE],
     order=5,
     references=[
-        "IEEE Std 141 (Red Book), Recommended Practice for Electric Power Distribution for Industrial Plants, chapter on power factor",
-        "C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (complex power)",
+        ref("ieee141_pf"), ref("circuits_ac_power"),
     ],
 )
