@@ -48,6 +48,17 @@ OPEN_FRACTION = 0.10
 # three-phase unit (from memory; maker datasheets quote the same 1.08).
 IEC_RATIO_LIMIT = 1.08
 
+# Plausibility of the entries (this app's screening choices, common practice):
+ABSURD_RATIO = 2.5  # a reading this many times the expected value is an entry error, not a measurement
+SYSTEM_VOLTAGE_RATIO = (0.2, 2.0)  # system or measured voltage ÷ rated outside this: V typed for kV or the like
+MEASURED_VOLTAGE_RATIO = (0.5, 1.5)  # a bank is not run in service outside this ratio of its rated voltage
+PHASE_NEUTRAL_SLACK = 0.04  # within 4 % of rated ÷ √3: a phase-to-neutral voltage typed for line-to-line
+# Per-phase readings of a delta that all lie in this band (× expected) are between-terminal readings
+# (a healthy delta reads 1.5 × the per-phase value between two terminals, the third floating).
+DELTA_BETWEEN_AS_PHASE = (1.4, 1.6)
+# Per-phase readings of a wye that all lie in this band are those of a delta (a third of a wye's).
+WYE_READ_AS_DELTA = (0.25, 0.40)
+
 
 _OUT_OF_RANGE = "The readings are far outside any usable range: check the units (F, mF, µF, nF)."
 

@@ -45,6 +45,9 @@ def voltage_ratio_plausible(u_bus_v: float, u_rated_v: float) -> bool:
     return u_rated_v / BUS_TO_RATED_VOLTAGE_MAX <= u_bus_v <= BUS_TO_RATED_VOLTAGE_MAX * u_rated_v
 
 
+LEVEL_MAX_PERCENT = 100.0
+"""A harmonic level above the fundamental is not a spectrum a meter shows at a capacitor bus."""
+
 HARMONIC_ORDER_MIN = 2
 HARMONIC_ORDER_MAX = 50
 """Orders accepted in a spectrum; IEEE Std 519-2014 sums THD up to the 50th."""

@@ -66,9 +66,24 @@ def voltage_rise_percent(q_cap_kvar: float, s_sc_kva: float) -> float:
 CHARACTERISTIC_ORDERS = (5, 7, 11, 13, 17, 19, 23, 25)
 """Characteristic harmonics of six-pulse converters (h = 6k ± 1; common practice, IEEE Std 519)."""
 
+LOW_ORDERS = (5, 7, 11, 13)
+"""The characteristic harmonics that carry most of a plant's harmonic current, screened when a
+bank's size is chosen (common practice)."""
+
+SINGLE_PHASE_ORDER = 3
+"""Single-phase rectifier loads (computers, LED lighting) add the 3rd harmonic (common practice)."""
+
+RESONANCE_MARGIN_ORDERS = 0.5
+"""A resonance within this many harmonic orders of a harmonic present is flagged (screening
+rule, common practice)."""
+
+VOLTAGE_RISE_LIMIT_PERCENT = 3.0
+"""Switching a bank should raise the bus voltage by no more than about this much (utility and
+handbook practice, common practice)."""
+
 
 @guarded
-def near_harmonic(order: float, harmonics=CHARACTERISTIC_ORDERS, margin: float = 0.5) -> int | None:
+def near_harmonic(order: float, harmonics=CHARACTERISTIC_ORDERS, margin: float = RESONANCE_MARGIN_ORDERS) -> int | None:
     """The characteristic harmonic within ``margin`` orders of ``order``, or None (screening rule, common practice)."""
     best = None
     for h in harmonics:

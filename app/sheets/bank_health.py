@@ -6,6 +6,7 @@ from __future__ import annotations
 import math
 
 from pycore import bankhealth as bh
+from pycore.capacitor import IEEE18_VOLTAGE
 from pycore.errors import InputError
 from pycore.references import cite, ref
 
@@ -17,8 +18,6 @@ from ..svg import Svg
 SRC_CIRCUIT = ref("circuits_three_phase")
 SRC_PRACTICE = ref("practice")
 
-# A reading this many times the expected value is taken as an entry error, not a measurement.
-ABSURD_RATIO = 2.5
 
 _PAIR_FIELDS = ("m12", "m23", "m31")
 _PHASE_FIELDS = ("c1", "c2", "c3")
@@ -100,7 +99,7 @@ def _check_absurd(ins, names, values, expected_value, unit_label, what, hint):
         if v is None:
             continue
         ratio = v / expected_value
-        if ratio > ABSURD_RATIO:
+        if ratio > bh.ABSURD_RATIO:
             ins.fail(name, f"This is {_ratio_words(ratio)} {unit_label(expected_value)} {what}: "
                            f"{hint}")
 
@@ -175,13 +174,13 @@ def compute(ins, out):
         if v is None:
             continue
         r = v / v_rated
-        if r > 2.0 or r < 0.2:
+        if not bh.SYSTEM_VOLTAGE_RATIO[0] <= r <= bh.SYSTEM_VOLTAGE_RATIO[1]:
             raise FieldError(name, f"The {basis} voltage is {_ratio_words(r)} rated {fmt.sig(v_rated)} V: "
                                    "check V against kV, and that both are line-to-line.")
-        if name == "v_meas" and (r > 1.5 or r < 0.5):
+        if name == "v_meas" and not bh.MEASURED_VOLTAGE_RATIO[0] <= r <= bh.MEASURED_VOLTAGE_RATIO[1]:
             raise FieldError(name, f"The measured voltage is {_ratio_words(r)} rated voltage; a bank "
                                    "is not run there. Check the value and that it is line-to-line.")
-        if abs(r * math.sqrt(3.0) - 1.0) < 0.04:
+        if abs(r * math.sqrt(3.0) - 1.0) < bh.PHASE_NEUTRAL_SLACK:
             out.warn(f"The {basis} voltage is close to the rated voltage ÷ √3: enter the line-to-line voltage, "
                      "not phase-to-neutral.")
 
@@ -333,10 +332,10 @@ def compute(ins, out):
             out.notes.append(f"{bh.VERDICT_WORDS[v]} ({phases}) — what it usually means (common practice): {bh.MEANINGS[v]}")
     if all(v == "ok" for v in verdicts):
         out.notes.append(bh.MEANINGS["ok"])
-    if mode == "phase" and conn == "delta" and all(1.4 < p / 100 < 1.6 for p in pct):
+    if mode == "phase" and conn == "delta" and all(bh.DELTA_BETWEEN_AS_PHASE[0] < p / 100 < bh.DELTA_BETWEEN_AS_PHASE[1] for p in pct):
         out.warn("Every phase reads about 150 % of expected: these look like between-terminal readings of a delta. "
                  "Choose 'Capacitance between terminals'.")
-    if mode == "phase" and conn != "delta" and all(0.25 < p / 100 < 0.40 for p in pct):
+    if mode == "phase" and conn != "delta" and all(bh.WYE_READ_AS_DELTA[0] < p / 100 < bh.WYE_READ_AS_DELTA[1] for p in pct):
         out.warn("Every phase reads about a third of expected: a delta has one third of a wye's per-phase "
                  "capacitance. Is the bank delta-connected?")
     if mode == "current":
@@ -347,8 +346,9 @@ def compute(ins, out):
     else:
         out.notes.append("Capacitance meters are typically within 1–2 % (common practice); polypropylene capacitance "
                          "changes little with temperature.")
-    if v_sys / v_rated > 1.10 + 1e-9:
-        out.warn(f"The system voltage is {fmt.sig(100 * v_sys / v_rated, 3)} % of the rated voltage, above the 110 % "
+    if v_sys / v_rated > IEEE18_VOLTAGE + 1e-9:
+        out.warn(f"The system voltage is {fmt.sig(100 * v_sys / v_rated, 3)} % of the rated voltage, above the "
+                 f"{fmt.sig(100 * IEEE18_VOLTAGE)} % "
                  "continuous limit of IEEE Std 18 (IEC 60831-1 allows 1.10·U_N only 8 h in 24 h, from memory).")
 
     out.figure("Each phase against the band", _bars(list(names), pct, verdicts, band))

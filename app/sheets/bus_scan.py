@@ -66,7 +66,7 @@ FIELDS = [
         "margin",
         "Margin around each harmonic",
         unit="",
-        default="0.5",
+        default=fmt.sig(supply.RESONANCE_MARGIN_ORDERS),
         required=False,
         min=0,
         max=5,
@@ -128,7 +128,7 @@ def compute(ins, out):
         return
     if len(steps) > MAX_STEPS:
         raise FieldError("steps", f"At most {MAX_STEPS} steps; combine small ones or scan the bank in two parts.")
-    margin = 0.5 if margin is None else margin
+    margin = supply.RESONANCE_MARGIN_ORDERS if margin is None else margin
     try:
         model = busscan.bus_model(v, f, kva, zp, x_r, None if fault is None else fault * 1000.0, load)
         peaks = busscan.scan(model, steps)
@@ -141,7 +141,7 @@ def compute(ins, out):
         raise FieldError("steps", f"The bank ({fmt.sig(total)} kvar) is as large as the bus short-circuit level "
                                   f"({fmt.sig(model.s_sc_kva)} kVA): check the step sizes and their unit (kvar).")
 
-    harmonics = tuple(sorted(set(supply.CHARACTERISTIC_ORDERS) | ({3} if sp == "yes" else set())))
+    harmonics = tuple(sorted(set(supply.CHARACTERISTIC_ORDERS) | ({supply.SINGLE_PHASE_ORDER} if sp == "yes" else set())))
     h_words = ", ".join(str(h) for h in harmonics)
 
     # headline: the full bank

@@ -15,6 +15,7 @@ from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import Svg, nice_ticks
 
 SRC_18 = ref("ieee18")
+LIM = capduty.IEEE18_LIMITS_PERCENT
 SRC_1036 = ref("ieee1036")
 SRC_519 = ref("ieee519")
 SRC_CIRCUIT = ref("circuits_ac_power")
@@ -76,8 +77,9 @@ def _spectrum(ins):
                                          "IEEE 519 counts. Enter orders from 2 to 50.")
         if v < 0:
             raise FieldError("spectrum", f"Row {n}: the level cannot be negative (got {fmt.sig(v)} %).")
-        if v > 100:
-            raise FieldError("spectrum", f"Row {n}: the level must be at most 100 % of the fundamental (got {fmt.sig(v)} %).")
+        if v > capduty.LEVEL_MAX_PERCENT:
+            raise FieldError("spectrum", f"Row {n}: the level must be at most {fmt.sig(capduty.LEVEL_MAX_PERCENT)} % of the "
+                                         f"fundamental (got {fmt.sig(v)} %).")
         h = int(h)
         if h in spec:
             raise FieldError("spectrum", f"Row {n}: harmonic order {h} appears twice; enter each order once.")
@@ -92,7 +94,7 @@ def _bars(title, items, y_label, desc, ref_lines=()):
     left, right, top, bottom = 60, 16, 34, 46
     pw, ph = w - left - right, h - top - bottom
     vals = [v for _, v, _, _ in items] + [lim for _, _, lim, _ in items if lim is not None] + [v for v, _ in ref_lines]
-    y1 = max(vals + [1e-9]) * 1.12
+    y1 = max(vals + [1e-9]) * 1.12  # drawing: headroom above the tallest bar
     ticks = nice_ticks(0.0, y1)
     y1 = max(y1, ticks[-1])
     svg = Svg(w, h, title, desc)
@@ -109,7 +111,7 @@ def _bars(title, items, y_label, desc, ref_lines=()):
     svg.line(left, top, left, top + ph, "fp-axis")
     svg.text(14, top + ph / 2, y_label, anchor="middle", size=12)
     slot = pw / max(1, len(items))
-    bw = min(56.0, slot * 0.6)
+    bw = min(56.0, slot * 0.6)  # drawing: bar width
     for i, (label, v, lim, cls) in enumerate(items):
         cx = left + slot * (i + 0.5)
         svg.rect(cx - bw / 2, py(v), bw, max(0.0, top + ph - py(v)), cls)
@@ -215,11 +217,11 @@ def compute(ins, out):
 
     out.figure("Duty against IEEE Std 18", _bars(
         "Capacitor duty, % of rating",
-        [("V rms", duty.v_rms_percent, 110.0, "fp-s1-fill"), ("V peak", duty.v_peak_percent, 120.0, "fp-s1-fill"),
-         ("I rms", duty.i_rms_percent, 135.0, "fp-s2-fill"), ("kvar", duty.kvar_percent, 135.0, "fp-s2-fill")],
+        [("V rms", duty.v_rms_percent, LIM["v_rms"], "fp-s1-fill"), ("V peak", duty.v_peak_percent, LIM["v_peak"], "fp-s1-fill"),
+         ("I rms", duty.i_rms_percent, LIM["i_rms"], "fp-s2-fill"), ("kvar", duty.kvar_percent, LIM["kvar"], "fp-s2-fill")],
         "%",
         "Bars for rms voltage, peak voltage, rms current and kvar in % of rating; dashed ticks mark the IEEE Std 18 "
-        "limits 110, 120, 135 and 135 %.",
+        f"limits {', '.join(fmt.sig(LIM[k]) for k in ('v_rms', 'v_peak', 'i_rms'))} and {fmt.sig(LIM['kvar'])} %.",
     ))
     spec_items = [(str(h), duty.v_bus_percent[h], None, "fp-s3-fill") for h in sorted(duty.v_bus_percent)]
     out.figure("Bus voltage spectrum", _bars(

@@ -28,7 +28,6 @@ SRC_IEEE18 = ref("ieee18")
 SRC_NEC = ref("nec460_8")
 SRC_IEC = ref("iec60831")
 SRC_SUPPLY = cite("ieee141_sc", "ieee399", "ieee1036", "dugan")
-MANY_UNITS_PER_STEP = 6  # more units than this in one step draws a warning (common practice: 1 to a few)
 SRC_STEPS = ref("this_app")
 
 BASES = [
@@ -115,7 +114,8 @@ FIELDS = [
           show_when={"field": "pattern", "in": ["custom"]},
           help="Relative step sizes separated by colons or commas, e.g. 1:2:2:4 or 25:50:50:100."),
     Field("profile", "Cable and switch rules", kind="choice", default="nec",
-          options=[("nec", "NEC 460.8: 135 % of rated current"), ("iec", "IEC 60831-1: 1.3 × I_N (1.43 × I_N with tolerance)")]),
+          options=[("nec", f"NEC 460.8: {fmt.sig(100 * capacitor.NEC_460_8)} % of rated current"),
+                   ("iec", f"IEC 60831-1: {fmt.sig(capacitor.IEC_CURRENT)} × I_N ({fmt.sig(capacitor.IEC_CURRENT_TOL)} × I_N with tolerance)")]),
     # --- lightest load
     Q.REAL_POWER.field("light_p", "Lightest load", default="90", required=False, group="Lightest load",
                        note="The smallest load the bank will see switched in (nights, weekends). Blank to skip the over-correction check."),
@@ -423,7 +423,8 @@ def compute(ins, out):
                method="PF = P/√(P² + (Q − Q_C)²)", source=SRC_TRIANGLE)
     cable_label = "Conductor ampacity at least"
     out.result("cable", cable_label, basis_cable["conductor"], "A", key=True,
-               method=(f"{basis_cable['factor']} × I_N" if profile == "nec" else "1.43 × I_N (1.3 × I_N × 1.1 capacitance tolerance)")
+               method=(f"{basis_cable['factor']} × I_N" if profile == "nec" else f"{fmt.sig(capacitor.IEC_CURRENT_TOL)} × I_N ({fmt.sig(capacitor.IEC_CURRENT)} × I_N × "
+                                                                              f"{fmt.sig(capacitor.IEC_CURRENT_TOL / capacitor.IEC_CURRENT, 3)} capacitance tolerance)")
                + f", I_N = {fmt.sig(i_basis)} A" + (" (current at system voltage and frequency, above the rated current)" if i_sys > i_rated * (1 + 1e-9) else ""),
                source=SRC_NEC if profile == "nec" else SRC_IEC)
 
@@ -487,15 +488,17 @@ def compute(ins, out):
     G4 = "Cable and protection"
     if profile == "nec":
         out.result("disconnect", "Disconnect rating at least", basis_cable["disconnect"], "A", group=G4,
-                   method="1.35 × I_N", source=SRC_NEC)
+                   method=f"{fmt.sig(capacitor.NEC_460_8)} × I_N", source=SRC_NEC)
     else:
-        out.result("iec_13", "Maximum permissible current (1.3 × I_N)", 1.3 * i_basis, "A", group=G4,
-                   method="1.30 × I_N", source=SRC_IEC)
-        out.result("iec_143", "With capacitance tolerance (1.43 × I_N): cable and switchgear at least", 1.43 * i_basis, "A", group=G4,
-                   method="1.30 × 1.10 × I_N", source=SRC_IEC)
+        k, k_tol = capacitor.IEC_CURRENT, capacitor.IEC_CURRENT_TOL
+        out.result("iec_13", f"Maximum permissible current ({fmt.sig(k)} × I_N)", k * i_basis, "A", group=G4,
+                   method=f"{k:.2f} × I_N", source=SRC_IEC)
+        out.result("iec_143", f"With capacitance tolerance ({fmt.sig(k_tol)} × I_N): cable and switchgear at least", k_tol * i_basis,
+                   "A", group=G4, method=f"{k:.2f} × {k_tol / k:.2f} × I_N", source=SRC_IEC)
     out.result("protection", "Protective device range (common practice)", None, "A", group=G4,
                display=f"{fmt.sig(prot_lo, 3)} to {fmt.sig(prot_hi, 3)} A: confirm against the capacitor and device makers' instructions",
-               method="1.35 to 1.65 × I_N; NEC 460.8(B) asks for a rating as low as practicable", source=cite("practice", "nec460_8"))
+               method=f"{fmt.sig(capacitor.PROTECTION_RANGE[0])} to {fmt.sig(capacitor.PROTECTION_RANGE[1])} × I_N; "
+                      "NEC 460.8(B) asks for a rating as low as practicable", source=cite("practice", "nec460_8"))
 
     # --- benefits
     G5 = "Benefits at full load"
@@ -527,7 +530,7 @@ def compute(ins, out):
     if abs(cap_f - f) > 1e-9 * f:
         out.warn(f"The capacitor is rated for {fmt.sig(cap_f)} Hz but runs at {fmt.sig(f)} Hz: its kvar and current scale by "
                  f"{fmt.sig(f / cap_f, 3)} × (included above). Check that the maker allows it.")
-    if cap_v > 1.25 * v:
+    if cap_v > capacitor.OVERRATED_VOLTAGE_RATIO * v:
         out.notes.append(f"A {fmt.sig(cap_v)} V unit on {fmt.sig(v)} V gives only {fmt.sig(100 * (v / cap_v) ** 2, 3)} % of its nameplate kvar; "
                          "you pay for kvar you do not get, in exchange for voltage margin.")
 
@@ -535,7 +538,7 @@ def compute(ins, out):
     if after.sense == "leading":
         out.warn(f"The bank leads at full load (PF {_pf_text(pf_after, 'leading')}): the units you can buy are too coarse "
                  "for this load. Add smaller ratings to the list" + (" or use fewer steps." if bank == "auto" else "."))
-    if need_rated > 0 and (total_rated - need_rated) > 0.25 * need_rated and total_rated - need_rated > min(ratings):
+    if need_rated > 0 and (total_rated - need_rated) > banksteps.EXCESS_WARN_FRACTION * need_rated and total_rated - need_rated > min(ratings):
         hint = "Fewer steps, another pattern or more unit ratings would fit closer."
         if bank == "auto" and pattern != "custom":
             found = banksteps.best_step_count(need_rated, ratings, pattern)
@@ -546,7 +549,7 @@ def compute(ins, out):
         out.warn(f"The step plan orders {fmt.sig(100 * (total_rated - need_rated) / need_rated, 3)} % more than needed. " + hint)
 
     most = max((len(u) for u in step_units), default=0)
-    if most > MANY_UNITS_PER_STEP:
+    if most > banksteps.MANY_UNITS_PER_STEP:
         out.warn(f"One step of this plan is {most} units in parallel. A step is usually one to a few units: add a larger "
                  "unit rating to the list, or leave out the smallest, for fewer units, connections and fuses.")
 
@@ -584,7 +587,7 @@ def compute(ins, out):
 
     # --- supply: voltage rise and resonance
     s_sc = None
-    near_orders = (3, 5, 7, 11, 13) if phases == 1 else (5, 7, 11, 13)
+    near_orders = ((supply.SINGLE_PHASE_ORDER,) if phases == 1 else ()) + supply.LOW_ORDERS
     if tx_kva is not None:
         try:
             s_sc = supply.transformer_short_circuit_kva(tx_kva, tx_z, None if fault_mva is None else fault_mva * 1000.0)
@@ -601,15 +604,15 @@ def compute(ins, out):
                    method="S_sc = 1/(Z%/100/S_t + 1/S_utility)", source=SRC_SUPPLY)
         rise = supply.voltage_rise_percent(delivered, s_sc)
         out.result("v_rise", "Voltage rise, whole new bank switched in", rise, "%", digits=3, group=G6,
-                   status="warn" if rise > 3 else "ok",
+                   status="warn" if rise > supply.VOLTAGE_RISE_LIMIT_PERCENT else "ok",
                    method="ΔV ≈ 100·Q_C/S_sc (source reactance only; overstates the rise by up to about 10 % of itself for transformer X/R ≥ 3 at up to full load)",
                    source=cite("practice", "ngspice_checked"))
         if bank == "auto":
             out.result("v_rise_step", "Voltage step, largest step switched", supply.voltage_rise_percent(max(steps_sys), s_sc), "%",
                        digits=3, group=G6, method="ΔV ≈ 100·Q_step/S_sc", source=ref("practice"))
-        if rise > 3:
+        if rise > supply.VOLTAGE_RISE_LIMIT_PERCENT:
             out.warn(f"Switching the whole bank raises the bus voltage by about {fmt.sig(rise, 2)} %: check light-load voltage, "
-                     "and switch in steps (common practice keeps it under about 3 %).")
+                     f"and switch in steps (common practice keeps it under about {fmt.sig(supply.VOLTAGE_RISE_LIMIT_PERCENT)} %).")
         q_bus = delivered + existing
         h = supply.resonance_order(s_sc, q_bus)
         near = supply.near_harmonic(h, near_orders)

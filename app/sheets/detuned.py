@@ -6,6 +6,7 @@ from __future__ import annotations
 import math
 
 from pycore import capduty, detuning, supply
+from pycore.capacitor import IEEE18_VOLTAGE
 from pycore.errors import InputError
 from pycore.references import cite, ref
 
@@ -51,7 +52,7 @@ FIELDS = [
 
 def _plot(br_step, n, h_low, x_s=None, x_c_bank=None, x_c_plain=None):
     """|Z| per phase against harmonic order: the branch, and the bus with and without reactors."""
-    h_max = max(15.0, min(50.0, 2.0 * h_low + 3.0))
+    h_max = max(15.0, min(50.0, 2.0 * h_low + 3.0))  # drawing: the plotted range
     step = 0.04
     hs = [1.0 + k * step for k in range(int((h_max - 1.0) / step) + 1)]
     floor = br_step.x_c_ohm * 1e-3
@@ -72,7 +73,7 @@ def _plot(br_step, n, h_low, x_s=None, x_c_bank=None, x_c_plain=None):
         series.append({"label": "bus, no reactors", "cls": "fp-s3", "dash": "6 4",
                        "points": [(h, bus(h, x_c_plain, 0.0)) for h in hs]})
     markers = [{"x": n, "label": f"n = {fmt.sig(n, 3)}", "cls": "fp-mark"}]
-    if abs(h_low - n) > 0.4:
+    if abs(h_low - n) > 0.4:  # drawing: labels apart
         markers.append({"x": h_low, "label": f"h = {fmt.sig(h_low, 3)}", "cls": "fp-axis"})
     desc = (f"Impedance magnitude per phase against harmonic order 1 to {fmt.sig(h_max, 3)}. The detuned branch "
             f"has its series resonance (minimum) at the tuning order {fmt.sig(n, 3)}; harmonics from order "
@@ -153,7 +154,7 @@ def compute(ins, out):
     if n >= h_low:
         st, word = "fail", f"at or above the lowest harmonic ({fmt.sig(h_low)}): the branch is capacitive there and can resonate with the supply"
     elif clear < detuning.TUNING_CLEARANCE:
-        st, word = "warn", f"only {fmt.sig(100 * clear, 2)} % below the lowest harmonic ({fmt.sig(h_low)}); keep it about 10 % or more below"
+        st, word = "warn", f"only {fmt.sig(100 * clear, 2)} % below the lowest harmonic ({fmt.sig(h_low)}); keep it about {fmt.sig(100 * detuning.TUNING_CLEARANCE)} % or more below"
     else:
         st, word = "ok", f"{fmt.sig(100 * clear, 2)} % below the lowest harmonic ({fmt.sig(h_low)})"
     out.result("clearance", "Tuning order against the lowest harmonic", 100 * clear, "%",
@@ -165,7 +166,7 @@ def compute(ins, out):
                  "Choose a larger detuning factor (14 % where the 3rd harmonic is present).")
     elif st == "warn":
         out.warn("Capacitance falls with age and tolerance, which raises the tuning frequency toward the harmonic: "
-                 "keep the tuning order about 10 % or more below the lowest harmonic (common practice).")
+                 f"keep the tuning order about {fmt.sig(100 * detuning.TUNING_CLEARANCE)} % or more below the lowest harmonic (common practice).")
 
     out.result("l_mh", f"Reactor inductance, per phase ({per})", br.l_mh, "mH", digits=4, key=True, group=G2,
                method="L = p·X_C/(2πf), X_C = U²/(Q(1 − p)) with Q the step's kvar", source=SRC_IEC)
@@ -185,7 +186,7 @@ def compute(ins, out):
     out.result("rise", "Capacitor voltage rise above the bus", rise, "%", digits=3, group=G3,
                method="p/(1 − p)", source=SRC_CIRCUIT)
     ratio = br.voltage_ratio_percent
-    if ratio > 110 + 1e-9:
+    if ratio > 100 * IEEE18_VOLTAGE + 1e-9:
         v_st = "fail"
     elif ratio > 100 + 1e-9:
         v_st = "warn"
@@ -201,7 +202,7 @@ def compute(ins, out):
                method=f"rating ≥ U_C·(1 + margin), margin {fmt.sig(margin)} %", source=src)
     if v_st == "fail":
         out.warn(f"The capacitor would run at {fmt.sig(ratio, 4)} % of its rated voltage at the fundamental alone, "
-                 "above the 110 % IEEE Std 18 allows. Choose a higher rated voltage.")
+                 f"above the {fmt.sig(100 * IEEE18_VOLTAGE)} % IEEE Std 18 allows. Choose a higher rated voltage.")
     elif v_st == "warn":
         out.warn(f"The capacitor would run at {fmt.sig(ratio, 4)} % of its rated voltage before any harmonics; "
                  "a higher rating leaves room for supply tolerance and harmonic voltage.")

@@ -114,7 +114,7 @@ def _plane_figure(z: complex) -> str:
     svg.rect(0, 0, w, h, "fp-bg")
     cx, cy = 60, h / 2
     m = max(abs(z.real), abs(z.imag), 1e-30)
-    k = min((w - 110) / max(abs(z.real), m * 0.25), (h / 2 - 40) / max(abs(z.imag), m * 0.25))
+    k = min((w - 110) / max(abs(z.real), m * 0.25), (h / 2 - 40) / max(abs(z.imag), m * 0.25))  # drawing: scale
     x_end = cx + z.real * k
     y_end = cy - z.imag * k
     svg.line(20, cy, w - 10, cy, "fp-axis")

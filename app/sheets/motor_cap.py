@@ -4,7 +4,7 @@ full-load power factor it gives, and the overload-setting reminder (NEC 460.9)."
 from __future__ import annotations
 
 from pycore import motorcap as mc
-from pycore.capacitor import capacitance_uf
+from pycore.capacitor import NEC_460_8, capacitance_uf
 from pycore.errors import InputError
 from pycore.references import cite, ref
 
@@ -86,10 +86,10 @@ def compute(ins, out):
         q0_method = "Q0 = √3·V·I0 (no-load current taken as all magnetising)"
         q0_src = SRC_LIMIT
         ratio = i0 / i_full
-        if ratio < 0.10:
+        if ratio < mc.NO_LOAD_RATIO_PLAUSIBLE[0]:
             out.warn(f"The no-load current is only {fmt.sig(100 * ratio, 2)} % of full-load current, low for an induction "
                      "motor: check it was read at rated voltage with the motor uncoupled.")
-        elif ratio > 0.70:
+        elif ratio > mc.NO_LOAD_RATIO_PLAUSIBLE[1]:
             out.warn(f"The no-load current is {fmt.sig(100 * ratio, 2)} % of full-load current, high for most motors: "
                      "check the reading (the motor may be lightly built, multi-pole, or was loaded).")
 
@@ -119,8 +119,8 @@ def compute(ins, out):
                method="I' = √(P² + (Q − Q_C)²)/(√3·V)", source=SRC_NEC_9)
     i_c = mc.capacitor_current(q_max, v)
     out.result("i_cap", "Capacitor rated current", i_c, "A", group=g, method="I = Q/(√3·V)", source=SRC_AC)
-    out.result("i_cap_cond", "Capacitor conductors at least", 1.35 * i_c, "A", group=g,
-               method="135 % of rated capacitor current, and not less than one third of the motor circuit conductors' ampacity",
+    out.result("i_cap_cond", "Capacitor conductors at least", NEC_460_8 * i_c, "A", group=g,
+               method=f"{fmt.sig(100 * NEC_460_8)} % of rated capacitor current, and not less than one third of the motor circuit conductors' ampacity",
                source=SRC_NEC_8)
     if rough:
         out.warn("Rough estimate from rated data: it errs on the small side but can be well off for unusual motors. "

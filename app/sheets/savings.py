@@ -6,6 +6,7 @@ import math
 
 from pycore import correction, savings
 from pycore.references import cite, ref
+from pycore.survey import PF_AGREEMENT
 
 from .. import cautions, fmt
 from .. import quantities as Q
@@ -151,7 +152,7 @@ def compute(ins, out):
             pf_bill = correction.pf_from_energy(kwh, kvarh1)
             out.result("pf_bill", "PF from the bill's kWh and kvarh", pf_bill, "", display=f"{pf_bill:.3f} lagging",
                        group=g, method="kWh/√(kWh² + kvarh²)", source=SRC_TARIFF)
-            if abs(pf_bill - pf1) > 0.02:
+            if abs(pf_bill - pf1) > PF_AGREEMENT:
                 out.warn(f"The bill's kWh and kvarh give PF {pf_bill:.3f}, not the present PF entered "
                          f"({fmt.sig(pf1)}); the saving uses the bill's kvarh now and PF {fmt.sig(pf2)} after.")
         kvarh2 = savings.kvarh_for_pf(kwh, pf2)

@@ -114,7 +114,7 @@ def _triangle(t) -> str:
     svg.rect(0, 0, w, h, "fp-bg")
     top = max(q, q2, 0.0)
     bot = min(q, q2, 0.0)
-    span_y = max(top - bot, 0.05 * p)
+    span_y = max(top - bot, 0.05 * p)  # drawing: a flat triangle still shows
     x0, right = 40, 130
     k = min((w - x0 - right) / p, (h - 70) / span_y)
     y0 = 36 + top * k
