@@ -3,45 +3,26 @@
 Inputs follow the order an electrician has them on site: the system, the load (from whichever
 readings or bill they hold), the target, the capacitor and the units they can buy, the lightest
 load, and optionally the supply transformer. The answer to "what do I order" comes first.
+
+The computation runs in named steps (``_correction_steps``: reading, the need, the plan, the
+currents; ``_correction_checks``: duty, fit, lightest load, supply, combinations); this module
+declares the fields and writes the results.
 """
 
 from __future__ import annotations
 
 import math
-import re
 
-from pycore import banksteps, capacitor, correction, supply
-from pycore.correction import Load
-from pycore.errors import InputError
+from pycore import banksteps, capacitor, correction
 from pycore.references import cite, ref
-from pycore.numparse import split_number
 
 from .. import cautions, fmt
 from .. import quantities as Q
-from ..sheet import Field, FieldError, Worksheet
-from ..svg import Svg
-
-SRC_TRIANGLE = ref("circuits_ac_power")
-SRC_141 = ref("ieee141_pf")
-SRC_CAP = ref("circuits_ac_power")
-SRC_IEEE18 = ref("ieee18")
-SRC_NEC = ref("nec460_8")
-SRC_IEC = ref("iec60831")
-SRC_SUPPLY = cite("ieee141_sc", "ieee399", "ieee1036", "dugan")
-SRC_STEPS = ref("this_app")
-
-BASES = [
-    ("p_pf", "kW and power factor"),
-    ("s_pf", "kVA and power factor"),
-    ("p_q", "kW and kvar"),
-    ("vi_pf", "Measured volts, amps and power factor"),
-    ("vi_p", "Measured volts, amps and kW"),
-    ("bill_energy", "Utility bill: kWh and kvarh"),
-    ("bill_demand", "Utility bill: peak kW and peak kVA"),
-]
-
-_PF_SETS = ["p_pf", "s_pf", "vi_pf"]
-_SENSE_SETS = ["p_pf", "s_pf", "vi_pf", "vi_p"]
+from ..sheet import Field, Worksheet
+from . import _correction_checks as checks
+from . import _correction_steps as steps
+from ._correction_steps import (BASES, SRC_141, SRC_CAP, SRC_IEC, SRC_NEC, SRC_STEPS, SRC_TRIANGLE, _PF_SETS, _SENSE_SETS,
+                                _is_hp, _load_method, _pf_text, _q_text, _triangle_figure, _units_text)
 
 FIELDS = [
     # --- the system
@@ -129,278 +110,30 @@ FIELDS = [
                       note="Blank treats the utility as infinitely strong (transformer impedance only)."),
 ]
 
-
-def _pf_text(pf: float, sense: str) -> str:
-    if sense == "unity":
-        return f"{pf:.3f} (unity)"
-    return f"{pf:.3f} {sense}"
-
-
-def _q_text(q: float) -> str:
-    if abs(q) < 1e-9:
-        return "0 kvar"
-    word = "lagging (inductive)" if q > 0 else "leading (capacitive)"
-    return f"{fmt.sig(abs(q))} kvar {word}"
-
-
-def _counts_text(counts) -> str:
-    return " + ".join(f"{n} × {fmt.sig(r)} kvar" for r, n in counts)
-
-
-def _units_text(units) -> str:
-    """'2 × 50 + 12.5' for the units of one step."""
-    counts: dict = {}
-    for u in units:
-        counts[u] = counts.get(u, 0) + 1
-    return " + ".join((f"{n} × " if n > 1 else "") + fmt.sig(r) for r, n in sorted(counts.items(), reverse=True))
-
-
-def _is_hp(text: str) -> bool:
-    try:
-        _, rest = split_number(text)
-    except InputError:
-        return False
-    return rest.lower() == "hp"
-
-
-def _parse_ratios(text: str) -> list[float]:
-    items = [t for t in re.split(r"[:;,\s/]+", text.strip()) if t]
-    if not items:
-        raise InputError("Enter the step ratios, e.g. 1:2:2:4.")
-    vals = []
-    for i, t in enumerate(items, 1):
-        try:
-            v, rest = split_number(t)
-        except InputError as e:
-            raise InputError(f"Item {i} ('{t[:12]}'): {e}") from None
-        if rest and rest.lower() not in ("kvar", "var"):
-            raise InputError(f"Item {i} ('{t[:12]}') is not a number.")
-        if rest.lower() == "var":
-            v /= 1000.0
-        vals.append(v)
-    return vals
-
-
-def _read_load(ins) -> dict:
-    """Read the visible load fields (name → value in the field's unit, None when bad)."""
-    vis = ins.visible
-    for name in ("pf1", "light_pf"):
-        t = ins.text_of(name).strip()
-        if vis(name) and t[:1] in ("-", "\u2212"):
-            ins.fail(name, "Enter the power factor without a sign, from 0 to 1, and say lagging or leading.")
-    vals = {}
-    for name in ("v_meas", "i_meas", "p_kw", "s_kva", "q_kvar", "pf1", "bill_kwh", "bill_kvarh", "bill_kw",
-                 "bill_hours", "peak_kw", "peak_kva"):
-        if vis(name):
-            vals[name] = ins.num(name)
-    return vals
-
-
-def _build_load(ins, basis: str, vals: dict, phases: int) -> Load:
-    lagging = ins.choice("pf1_sense") != "leading"
-    if basis in _SENSE_SETS and not lagging:
-        raise FieldError("pf1_sense", "A leading power factor means the load already has more capacitance than it needs: "
-                                      "adding capacitors would make it worse. Check the reading; if it is right, remove correction instead.")
-    try:
-        if basis == "p_pf":
-            return correction.load_from_p_pf(vals["p_kw"], vals["pf1"])
-        if basis == "s_pf":
-            return correction.load_from_s_pf(vals["s_kva"], vals["pf1"])
-        if basis == "p_q":
-            if vals["q_kvar"] < 0:
-                raise FieldError("q_kvar", "Negative kvar means the load is leading (capacitive): it needs no capacitors. "
-                                           "If your meter shows lagging kvar as negative, enter it without the sign.")
-            if vals["q_kvar"] == 0:
-                raise FieldError("q_kvar", "With 0 kvar the power factor is already 1: nothing to correct.")
-            return correction.load_from_p_q(vals["p_kw"], vals["q_kvar"])
-        if basis == "vi_pf":
-            return correction.load_from_v_i_pf(vals["v_meas"], vals["i_meas"], vals["pf1"], phases)
-        if basis == "vi_p":
-            try:
-                return correction.load_from_v_i_p(vals["v_meas"], vals["i_meas"], vals["p_kw"], phases)
-            except InputError as e:
-                raise FieldError("p_kw", str(e)) from None
-        if basis == "bill_energy":
-            if vals["bill_kw"] is None and vals["bill_hours"] is None:
-                raise FieldError("bill_hours", "Enter the hours the plant ran in the period, or the demand kW from the bill.")
-            if vals["bill_kvarh"] == 0:
-                raise FieldError("bill_kvarh", "With 0 kvarh the average power factor is 1: nothing to correct.")
-            return correction.load_from_energy(vals["bill_kwh"], vals["bill_kvarh"], vals["bill_hours"], vals["bill_kw"])
-        if basis == "bill_demand":
-            try:
-                return correction.load_from_demand(vals["peak_kw"], vals["peak_kva"])
-            except InputError as e:
-                raise FieldError("peak_kva", str(e)) from None
-    except FieldError:
-        raise
-    except InputError as e:  # pragma: no cover - fields are range-checked before
-        raise InputError(str(e)) from None
-    raise InputError("Unknown load basis.")  # pragma: no cover
-
-
-def _triangle_figure(before: Load, after: Load, q_cap: float) -> str:
-    """Power triangle before and after: P along x, Q up for lagging, down for leading."""
-    w, h = 380, 300
-    left, right, top, bottom = 44, 120, 56, 34
-    p = before.p_kw
-    q1, q2 = before.q_kvar, after.q_kvar
-    ymax, ymin = max(q1, q2, 0.0), min(q1, q2, 0.0)
-    k = min((w - left - right) / p, (h - top - bottom) / max(ymax - ymin, 1e-9 * p))
-    x0, y0 = left, top + ymax * k
-    xe = x0 + p * k
-    y1, y2 = y0 - q1 * k, y0 - q2 * k
-    desc = (f"Before: P {fmt.sig(p)} kW, Q {_q_text(q1)}, S {fmt.sig(before.s_kva)} kVA, PF {_pf_text(before.pf, before.sense)}. "
-            f"After adding {fmt.sig(q_cap)} kvar of capacitors: Q {_q_text(q2)}, S {fmt.sig(after.s_kva)} kVA, "
-            f"PF {_pf_text(after.pf, after.sense)}.")
-    svg = Svg(w, h, "Power triangle before and after correction", desc)
-    svg.rect(0, 0, w, h, "fp-bg")
-    svg.text(10, 18, "Before", size=12, weight="600")
-    svg.line(62, 14, 84, 14, "fp-s1", width=3)
-    svg.text(90, 18, f"S₁ {fmt.sig(before.s_kva, 3)} kVA, PF {_pf_text(before.pf, before.sense)}", size=12)
-    svg.text(10, 36, "After", size=12, weight="600")
-    svg.line(62, 32, 84, 32, "fp-s2", width=3)
-    svg.text(90, 36, f"S₂ {fmt.sig(after.s_kva, 3)} kVA, PF {_pf_text(after.pf, after.sense)}", size=12)
-    # axes and grid
-    svg.line(x0 - 8, y0, w - 12, y0, "fp-axis")
-    svg.line(x0, top - 6, x0, h - bottom + 8, "fp-axis")
-    svg.line(xe, top - 6, xe, h - bottom + 8, "fp-grid", width=1, dash="2 3")
-    svg.text(w - 12, y0 + 16, "P (kW)", anchor="end", size=11)
-    svg.text(x0 + 6, top - 8, "Q lagging ↑", size=11)
-    if ymin < 0:
-        svg.text(x0 + 4, h - bottom + 20, "Q leading ↓", size=11)
-    # P side
-    svg.line(x0, y0, xe, y0, "fp-s3", width=3)
-    if xe - x0 >= 90:
-        svg.text((x0 + xe) / 2, y0 + 16, f"P = {fmt.sig(p, 3)} kW", anchor="middle", size=12)
-    else:
-        svg.text(x0 + 4, y0 + 16, f"P = {fmt.sig(p, 3)} kW", size=12)
-    # before: Q1 and S1
-    svg.line(xe, y0, xe, y1, "fp-s1", width=2, dash="6 4")
-    svg.arrow(x0, y0, xe, y1, "fp-s1")
-    # after: S2
-    svg.arrow(x0, y0, xe, y2, "fp-s2")
-    # capacitor kvar, from the top of Q1 down by Q_C
-    xc = xe + 14
-    if abs(y2 - y1) > 4:
-        svg.arrow(xc, y1, xc, y2, "fp-s4", width=2)
-    # labels right of the capacitor arrow, kept at least 15 px apart
-    labels = [[y1 + 4, f"Q₁ {fmt.sig(q1, 3)} kvar"], [(y1 + y2) / 2 + 4, f"Q_C {fmt.sig(q_cap, 3)} kvar"],
-              [y2 + 4, f"Q₂ {fmt.sig(q2, 3)} kvar"]]
-    for i in (1, 2):
-        labels[i][0] = max(labels[i][0], labels[i - 1][0] + 15)
-    for y, text in labels:
-        svg.text(xc + 6, y, text, size=11)
-    return str(svg)
-
-
 def compute(ins, out):
-    v = ins.num("v_ll")
-    f = ins.num("f")
-    phases = 3 if ins.choice("phases") == "3" else 1
-    basis = ins.choice("basis")
-    vals = _read_load(ins)
-    pf2 = ins.num("pf2")
-    existing = ins.num("existing_kvar")
-    existing_in = ins.choice("existing_in") == "yes"
-    cap_v = ins.num("cap_v")
-    cap_f = ins.num("cap_f")
-    conn = ins.choice("connection") if phases == 3 else "delta"
-    ratings = ins.numbers("ratings")
-    bank = ins.choice("bank")
-    pattern = ins.choice("pattern") if bank == "auto" else "equal"
-    n_steps = ins.num("n_steps") if ins.visible("n_steps") else None
-    custom_text = ins.text("custom_steps") if ins.visible("custom_steps") else ""
-    profile = ins.choice("profile")
-    light_p = ins.num("light_p")
-    light_pf = ins.num("light_pf") if light_p is not None else None
-    if light_p is not None and light_pf is None and "light_pf" not in ins.errors:
-        ins.fail("light_pf", "Enter the power factor at the lightest load (or clear the lightest load).")
-    tx_kva = ins.num("tx_kva")
-    tx_z = ins.num("tx_z")
-    fault_mva = ins.num("fault_mva")
-    if ins.errors:
+    cx = steps.read_inputs(ins)
+    if cx is None:
         return
-    existing = existing or 0.0
-    if n_steps is not None and abs(n_steps - round(n_steps)) > 1e-9:
-        raise FieldError("n_steps", "The number of steps must be a whole number.")
-    if (tx_kva is None) != (tx_z is None):
-        missing = "tx_z" if tx_z is None else "tx_kva"
-        raise FieldError(missing, "Enter both the transformer rating and its impedance, or leave both blank.")
-    if fault_mva is not None and tx_kva is None:
-        raise FieldError("tx_kva", "Enter the transformer rating and impedance to use the utility fault level.")
+    steps.the_need(ins, cx)
+    steps.plan_bank(ins, cx)
+    steps.currents(ins, cx)
+    _key_results(out, cx)
+    _load_results(ins, out, cx)
+    _detail_results(out, cx)
+    checks.rating_and_selection_checks(out, cx)
+    checks.light_load(out, cx)
+    checks.supply_checks(out, cx)
+    checks.combinations_table(out, cx)
+    _link(out, cx)
 
-    # --- the load
-    load = _build_load(ins, basis, vals, phases)
-    net = load.corrected(existing) if not existing_in else load
-    if load.q_kvar <= 1e-9 * load.p_kw:
-        at = {"p_pf": "pf1", "s_pf": "pf1", "vi_pf": "pf1", "vi_p": "p_kw", "bill_demand": "peak_kva"}.get(basis, "pf2")
-        raise FieldError(at, "The load is already at unity power factor: it needs no correction.")
-    if net.q_kvar <= 0:
-        raise FieldError("existing_kvar", f"With the existing {fmt.sig(existing)} kvar the load is already "
-                                          f"{'at unity' if net.q_kvar == 0 else 'leading'}: no more capacitors are needed.")
-    pf1 = net.pf
-    if pf2 <= pf1 + 1e-9:
-        raise FieldError("pf2", f"The power factor is already {pf1:.3f} lagging, at or above this target: no correction is needed. "
-                                "Enter a higher target to size a bank.")
-    v_i = vals.get("v_meas") or v  # voltage for line currents: measured when given
-    i1 = net.current(v_i, phases)
-    need = net.p_kw * correction.kvar_per_kw(pf1, pf2)
-    factor = capacitor.output_factor(v, cap_v, f, cap_f)
-    need_rated = need / factor
 
-    # --- selection
-    if bank == "fixed":
-        try:
-            sel = banksteps.select_units(need_rated, ratings)
-        except InputError as e:
-            raise FieldError("ratings", str(e)) from None
-        steps_rated = [sel.total]
-        step_units = [sel.units]
-        counts = sel.counts()
-        total_rated = sel.total
-    else:
-        try:
-            if pattern == "custom":
-                weights = banksteps.step_weights("custom", custom=_parse_ratios(custom_text))
-            else:
-                weights = banksteps.step_weights(pattern, int(round(n_steps)))
-        except InputError as e:
-            raise FieldError("custom_steps" if pattern == "custom" else "n_steps", str(e)) from None
-        try:
-            plan = banksteps.plan_steps(need_rated, ratings, weights)
-        except InputError as e:
-            raise FieldError("ratings", str(e)) from None
-        steps_rated = list(plan.steps)
-        step_units = list(plan.units)
-        counts = plan.counts()
-        total_rated = plan.total
-    steps_sys = [s * factor for s in steps_rated]
-    delivered = total_rated * factor
-    if not Q.BANK_KVAR.admits(delivered + existing):
-        raise FieldError("ratings", f"This bank would give {fmt.sig(delivered + existing)} kvar at the system voltage with the "
-                                    f"capacitors already there, more than the largest bank sized here "
-                                    f"({fmt.sig(Q.BANK_KVAR.max / 1000)} Mvar): check the load figures, the unit ratings and "
-                                    "the capacitor's rated voltage.")
-    after = net.corrected(delivered)
-    pf_after = after.pf
-    i2 = after.current(v_i, phases)
-
-    conn_word = {"delta": "delta", "wye": "wye"}[conn] if phases == 3 else "single-phase"
-    rating_words = f"{fmt.sig(cap_v)} V, {fmt.sig(cap_f)} Hz, {conn_word}"
-    if bank == "fixed":
-        order_text = f"Fixed bank {fmt.sig(total_rated)} kvar at {rating_words}: {_counts_text(counts)}"
-    else:
-        order_text = (f"{len(steps_rated)}-step automatic bank, {fmt.sig(total_rated)} kvar at {rating_words}: "
-                      f"{_counts_text(counts)}")
-
-    # --- currents and cable
-    i_rated = capacitor.line_current(total_rated, cap_v, phases)
-    i_sys = capacitor.line_current(delivered, v, phases)
-    i_basis = max(i_rated, i_sys)
-    basis_cable = capacitor.conductor_basis(i_basis, profile)
-    prot_lo, prot_hi = capacitor.protection_range(i_rated)
-
-    # --- key results: what to order
+def _key_results(out, cx):
+    """The headline answers: what to order, the steps, the kvar and the power factor reached, the cable."""
+    after, bank, basis_cable, cap_f, cap_v, delivered = cx.after, cx.bank, cx.basis_cable, cx.cap_f, cx.cap_v, cx.delivered
+    f, factor, i_basis, i_rated, i_sys, need = cx.f, cx.factor, cx.i_basis, cx.i_rated, cx.i_sys, cx.need
+    need_rated, net, order_text, pf1, pf2, pf_after = cx.need_rated, cx.net, cx.order_text, cx.pf1, cx.pf2, cx.pf_after
+    plan, profile, step_units, steps_rated, total_rated, v = cx.plan, cx.profile, cx.step_units, cx.steps_rated, cx.total_rated, cx.v
+    weights = cx.weights
     G0 = ""
     out.result("order", "What to order", total_rated, "kvar", display=order_text, key=True, group=G0,
                method="Least excess over the kvar needed at the capacitor's rating, then the fewest units, from the ratings you can buy",
@@ -428,7 +161,11 @@ def compute(ins, out):
                + f", I_N = {fmt.sig(i_basis)} A" + (" (current at system voltage and frequency, above the rated current)" if i_sys > i_rated * (1 + 1e-9) else ""),
                source=SRC_NEC if profile == "nec" else SRC_IEC)
 
-    # --- present load
+
+def _load_results(ins, out, cx):
+    """The load now, as read."""
+    basis, existing, existing_in, i1, light_p, net = cx.basis, cx.existing, cx.existing_in, cx.i1, cx.light_p, cx.net
+    pf1, phases, v_i, vals = cx.pf1, cx.phases, cx.v_i, cx.vals
     G1 = "Load now" + (" (with the existing capacitors)" if existing > 0 else "")
     out.result("p", "Real power P", net.p_kw, "kW", group=G1, method=_load_method(basis), source=SRC_TRIANGLE)
     out.result("q", "Reactive power Q", net.q_kvar, "kvar", display=_q_text(net.q_kvar), group=G1,
@@ -450,7 +187,14 @@ def compute(ins, out):
             out.warn(f"{label} was entered in hp and taken as {fmt.sig(kw)} kW of electrical load. If it is a motor's nameplate "
                      "(shaft) rating, the electrical input is higher: divide by the motor efficiency (about 0.9 to 0.95).")
 
-    # --- sizing detail
+
+def _detail_results(out, cx):
+    """Sizing detail, capacitor data, cable and protection, benefits."""
+    after, basis_cable, cap_f, cap_v, conn, existing = cx.after, cx.basis_cable, cx.cap_f, cx.cap_v, cx.conn, cx.existing
+    f, factor, i1, i2, i_basis, i_rated = cx.f, cx.factor, cx.i1, cx.i2, cx.i_basis, cx.i_rated
+    i_sys, need_rated, net, pf1, pf2, pf_after = cx.i_sys, cx.need_rated, cx.net, cx.pf1, cx.pf2, cx.pf_after
+    phases, profile, prot_hi, prot_lo, total_rated, v = cx.phases, cx.profile, cx.prot_hi, cx.prot_lo, cx.total_rated, cx.v
+    v_i = cx.v_i
     G2 = "Sizing"
     out.result("k", "Multiplier (kvar per kW)", correction.kvar_per_kw(pf1, pf2), "kvar/kW", digits=4, group=G2,
                method="k = tan(acos PF₁) − tan(acos PF₂)", source=SRC_141)
@@ -509,171 +253,13 @@ def compute(ins, out):
                method="I₂ = S₂/(√3·V); reduction 1 − PF₁/PF₂", source=SRC_TRIANGLE)
     out.result("loss_cut", "I²R loss reduction in upstream cables and transformer", 100 * correction.loss_reduction_fraction(pf1, pf_after), "%",
                digits=3, group=G5, method="1 − (PF₁/PF₂)², at the same P and voltage", source=SRC_TRIANGLE)
+    cx.G3 = G3
 
-    # --- voltage rating and frequency duty
-    d = capacitor.duty(v, cap_v, f, cap_f)
-    if cap_v < v * (1 - 1e-9):
-        over = d.over_limits()
-        status = "fail" if over else "warn"
-        out.result("cap_duty", "Capacitor voltage at system voltage", 100 * d.voltage, "% of rating", digits=3, status=status,
-                   group=G3, method="V/V_r; IEEE 18 continuous limit 110 %", source=SRC_IEEE18)
-        msg = (f"The capacitor is rated {fmt.sig(cap_v)} V, below the {fmt.sig(v)} V system: it runs at {fmt.sig(100 * d.voltage, 3)} % "
-               f"of its rated voltage and {fmt.sig(100 * d.kvar, 3)} % of its rated kvar")
-        if over:
-            msg += f", beyond the IEEE Std 18 continuous limits ({', '.join(over)}). Choose a unit rated at least {fmt.sig(v)} V."
-        else:
-            msg += ", within IEEE Std 18 continuous limits but with a shorter life and no margin for overvoltage or harmonics. Prefer a unit rated at least the system voltage."
-        out.warn(msg)
-    elif d.over_limits():
-        out.warn(f"At {fmt.sig(f)} Hz this {fmt.sig(cap_f)} Hz capacitor runs at {fmt.sig(100 * d.kvar, 3)} % kvar and "
-                 f"{fmt.sig(100 * d.current, 3)} % current, beyond IEEE Std 18 continuous limits (135 %).")
-    if abs(cap_f - f) > 1e-9 * f:
-        out.warn(f"The capacitor is rated for {fmt.sig(cap_f)} Hz but runs at {fmt.sig(f)} Hz: its kvar and current scale by "
-                 f"{fmt.sig(f / cap_f, 3)} × (included above). Check that the maker allows it.")
-    if cap_v > capacitor.OVERRATED_VOLTAGE_RATIO * v:
-        out.notes.append(f"A {fmt.sig(cap_v)} V unit on {fmt.sig(v)} V gives only {fmt.sig(100 * (v / cap_v) ** 2, 3)} % of its nameplate kvar; "
-                         "you pay for kvar you do not get, in exchange for voltage margin.")
 
-    # --- selection checks at full load
-    if after.sense == "leading":
-        out.warn(f"The bank leads at full load (PF {_pf_text(pf_after, 'leading')}): the units you can buy are too coarse "
-                 "for this load. Add smaller ratings to the list" + (" or use fewer steps." if bank == "auto" else "."))
-    if need_rated > 0 and (total_rated - need_rated) > banksteps.EXCESS_WARN_FRACTION * need_rated and total_rated - need_rated > min(ratings):
-        hint = "Fewer steps, another pattern or more unit ratings would fit closer."
-        if bank == "auto" and pattern != "custom":
-            found = banksteps.best_step_count(need_rated, ratings, pattern)
-            if found and found[0] != len(steps_rated) and found[1].total < total_rated - 1e-9:
-                n_best, p_best = found
-                hint = (f"With {n_best} step{'s' if n_best > 1 else ''} in the same pattern the bank would be "
-                        f"{', '.join(fmt.sig(x) for x in p_best.steps)} kvar ({fmt.sig(p_best.total)} kvar rated).")
-        out.warn(f"The step plan orders {fmt.sig(100 * (total_rated - need_rated) / need_rated, 3)} % more than needed. " + hint)
-
-    most = max((len(u) for u in step_units), default=0)
-    if most > banksteps.MANY_UNITS_PER_STEP:
-        out.warn(f"One step of this plan is {most} units in parallel. A step is usually one to a few units: add a larger "
-                 "unit rating to the list, or leave out the smallest, for fewer units, connections and fuses.")
-
-    combos = banksteps.combinations(steps_sys)
-
-    # --- lightest load
-    light_check = None
-    light_net = None
-    if light_p is not None:
-        if light_p > net.p_kw * (1 + 1e-9):
-            raise FieldError("light_p", f"The lightest load is above the full load ({fmt.sig(net.p_kw)} kW); check the figures.")
-        light = correction.load_from_p_pf(light_p, light_pf)
-        light_net = light.corrected(existing) if (not existing_in and existing > 0) else light
-        light_check = banksteps.light_load_check(light_net, steps_sys, combos=combos)
-        full_light = light_net.corrected(delivered)
-        out.result("pf_light", f"Power factor at the lightest load ({fmt.sig(light_p)} kW), whole bank in", full_light.pf, "",
-                   display=_pf_text(full_light.pf, full_light.sense), key=True,
-                   status="warn" if full_light.sense == "leading" else "ok", group="",
-                   method="PF = P_min/√(P_min² + (Q_min − Q_C)²)", source=SRC_TRIANGLE)
-        if light_check.leading:
-            if bank == "fixed":
-                out.warn(f"Over-correction: at the lightest load the fixed bank gives PF {_pf_text(full_light.pf, full_light.sense)}. "
-                         "Switch it with the load, make it smaller, or use an automatic bank.")
-            elif light_check.best is None:
-                out.warn("Over-correction: even the smallest step makes the power factor leading at the lightest load. "
-                         "Use a smaller first step.")
-            else:
-                b = light_check.best
-                out.warn(f"Over-correction: at the lightest load, more than {fmt.sig(b.total)} kvar makes the power factor leading. "
-                         f"Keep step{'s' if len(light_check.leave_out) > 1 else ''} {', '.join(str(i) for i in light_check.leave_out)} off "
-                         f"(steps {'+'.join(str(i) for i in b.on)} in give {_pf_text(light_net.corrected(b.total).pf, light_net.corrected(b.total).sense)}); "
-                         "set the controller's target and switching delay so it does.")
-    else:
-        out.notes.append("No lightest load entered: the over-correction check was skipped.")
-
-    # --- supply: voltage rise and resonance
-    s_sc = None
-    near_orders = ((supply.SINGLE_PHASE_ORDER,) if phases == 1 else ()) + supply.LOW_ORDERS
-    if tx_kva is not None:
-        try:
-            s_sc = supply.transformer_short_circuit_kva(tx_kva, tx_z, None if fault_mva is None else fault_mva * 1000.0)
-        except InputError as e:  # pragma: no cover - fields are range-checked
-            raise FieldError("tx_kva", str(e)) from None
-        if not supply.bank_fits_bus(delivered + existing, s_sc):
-            weak_utility = fault_mva is not None and fault_mva * 1000.0 < tx_kva / (tx_z / 100.0)
-            raise FieldError("fault_mva" if weak_utility else "tx_kva",
-                             f"The capacitors ({fmt.sig(delivered + existing)} kvar) are as large as the bus short-circuit "
-                             f"level ({fmt.sig(s_sc)} kVA): check the transformer rating and impedance"
-                             + (", the utility fault level" if fault_mva is not None else "") + " and their units.")
-        G6 = "Supply"
-        out.result("s_sc", "Short-circuit level at the bus", s_sc, "kVA", group=G6,
-                   method="S_sc = 1/(Z%/100/S_t + 1/S_utility)", source=SRC_SUPPLY)
-        rise = supply.voltage_rise_percent(delivered, s_sc)
-        out.result("v_rise", "Voltage rise, whole new bank switched in", rise, "%", digits=3, group=G6,
-                   status="warn" if rise > supply.VOLTAGE_RISE_LIMIT_PERCENT else "ok",
-                   method="ΔV ≈ 100·Q_C/S_sc (source reactance only; overstates the rise by up to about 10 % of itself for transformer X/R ≥ 3 at up to full load)",
-                   source=cite("practice", "ngspice_checked"))
-        if bank == "auto":
-            out.result("v_rise_step", "Voltage step, largest step switched", supply.voltage_rise_percent(max(steps_sys), s_sc), "%",
-                       digits=3, group=G6, method="ΔV ≈ 100·Q_step/S_sc", source=ref("practice"))
-        if rise > supply.VOLTAGE_RISE_LIMIT_PERCENT:
-            out.warn(f"Switching the whole bank raises the bus voltage by about {fmt.sig(rise, 2)} %: check light-load voltage, "
-                     f"and switch in steps (common practice keeps it under about {fmt.sig(supply.VOLTAGE_RISE_LIMIT_PERCENT)} %).")
-        q_bus = delivered + existing
-        h = supply.resonance_order(s_sc, q_bus)
-        near = supply.near_harmonic(h, near_orders)
-        out.result("h_res", "Parallel resonance order, all capacitors in", h, "", digits=3, group=G6,
-                   display=f"{fmt.sig(h, 3)} (≈ {fmt.sig(h * f, 3)} Hz)" + (f": near the {near}th harmonic" if near else ""),
-                   status="warn" if near else "ok",
-                   method="h = √(S_sc/Q_C), Q_C = new bank + existing at system voltage; neglects damping and the load's own inductance (which raises the true h by about √(1 + Q_load/S_sc))", source=SRC_SUPPLY)
-        out.caution(cautions.SCREENING)
-
-    # --- combinations table
-    target_combo = next((c for c in combos if net.corrected(c.total).pf >= pf2 - 1e-9 and net.corrected(c.total).sense != "leading"), None)
-    near_list = []
-    rows = []
-    levels = combos
-    note_cut = ""
-    if len(levels) > 64:
-        stride = math.ceil(len(levels) / 64)
-        keep = set(levels[::stride]) | {levels[-1]}
-        if target_combo:
-            keep.add(target_combo)
-        if light_check and light_check.best:
-            keep.add(light_check.best)
-        levels = [c for c in combos if c in keep]
-        note_cut = f"Showing {len(levels)} of {len(combos)} positions, evenly spread. "
-    for c in levels:
-        a = net.corrected(c.total)
-        row = ["All (fixed bank)" if bank == "fixed" else "+".join(str(i) for i in c.on), fmt.sig(c.total), _pf_text(a.pf, a.sense)]
-        notes = []
-        if light_net is not None:
-            lt = light_net.corrected(c.total)
-            row.append(_pf_text(lt.pf, lt.sense))
-            if lt.sense == "leading":
-                notes.append("leads at light load")
-        if s_sc is not None:
-            hc = supply.resonance_order(s_sc, c.total + existing)
-            nh = supply.near_harmonic(hc, near_orders)
-            row.append(fmt.sig(hc, 3))
-            if nh:
-                notes.append(f"near {nh}th")
-                near_list.append((c, hc, nh))
-        if c is target_combo:
-            notes.insert(0, "reaches target")
-        row.append(", ".join(notes))
-        rows.append(row)
-    cols = ["Steps in", f"kvar at {fmt.sig(v)} V", "PF at full load"]
-    if light_net is not None:
-        cols.append("PF at lightest load")
-    if s_sc is not None:
-        cols.append("Resonance order h" + (" (existing included)" if existing > 0 else ""))
-    cols.append("Note")
-    out.table("Step combinations" if bank == "auto" else "Bank switched in", cols, rows,
-              note=note_cut + "Steps are numbered from the first (smallest) step. kvar at system voltage and frequency. "
-                   "PF: lagging = inductive, leading = capacitive.")
-
-    if near_list:
-        worst = sorted({nh for _, _, nh in near_list})
-        out.warn(f"Resonance risk: with some step combinations the bus resonates near harmonic order "
-                 f"{', '.join(str(x) for x in worst)} (see the table). If the plant has drives, rectifiers or other "
-                 "harmonic sources, check it with the bus resonance scan and consider a detuned (reactor) bank.")
-
-    # --- link to the resonance scan
+def _link(out, cx):
+    """The link to the resonance scan, and the power-triangle figure."""
+    after, delivered, existing, f, fault_mva, net = cx.after, cx.delivered, cx.existing, cx.f, cx.fault_mva, cx.net
+    phases, steps_sys, tx_kva, tx_z, v = cx.phases, cx.steps_sys, cx.tx_kva, cx.tx_z, cx.v
     link_steps = ([existing] if existing > 0 else []) + steps_sys
     link_inputs = {"v_ll": fmt.sig(v, 6), "f": fmt.sig(f, 6), "steps": ", ".join(fmt.sig(s, 5) for s in link_steps)}
     if tx_kva is not None:
@@ -686,18 +272,6 @@ def compute(ins, out):
     out.link("Scan this bus for resonance" + (" (existing capacitors as the first step)" if existing > 0 else ""), "bus_scan", link_inputs)
 
     out.figure("Power triangle before and after", _triangle_figure(net, after, delivered))
-
-
-def _load_method(basis: str) -> str:
-    return {
-        "p_pf": "P as entered",
-        "s_pf": "P = S·PF",
-        "p_q": "P as entered",
-        "vi_pf": "P = √3·V·I·PF (three-phase) or V·I·PF",
-        "vi_p": "P as entered; S = √3·V·I (three-phase) or V·I",
-        "bill_energy": "P = billed demand, or kWh ÷ operating hours",
-        "bill_demand": "P = peak kW demand",
-    }[basis]
 
 
 SHEET = Worksheet(
