@@ -11,12 +11,13 @@ from pycore.errors import InputError
 
 from .. import cautions, fmt
 from ..sheet import FieldError
-from ._correction_steps import SRC_IEEE18, SRC_SUPPLY, SRC_TRIANGLE, _pf_text
+from ._correction_steps import G_CAPACITOR, SRC_IEEE18, SRC_SUPPLY, SRC_TRIANGLE, _pf_text
 from pycore.references import cite, ref
 
 def rating_and_selection_checks(out, cx):
     """Warnings on the capacitor's voltage and frequency duty and on how well the plan fits the need."""
-    G3, after, bank, cap_f, cap_v, f = cx.G3, cx.after, cx.bank, cx.cap_f, cx.cap_v, cx.f
+    G3 = G_CAPACITOR
+    after, bank, cap_f, cap_v, f = cx.after, cx.bank, cx.cap_f, cx.cap_v, cx.f
     need_rated, pattern, pf_after, ratings, step_units, steps_rated = cx.need_rated, cx.pattern, cx.pf_after, cx.ratings, cx.step_units, cx.steps_rated
     steps_sys, total_rated, v = cx.steps_sys, cx.total_rated, cx.v
     d = capacitor.duty(v, cap_v, f, cap_f)

@@ -27,6 +27,8 @@ SRC_IEC = ref("iec60831")
 SRC_SUPPLY = cite("ieee141_sc", "ieee399", "ieee1036", "dugan")
 SRC_STEPS = ref("this_app")
 
+G_CAPACITOR = "Capacitor data (whole bank)"  # the results group the duty check also writes to
+
 BASES = [
     ("p_pf", "kW and power factor"),
     ("s_pf", "kVA and power factor"),

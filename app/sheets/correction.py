@@ -208,7 +208,7 @@ def _detail_results(out, cx):
                    method="as entered; counted in the resonance check", source=ref("input"))
 
     # --- capacitor data
-    G3 = "Capacitor data (whole bank)"
+    G3 = steps.G_CAPACITOR
     c_d = capacitor.capacitance_uf(total_rated, cap_v, cap_f, "delta", phases)
     if phases == 3:
         c_y = capacitor.capacitance_uf(total_rated, cap_v, cap_f, "wye", phases)
@@ -253,7 +253,6 @@ def _detail_results(out, cx):
                method="I₂ = S₂/(√3·V); reduction 1 − PF₁/PF₂", source=SRC_TRIANGLE)
     out.result("loss_cut", "I²R loss reduction in upstream cables and transformer", 100 * correction.loss_reduction_fraction(pf1, pf_after), "%",
                digits=3, group=G5, method="1 − (PF₁/PF₂)², at the same P and voltage", source=SRC_TRIANGLE)
-    cx.G3 = G3
 
 
 def _link(out, cx):
