@@ -71,7 +71,8 @@ FIELDS = [
         min=0,
         max=5,
         suggest=["0.3", "0.5", "1"],
-        help="Warn when a resonance lies within this many harmonic orders of a harmonic present (0.5 by common practice).",
+        help="Warn when a resonance lies within this many harmonic orders of a harmonic present "
+        f"({fmt.sig(supply.RESONANCE_MARGIN_ORDERS)} by common practice).",
     ),
 ]
 

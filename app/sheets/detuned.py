@@ -31,7 +31,7 @@ FIELDS = [
           options=[("p", "Detuning factor p"), ("ft", "Tuning frequency")],
           help="p = X_L/X_C at the fundamental, in %, or the series-resonance frequency of the branch."),
     Field("p", "Detuning factor p", unit="%", default="7", min=0, min_open=True, max=100, max_open=True,
-          suggest=["5.67", "7", "14"], show_when={"field": "spec", "in": ["p"]},
+          suggest=[fmt.sig(p) for p in detuning.TYPICAL_DETUNING_PERCENT], show_when={"field": "spec", "in": ["p"]},
           help="5.67 %, 7 % and 14 % are the usual choices (common practice); any value from above 0 to below 100 % is allowed. "
                "Use 14 % where a 3rd harmonic is present."),
     Field("ft", "Tuning frequency", unit="Hz", default="189", min=0, min_open=True, max=100000,
