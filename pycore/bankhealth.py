@@ -27,6 +27,7 @@ from dataclasses import dataclass
 
 from .capacitor import capacitance_uf, element_voltage, line_current, output_at
 from .errors import InputError, guarded
+from .references import ref
 
 SQRT3 = math.sqrt(3.0)
 TWO_PI = 2.0 * math.pi
@@ -46,6 +47,17 @@ OPEN_FRACTION = 0.10
 # IEC 60831-1: ratio of largest to smallest capacitance between any two line terminals of a
 # three-phase unit (from memory; maker datasheets quote the same 1.08).
 IEC_RATIO_LIMIT = 1.08
+
+# Plausibility of the entries (this app's screening choices, common practice):
+ABSURD_RATIO = 2.5  # a reading this many times the expected value is an entry error, not a measurement
+SYSTEM_VOLTAGE_RATIO = (0.2, 2.0)  # system or measured voltage ÷ rated outside this: V typed for kV or the like
+MEASURED_VOLTAGE_RATIO = (0.5, 1.5)  # a bank is not run in service outside this ratio of its rated voltage
+PHASE_NEUTRAL_SLACK = 0.04  # within 4 % of rated ÷ √3: a phase-to-neutral voltage typed for line-to-line
+# Per-phase readings of a delta that all lie in this band (× expected) are between-terminal readings
+# (a healthy delta reads 1.5 × the per-phase value between two terminals, the third floating).
+DELTA_BETWEEN_AS_PHASE = (1.4, 1.6)
+# Per-phase readings of a wye that all lie in this band are those of a delta (a third of a wye's).
+WYE_READ_AS_DELTA = (0.25, 0.40)
 
 
 _OUT_OF_RANGE = "The readings are far outside any usable range: check the units (F, mF, µF, nF)."
@@ -424,18 +436,15 @@ class Band:
 BANDS = {
     "iec60831": Band(
         "iec60831", -5.0, 10.0, "IEC 60831-1: −5 % to +10 %",
-        "IEC 60831-1 (self-healing shunt capacitors ≤ 1000 V), capacitance tolerance −5 % to +10 % "
-        "of rated (from memory; check the edition and the maker's datasheet)",
+        ref("iec60831"),  # capacitance tolerance −5 % to +10 % of rated (check the edition and the maker's datasheet)
     ),
     "ieee18": Band(
         "ieee18", 0.0, 10.0, "IEEE Std 18: 0 to +10 %",
-        "IEEE Std 18-2002 and -2012, reactive power 100 % to 110 % of rated at rated voltage and "
-        "frequency, 25 °C (from memory)",
+        ref("ieee18"),  # reactive power 100 % to 110 % of rated at rated voltage and frequency, 25 °C
     ),
     "ieee18_1992": Band(
         "ieee18_1992", 0.0, 15.0, "IEEE Std 18-1992: 0 to +15 %",
-        "IEEE Std 18-1992, routine capacitance test: not less than rated kvar and not more than "
-        "115 % of rated kvar at rated voltage and frequency, corrected to 25 °C",
+        ref("ieee18_1992"),  # not less than rated kvar, not more than 115 %, at rated V and f, 25 °C
     ),
 }
 
@@ -447,7 +456,7 @@ def custom_band(lo: float, hi: float) -> Band:
         raise InputError("The lower limit of the band must be below the upper limit.")
     if lo <= -100.0:
         raise InputError("The lower limit must be above −100 %.")
-    return Band("custom", lo, hi, f"Own band: {lo:+g} % to {hi:+g} %", "Limits entered by the user (a maker's or site's own criterion)")
+    return Band("custom", lo, hi, f"Own band: {lo:+g} % to {hi:+g} %", ref("input"))
 
 
 _EDGE = 1e-9  # % — a reading exactly on a band edge counts as inside

@@ -26,7 +26,9 @@ from .errors import InputError, guarded
 MAX_STATES = 60_000  # size of the dynamic-programming table before pre-filling with large units
 MAX_STEPS = 12
 MAX_UNITS = 1000  # more units than this in one bank is a sign of a wrong unit or rating list
-MAX_GRID_FACTOR = 4  # the largest rating may span at most this many tables of MAX_STATES grid steps
+MAX_GRID_FACTOR = 4
+EXCESS_WARN_FRACTION = 0.25  # a plan more than 25 % (and one unit) above the need draws a warning (this app's choice)
+MANY_UNITS_PER_STEP = 6  # more units than this in one step draws a warning (common practice: 1 to a few)  # the largest rating may span at most this many tables of MAX_STATES grid steps
 
 
 def _grid(ratings: list[float]) -> tuple[Fraction, list[int]]:

@@ -33,6 +33,10 @@ IEC_CURRENT_TOL = 1.43  # the same with the capacitance tolerance, 1.30 × 1.10 
 # rating "as low as practicable").
 PROTECTION_RANGE = (1.35, 1.65)
 
+# A unit rated more than this many times the system voltage gives (1/1.25)² = 64 % or less of
+# its nameplate kvar: worth a note that the kvar is paid for and not delivered (common practice).
+OVERRATED_VOLTAGE_RATIO = 1.25
+
 
 def _pos(v: float, what: str) -> None:
     if not (isinstance(v, (int, float)) and math.isfinite(v)) or v <= 0:

@@ -18,8 +18,9 @@ import math
 from dataclasses import dataclass
 
 from .errors import InputError, guarded
+from .references import ref
 
-IEEE18_EDITION = "IEEE Std 18-2002 (the 2012 revision is believed to keep the same limits, from memory)"
+IEEE18_EDITION = ref("ieee18")
 
 IEEE18_LIMITS_PERCENT = {
     "v_rms": 110.0,
@@ -31,6 +32,21 @@ IEEE18_LIMITS_PERCENT = {
 120 % of √2·rated rms (harmonics included, transients excluded), rms current 135 % of the
 current at rated kvar and voltage, reactive power 135 % of rated kvar. IEEE Std 18-2002
 (the 1992 edition allowed 180 % current — from memory)."""
+
+BUS_TO_RATED_VOLTAGE_MAX = 3.0
+"""A capacitor whose bus voltage is more than this factor above or below its rated voltage is
+not a capacitor duty to check but a unit typed wrong (V for kV) or a capacitor that does not
+belong on that bus (common practice: units run within about ±10 % of rating)."""
+
+
+def voltage_ratio_plausible(u_bus_v: float, u_rated_v: float) -> bool:
+    """True when the bus voltage [V] lies within :data:`BUS_TO_RATED_VOLTAGE_MAX` of the
+    capacitor's rated voltage [V] either way (same basis: both line-to-line). Common practice."""
+    return u_rated_v / BUS_TO_RATED_VOLTAGE_MAX <= u_bus_v <= BUS_TO_RATED_VOLTAGE_MAX * u_rated_v
+
+
+LEVEL_MAX_PERCENT = 100.0
+"""A harmonic level above the fundamental is not a spectrum a meter shows at a capacitor bus."""
 
 HARMONIC_ORDER_MIN = 2
 HARMONIC_ORDER_MAX = 50

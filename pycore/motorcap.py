@@ -26,6 +26,7 @@ from .errors import InputError, guarded
 SQRT3 = math.sqrt(3.0)
 
 MARGIN = 0.90  # capacitor ≤ 90 % of the no-load magnetising kvar (common practice)
+NO_LOAD_RATIO_PLAUSIBLE = (0.10, 0.70)  # no-load ÷ full-load current of induction motors outside this: check the reading (common practice)
 LOCKED_ROTOR_RATIO = 6.0  # typical locked-rotor / full-load current of a general-purpose motor (common practice)
 
 

@@ -21,6 +21,8 @@ from .errors import InputError, guarded
 
 TWO_PI = 2.0 * math.pi
 TOPOLOGIES = ("series", "parallel")
+Q_HEAVILY_DAMPED = 0.5  # below this Q the half-power points lie far apart: "resonance" means little (textbook)
+Q_UNUSUAL_FOR_POWER = 1000.0  # power reactors and capacitors rarely exceed this Q (common practice)
 
 
 def _positive(value: float, what: str) -> float:

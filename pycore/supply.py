@@ -31,6 +31,14 @@ def transformer_short_circuit_kva(transformer_kva: float, z_percent: float, upst
     return 1.0 / (z_t + z_up)
 
 
+def bank_fits_bus(q_cap_kvar: float, s_sc_kva: float) -> bool:
+    """True when a bank of Q [kvar] is smaller than the bus short-circuit level S_sc [kVA].
+    At Q ≥ S_sc the √(S_sc/Q) resonance estimate falls to the fundamental or below and the
+    ΔV ≈ Q/S_sc approximation to 100 % or more: the figures are a unit or rating typed wrong,
+    not a bank (circuit theory; a real bank is a few per cent of S_sc, common practice)."""
+    return q_cap_kvar < s_sc_kva
+
+
 @guarded
 def resonance_order(s_sc_kva: float, q_cap_kvar: float) -> float:
     """Parallel-resonance harmonic order h ≈ √(S_sc/Q_cap) of a bank on a bus (dimensionless).
@@ -58,9 +66,24 @@ def voltage_rise_percent(q_cap_kvar: float, s_sc_kva: float) -> float:
 CHARACTERISTIC_ORDERS = (5, 7, 11, 13, 17, 19, 23, 25)
 """Characteristic harmonics of six-pulse converters (h = 6k ± 1; common practice, IEEE Std 519)."""
 
+LOW_ORDERS = (5, 7, 11, 13)
+"""The characteristic harmonics that carry most of a plant's harmonic current, screened when a
+bank's size is chosen (common practice)."""
+
+SINGLE_PHASE_ORDER = 3
+"""Single-phase rectifier loads (computers, LED lighting) add the 3rd harmonic (common practice)."""
+
+RESONANCE_MARGIN_ORDERS = 0.5
+"""A resonance within this many harmonic orders of a harmonic present is flagged (screening
+rule, common practice)."""
+
+VOLTAGE_RISE_LIMIT_PERCENT = 3.0
+"""Switching a bank should raise the bus voltage by no more than about this much (utility and
+handbook practice, common practice)."""
+
 
 @guarded
-def near_harmonic(order: float, harmonics=CHARACTERISTIC_ORDERS, margin: float = 0.5) -> int | None:
+def near_harmonic(order: float, harmonics=CHARACTERISTIC_ORDERS, margin: float = RESONANCE_MARGIN_ORDERS) -> int | None:
     """The characteristic harmonic within ``margin`` orders of ``order``, or None (screening rule, common practice)."""
     best = None
     for h in harmonics:

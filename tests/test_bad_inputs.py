@@ -146,7 +146,7 @@ BAD = [
     ("bus_scan", "margin", "6", {}, "at most 5"),
     # ------------------------------------------------------------------ detuned bank
     ("detuned", "u", "400 mV", {}, "at least 50"),
-    ("detuned", "u", "40 kV", {}, "at most"),
+    ("detuned", "u", "400 kV", {}, "at most"),  # kilo for nothing
     ("detuned", "f", "0", {}, "at least"),
     ("detuned", "q", "200 Gvar", {}, "at most"),
     ("detuned", "q", "\u2212200", {}, "above 0"),  # a typographic minus
@@ -162,9 +162,9 @@ BAD = [
     # ------------------------------------------------------------------ capacitor duty
     ("cap_duty", "u_rated", "440 MV", {}, "at most"),
     ("cap_duty", "u_rated", "", {}, "enter"),
-    ("cap_duty", "u_bus", "400 kV", {}, "times the capacitor"),  # kilo for nothing: 909 × rating
+    ("cap_duty", "u_bus", "40 kV", {}, "times the capacitor"),  # kilo for nothing: 91 × rating
     ("cap_duty", "q_rated", "50 Gvar", {}, "at most"),
-    ("cap_duty", "f_rated", "5", {}, "at least 10"),
+    ("cap_duty", "f_rated", "5", {}, "at least 16.7"),
     ("cap_duty", "f_sys", "1e6", {}, "at most"),
     ("cap_duty", "p", "100", {}, "below 100"),
     ("cap_duty", "spectrum", table(["5", "4.5"], ["7", "abc"]), {}, "row 2"),
@@ -203,8 +203,8 @@ BAD = [
     ("lc_resonance", "f_at", "-50", {}, "above 0"),
     # ------------------------------------------------------------------ bank health
     ("bank_health", "q_rated", "50 Gvar", {}, "at most"),
-    ("bank_health", "v_rated", "0.5", {}, "at least 1"),
-    ("bank_health", "f_rated", "0", {}, "at least 10"),
+    ("bank_health", "v_rated", "0.5", {}, "at least 50"),
+    ("bank_health", "f_rated", "0", {}, "at least 16.7"),
     ("bank_health", "m12", "482.7 MF", {}, "at most"),
     ("bank_health", "m12", "482.7 mF", {}, "check the unit"),  # milli for micro: 1000 × expected
     ("bank_health", "m12", "482.7 nF", {}, "cannot come from"),

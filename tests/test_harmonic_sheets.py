@@ -120,7 +120,7 @@ def test_detuned_tuning_above_lowest_harmonic_fails():
     ("h_low", "1", "at least 2"),
     ("h_low", "51", "at most 50"),
     ("margin", "-5", "at least 0"),
-    ("u_cap", "-480", "above 0"),
+    ("u_cap", "-480", "at least 50"),
 ])
 def test_detuned_bad_input_at_field(field, value, words):
     r = run("detuned", **{field: value})
@@ -229,10 +229,10 @@ def test_cap_duty_unreadable_table(text):
 @pytest.mark.parametrize("field, value, words", [
     ("p", "100", "below 100"),
     ("p", "-1", "at least 0"),
-    ("u_rated", "0", "above 0"),
+    ("u_rated", "0", "at least 50"),
     ("q_rated", "-5", "above 0"),
     ("u_bus", "", "enter"),
-    ("f_sys", "5", "at least 10"),
+    ("f_sys", "5", "at least 16.7"),
 ])
 def test_cap_duty_bad_fields(field, value, words):
     r = run("cap_duty", **{field: value})

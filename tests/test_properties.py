@@ -31,7 +31,7 @@ from hypothesis import strategies as st
 import pycore
 from pycore import (bankhealth, banksteps, busscan, cables, capacitor, capduty, correction, detuning, harmonicbus,
                     harmonicsources, harmonicstudy, healthverdict, ieee519, inrush, orderlist, phasor, profile_columns,
-                    profile_control, resonancescreen, savings, supply, survey)
+                    profile_control, references, resonancescreen, savings, supply, survey)
 from pycore.errors import InputError, guarded
 
 SETTINGS = settings(max_examples=200, deadline=None, database=None,
@@ -456,6 +456,7 @@ CASES = {
     "capacitor.protection_range": A(F),
     # capduty
     "capduty.ieee519_voltage_limits": A(F),
+    "capduty.voltage_ratio_plausible": A(F, F),
     "capduty.thd_percent": A(SPECTRUM),
     "capduty.check_spectrum": A(SPECTRUM),
     "capduty.duty_from_capacitor_voltages": A(SPECTRUM, F),
@@ -592,11 +593,15 @@ CASES = {
     "supply.transformer_short_circuit_kva": A(F, F, OPT),
     "supply.resonance_order": A(F, F),
     "supply.voltage_rise_percent": A(F, F),
+    "supply.bank_fits_bus": A(F, F),
     "supply.near_harmonic": A(F, st.lists(st.integers(2, 50), max_size=5), F),
     # survey
     "survey.parse_pf": A(TEXT),
     "survey.reactive_per_kw": A(F, BOOL),
     "survey.correction_kvar": A(F, F, F),
+    # the references table: any key of it (an unknown key is a programming error, caught at import)
+    "references.ref": A(st.sampled_from(sorted(references.REFERENCES))),
+    "references.cite": A(st.sampled_from(sorted(references.REFERENCES)), st.sampled_from(sorted(references.REFERENCES))),
     "survey.make_load": A(st.text(max_size=5), F, OPT, BOOL, OPT, OPT, OPT),
     "survey.row_totals": A(SLOAD, F),
     "survey.survey_totals": A(st.lists(SLOAD, max_size=4), F),

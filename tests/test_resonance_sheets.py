@@ -165,10 +165,10 @@ def test_bus_peak_above_50():
         (dict(steps="100, 0"), "steps", "above 0"),
         (dict(steps="100, abc"), "steps", "item 2"),
         (dict(steps="100, 5 kW"), "steps", "reactive"),
-        (dict(steps=", ".join(["25"] * 13)), "steps", "at most 12"),
+        (dict(steps=", ".join(["25"] * 14)), "steps", "at most 13"),  # 12 steps + the existing capacitors
         (dict(steps="50 Mvar"), "steps", "short-circuit"),
-        (dict(v_ll="0"), "v_ll", "above 0"),
-        (dict(v_ll="-400"), "v_ll", "above 0"),
+        (dict(v_ll="0"), "v_ll", "at least 50"),
+        (dict(v_ll="-400"), "v_ll", "at least 50"),
         (dict(f="0"), "f", "at least"),
         (dict(tx_kva="0"), "tx_kva", "above 0"),
         (dict(tx_kva=""), "tx_kva", "enter"),

@@ -6,29 +6,28 @@ from __future__ import annotations
 import math
 
 from pycore import bankhealth as bh
+from pycore.capacitor import IEEE18_VOLTAGE
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import Svg
 
-SRC_CIRCUIT = "Circuit theory: Q = 2πf·C·V² per element, series/parallel capacitance, Y–Δ transformation (Alexander & Sadiku)"
-SRC_PRACTICE = "Common practice (no single published source)"
+SRC_CIRCUIT = ref("circuits_three_phase")
+SRC_PRACTICE = ref("practice")
 
-# A reading this many times the expected value is taken as an entry error, not a measurement.
-ABSURD_RATIO = 2.5
 
 _PAIR_FIELDS = ("m12", "m23", "m31")
 _PHASE_FIELDS = ("c1", "c2", "c3")
 _CURRENT_FIELDS = ("i1", "i2", "i3")
 
 FIELDS = [
-    Field("q_rated", "Rated output", unit="kvar", default="50", min=0, min_open=True, max=1e6,
-          group="Nameplate", help="Total nameplate kvar of the bank (or of the three-phase unit) at its rated voltage and frequency."),
-    Field("v_rated", "Rated voltage", unit="V", default="400", min=1, max=1e6,
-          suggest=["400", "415", "440", "480", "525", "690"],
-          help="Nameplate voltage, line-to-line. Type 13.8 kV for a medium-voltage bank."),
-    Field("f_rated", "Rated frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
+    Q.CAPACITOR_KVAR.field("q_rated", "Rated output", default="50", group="Nameplate",
+                           note="The total for the bank (or the three-phase unit)."),
+    Q.CAPACITOR_VOLTAGE.field("v_rated", "Rated voltage", default="400", note="Type 13.8 kV for a medium-voltage bank."),
+    Q.CAPACITOR_FREQUENCY.field("f_rated", default="50"),
     Field("connection", "Connection", kind="choice", default="delta",
           options=[("delta", "Delta"), ("wye", "Wye, star point floating"), ("wye_n", "Wye, star point to neutral or earth")],
           help="Most low-voltage banks and three-phase cans are delta inside. Wye banks are usual at medium voltage."),
@@ -59,14 +58,12 @@ FIELDS = [
           show_when={"field": "mode", "in": ["current"]}),
     Field("i3", "Current in L3", unit="A", default="67.9", min=0, min_open=True, max=1e6,
           show_when={"field": "mode", "in": ["current"]}),
-    Field("v_meas", "Voltage while measuring", unit="V", default="405", min=0, min_open=True, max=1e6,
-          show_when={"field": "mode", "in": ["current"]},
-          help="Line-to-line voltage at the bank at the time of the current readings (average of the three)."),
-    Field("v_sys", "System voltage", unit="V", default="", required=False, min=0, min_open=True, max=1e6,
-          group="At the site", placeholder="same as rated",
-          help="Line-to-line voltage the bank runs at, for its real kvar. Blank: the rated voltage."),
-    Field("f_sys", "System frequency", unit="Hz", default="", required=False, min=10, max=1000,
-          suggest=["50", "60"], placeholder="same as rated", help="Blank: the rated frequency."),
+    Q.MEASURED_VOLTAGE.field("v_meas", "Voltage while measuring", default="405", show_when={"field": "mode", "in": ["current"]},
+                             note="At the bank at the time of the current readings (average of the three)."),
+    Q.SYSTEM_VOLTAGE.field("v_sys", "System voltage", default="", required=False, group="At the site",
+                           placeholder="same as rated", note="The bank's real kvar is worked out at it. Blank: the rated voltage."),
+    Q.SYSTEM_FREQUENCY.field("f_sys", "System frequency", default="", required=False, placeholder="same as rated",
+                             note="Blank: the rated frequency."),
     Field("band", "Tolerance band", kind="choice", default="iec60831", group="Verdict",
           options=[(k, b.label) for k, b in bh.BANDS.items()] + [("custom", "My own limits")],
           help="The as-made capacitance tolerance of the standard the bank was built to. IEC 60831-1 for "
@@ -102,7 +99,7 @@ def _check_absurd(ins, names, values, expected_value, unit_label, what, hint):
         if v is None:
             continue
         ratio = v / expected_value
-        if ratio > ABSURD_RATIO:
+        if ratio > bh.ABSURD_RATIO:
             ins.fail(name, f"This is {_ratio_words(ratio)} {unit_label(expected_value)} {what}: "
                            f"{hint}")
 
@@ -177,13 +174,13 @@ def compute(ins, out):
         if v is None:
             continue
         r = v / v_rated
-        if r > 2.0 or r < 0.2:
+        if not bh.SYSTEM_VOLTAGE_RATIO[0] <= r <= bh.SYSTEM_VOLTAGE_RATIO[1]:
             raise FieldError(name, f"The {basis} voltage is {_ratio_words(r)} rated {fmt.sig(v_rated)} V: "
                                    "check V against kV, and that both are line-to-line.")
-        if name == "v_meas" and (r > 1.5 or r < 0.5):
+        if name == "v_meas" and not bh.MEASURED_VOLTAGE_RATIO[0] <= r <= bh.MEASURED_VOLTAGE_RATIO[1]:
             raise FieldError(name, f"The measured voltage is {_ratio_words(r)} rated voltage; a bank "
                                    "is not run there. Check the value and that it is line-to-line.")
-        if abs(r * math.sqrt(3.0) - 1.0) < 0.04:
+        if abs(r * math.sqrt(3.0) - 1.0) < bh.PHASE_NEUTRAL_SLACK:
             out.warn(f"The {basis} voltage is close to the rated voltage ÷ √3: enter the line-to-line voltage, "
                      "not phase-to-neutral.")
 
@@ -293,11 +290,11 @@ def compute(ins, out):
         imb = bh.imbalance_percent(c)
         ratio = bh.max_min_ratio(c)
         out.result("imbalance", "Imbalance between phases", imb, "%", group=g, digits=3,
-                   method="largest deviation from the mean ÷ mean", source=SRC_PRACTICE + "; the definition NEMA MG 1 uses for voltage unbalance")
+                   method="largest deviation from the mean ÷ mean", source=cite("practice", "nema_mg1"))
         out.result("ratio", "Largest ÷ smallest phase", ratio, "", group=g, digits=4,
                    status="ok" if ratio <= bh.IEC_RATIO_LIMIT else "warn",
                    method=f"C_max/C_min; a three-phase unit is made to ≤ {bh.IEC_RATIO_LIMIT}",
-                   source="IEC 60831-1, ratio of capacitances between line terminals of a three-phase unit (from memory)")
+                   source=ref("iec60831"))
         if ratio > bh.IEC_RATIO_LIMIT:
             out.warn(f"The phases differ by more than the {bh.IEC_RATIO_LIMIT} ratio a new three-phase unit is made to: "
                      "the bank draws unequal line currents.")
@@ -335,10 +332,10 @@ def compute(ins, out):
             out.notes.append(f"{bh.VERDICT_WORDS[v]} ({phases}) — what it usually means (common practice): {bh.MEANINGS[v]}")
     if all(v == "ok" for v in verdicts):
         out.notes.append(bh.MEANINGS["ok"])
-    if mode == "phase" and conn == "delta" and all(1.4 < p / 100 < 1.6 for p in pct):
+    if mode == "phase" and conn == "delta" and all(bh.DELTA_BETWEEN_AS_PHASE[0] < p / 100 < bh.DELTA_BETWEEN_AS_PHASE[1] for p in pct):
         out.warn("Every phase reads about 150 % of expected: these look like between-terminal readings of a delta. "
                  "Choose 'Capacitance between terminals'.")
-    if mode == "phase" and conn != "delta" and all(0.25 < p / 100 < 0.40 for p in pct):
+    if mode == "phase" and conn != "delta" and all(bh.WYE_READ_AS_DELTA[0] < p / 100 < bh.WYE_READ_AS_DELTA[1] for p in pct):
         out.warn("Every phase reads about a third of expected: a delta has one third of a wye's per-phase "
                  "capacitance. Is the bank delta-connected?")
     if mode == "current":
@@ -349,8 +346,9 @@ def compute(ins, out):
     else:
         out.notes.append("Capacitance meters are typically within 1–2 % (common practice); polypropylene capacitance "
                          "changes little with temperature.")
-    if v_sys / v_rated > 1.10 + 1e-9:
-        out.warn(f"The system voltage is {fmt.sig(100 * v_sys / v_rated, 3)} % of the rated voltage, above the 110 % "
+    if v_sys / v_rated > IEEE18_VOLTAGE + 1e-9:
+        out.warn(f"The system voltage is {fmt.sig(100 * v_sys / v_rated, 3)} % of the rated voltage, above the "
+                 f"{fmt.sig(100 * IEEE18_VOLTAGE)} % "
                  "continuous limit of IEEE Std 18 (IEC 60831-1 allows 1.10·U_N only 8 h in 24 h, from memory).")
 
     out.figure("Each phase against the band", _bars(list(names), pct, verdicts, band))
@@ -366,8 +364,6 @@ SHEET = Worksheet(
     cautions=[cautions.STORED_CHARGE, cautions.TEST_DEENERGISED, cautions.QUALIFIED, cautions.ESTIMATE],
     order=50,
     references=[
-        "C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (capacitors in series and parallel, Y–Δ, three-phase)",
-        "IEEE Std 18, IEEE Standard for Shunt Power Capacitors (capacitance tolerance)",
-        "IEC 60831-1, Shunt power capacitors of the self-healing type for AC systems ≤ 1000 V (tolerance; from memory)",
+        ref("circuits_three_phase"), ref("ieee18"), ref("iec60831"),
     ],
 )

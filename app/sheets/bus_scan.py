@@ -10,76 +10,32 @@ from __future__ import annotations
 
 import math
 
-from pycore import busscan, supply
+from pycore import banksteps, busscan, supply
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
-SRC_SCAN = "Circuit theory (parallel resonance of supply inductance and bank); per-unit method, IEEE Std 141 (Red Book)"
-SRC_EST = "IEEE Std 1036 (shunt capacitor application guide); Dugan et al., Electrical Power Systems Quality"
-SRC_PU = "Per-unit method, IEEE Std 141 (Red Book), short-circuit chapter"
+SRC_SCAN = cite("circuits_resonance", "ieee141_sc")
+SRC_EST = cite("ieee1036", "dugan")
+SRC_PU = ref("ieee141_sc")
 
-MAX_STEPS = 12
+# the most steps a controller switches, plus the fixed capacitors already on the bus as a first step
+# (as the correction worksheet's link sends them)
+MAX_STEPS = banksteps.MAX_STEPS + 1
 
 FIELDS = [
-    Field(
-        "v_ll",
-        "System voltage (line to line)",
-        unit="V",
-        default="400",
-        min=0,
-        min_open=True,
-        max=69000,
-        suggest=["400", "480", "600", "690"],
-        group="Supply",
-        help="The bus voltage the capacitors connect to; kV may be typed (0.48 kV).",
-    ),
-    Field("f", "Frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
-    Field(
-        "tx_kva",
-        "Transformer rating",
-        unit="kVA",
-        default="1250",
-        min=0,
-        min_open=True,
-        max=1e6,
-        suggest=["500", "1000", "1600", "2500"],
-        help="Nameplate rating of the transformer feeding the bus; MVA may be typed (1.6 MVA).",
-    ),
-    Field(
-        "tx_z",
-        "Transformer impedance",
-        unit="%",
-        default="6",
-        min=0.5,
-        max=40,
-        suggest=["4", "5.75", "6"],
-        help="Impedance voltage from the nameplate, in % on the transformer's own rating.",
-    ),
-    Field(
-        "x_r",
-        "Transformer X/R ratio",
-        default="5",
-        required=False,
-        min=0,
-        min_open=True,
-        max=100,
-        help="Optional. Empty: the transformer is taken as a pure reactance (no damping, the highest peaks).",
-    ),
-    Field(
-        "fault_mva",
-        "Upstream fault level",
-        unit="MVA",
-        default="250",
-        required=False,
-        min=0,
-        min_open=True,
-        max=1e5,
-        help="Optional: the utility's short-circuit level at the transformer's primary. Empty: infinite bus "
-        "(puts the resonance slightly high).",
-    ),
+    Q.SYSTEM_VOLTAGE.field("v_ll", "System voltage (line to line)", default="400", group="Supply"),
+    Q.SYSTEM_FREQUENCY.field("f", default="50"),
+    Q.TRANSFORMER_KVA.field("tx_kva", default="1250"),
+    Q.TRANSFORMER_Z.field("tx_z", default="6"),
+    Q.TRANSFORMER_XR.field("x_r", default="5", required=False,
+                           note="Optional. Empty: the transformer is taken as a pure reactance (no damping, the highest peaks)."),
+    Q.FAULT_MVA.field("fault_mva", default="250", required=False,
+                      note="Optional. Empty: infinite bus (puts the resonance slightly high)."),
     Field(
         "load_kw",
         "Resistive load (damping)",
@@ -103,29 +59,20 @@ FIELDS = [
         ],
         help="Single-phase rectifier loads add the 3rd harmonic to the harmonics checked.",
     ),
-    Field(
-        "steps",
-        "Capacitor steps",
-        kind="list",
-        unit="kvar",
-        default="50, 50, 100, 100, 100",
-        min=0,
-        min_open=True,
-        max=1e5,
-        group="Capacitor bank",
-        help="Step sizes in kvar at the system voltage, in the order the controller switches them in "
-        "(comma separated). Each combination 1, 1+2, 1+2+3… is scanned.",
-    ),
+    Q.BANK_KVAR.field("steps", "Capacitor steps", kind="list", default="50, 50, 100, 100, 100", group="Capacitor bank",
+                      note="Step sizes in the order the controller switches them in (comma separated). "
+                           "Each combination 1, 1+2, 1+2+3… is scanned."),
     Field(
         "margin",
         "Margin around each harmonic",
         unit="",
-        default="0.5",
+        default=fmt.sig(supply.RESONANCE_MARGIN_ORDERS),
         required=False,
         min=0,
         max=5,
         suggest=["0.3", "0.5", "1"],
-        help="Warn when a resonance lies within this many harmonic orders of a harmonic present (0.5 by common practice).",
+        help="Warn when a resonance lies within this many harmonic orders of a harmonic present "
+        f"({fmt.sig(supply.RESONANCE_MARGIN_ORDERS)} by common practice).",
     ),
 ]
 
@@ -182,7 +129,7 @@ def compute(ins, out):
         return
     if len(steps) > MAX_STEPS:
         raise FieldError("steps", f"At most {MAX_STEPS} steps; combine small ones or scan the bank in two parts.")
-    margin = 0.5 if margin is None else margin
+    margin = supply.RESONANCE_MARGIN_ORDERS if margin is None else margin
     try:
         model = busscan.bus_model(v, f, kva, zp, x_r, None if fault is None else fault * 1000.0, load)
         peaks = busscan.scan(model, steps)
@@ -191,11 +138,11 @@ def compute(ins, out):
     except ArithmeticError:
         raise InputError("These values are out of range for a calculation; check the units.") from None
     total = peaks[-1].q_kvar
-    if total >= model.s_sc_kva:
+    if not supply.bank_fits_bus(total, model.s_sc_kva):
         raise FieldError("steps", f"The bank ({fmt.sig(total)} kvar) is as large as the bus short-circuit level "
                                   f"({fmt.sig(model.s_sc_kva)} kVA): check the step sizes and their unit (kvar).")
 
-    harmonics = tuple(sorted(set(supply.CHARACTERISTIC_ORDERS) | ({3} if sp == "yes" else set())))
+    harmonics = tuple(sorted(set(supply.CHARACTERISTIC_ORDERS) | ({supply.SINGLE_PHASE_ORDER} if sp == "yes" else set())))
     h_words = ", ".join(str(h) for h in harmonics)
 
     # headline: the full bank
@@ -251,10 +198,10 @@ def compute(ins, out):
     out.result("near_count", "Combinations near a harmonic present", near_count, "",
                display=f"{near_count} of {len(peaks)} (harmonics {h_words}, ±{fmt.sig(margin)})",
                status="warn" if near_count else "ok", key=True,
-               method="|h_res − h| ≤ margin for h in the characteristic set", source="Screening rule, common practice; IEEE Std 519 (6k ± 1 harmonics)",
+               method="|h_res − h| ≤ margin for h in the characteristic set", source=cite("practice", "ieee519"),
                group=g_full)
     out.result("v_rise", "Voltage rise, all steps in", supply.voltage_rise_percent(total, model.s_sc_kva), "%", digits=3,
-               method="ΔV ≈ 100·Q/S_sc", source="Utility and handbook practice (common practice)", group=g_full)
+               method="ΔV ≈ 100·Q/S_sc", source=ref("practice"), group=g_full)
 
     g_sup = "Supply model"
     out.result("s_sc", "Short-circuit level at the bus", model.s_sc_kva, "kVA", digits=4,
@@ -308,9 +255,6 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=20,
     references=[
-        "IEEE Std 1036, Guide for the Application of Shunt Power Capacitors (resonance h ≈ √(S_sc/Q))",
-        "R. C. Dugan, M. F. McGranaghan, S. Santoso, H. W. Beaty, Electrical Power Systems Quality (capacitor resonance)",
-        "IEEE Std 141 (Red Book), per-unit short-circuit method",
-        "IEEE Std 519-2014 (characteristic harmonics of converters)",
+        ref("ieee1036"), ref("dugan"), ref("ieee141_sc"), ref("ieee519"),
     ],
 )

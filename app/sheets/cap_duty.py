@@ -7,32 +7,30 @@ import math
 
 from pycore import capduty
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import Svg, nice_ticks
 
-SRC_18 = capduty.IEEE18_EDITION + ", continuous limits"
-SRC_1036 = "IEEE Std 1036, capacitor duty with harmonics (method from memory)"
-SRC_519 = "IEEE Std 519-2014, Table 1 (voltage distortion limits)"
-SRC_CIRCUIT = "Circuit theory: X_C = 1/(2πfC), so I_h = h·V_h in per unit"
+SRC_18 = ref("ieee18")
+LIM = capduty.IEEE18_LIMITS_PERCENT
+SRC_1036 = ref("ieee1036")
+SRC_519 = ref("ieee519")
+SRC_CIRCUIT = ref("circuits_ac_power")
 
 FIELDS = [
-    Field("u_rated", "Capacitor rated voltage", unit="V", default="440", min=0, min_open=True, max=100000,
-          suggest=["400", "440", "480", "525", "600"], group="Capacitor rating",
-          help="Nameplate rated voltage (line-to-line for a three-phase unit)."),
-    Field("q_rated", "Capacitor rated power", unit="kvar", default="50", min=0, min_open=True, max=1e6,
-          help="Nameplate kvar at the rated voltage and frequency."),
-    Field("f_rated", "Rated frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
+    Q.CAPACITOR_VOLTAGE.field("u_rated", default="440", group="Capacitor rating"),
+    Q.CAPACITOR_KVAR.field("q_rated", default="50"),
+    Q.CAPACITOR_FREQUENCY.field("f_rated", default="50"),
     Field("phases", "Unit", kind="choice", default="3",
           options=[("3", "Three-phase (voltages line-to-line)"), ("1", "Single-phase")],
           help="Only the rated current in amperes depends on this; the % results do not."),
-    Field("u_bus", "Bus voltage, fundamental", unit="V", default="400", min=0, min_open=True, max=1000000,
-          group="Operating conditions",
-          help="The fundamental voltage where the bank connects, on the same basis as the rating. "
-               "Its level also picks the IEEE 519 voltage limits."),
-    Field("f_sys", "System frequency", unit="Hz", default="", required=False, min=10, max=1000, suggest=["50", "60"],
-          help="Leave blank when it equals the rated frequency. A 50 Hz capacitor on 60 Hz draws 20 % more current."),
+    Q.SYSTEM_VOLTAGE.field("u_bus", "Bus voltage, fundamental", default="400", group="Operating conditions",
+                           note="On the same basis as the rating. Its level also picks the IEEE 519 voltage limits."),
+    Q.SYSTEM_FREQUENCY.field("f_sys", "System frequency", default="", required=False,
+                             note="Leave blank when it equals the rated frequency. A 50 Hz capacitor on 60 Hz draws 20 % more current."),
     Field("p", "Series reactor detuning factor", unit="%", default="0", min=0, max=100, max_open=True,
           suggest=["0", "5.67", "7", "14"],
           help="0 for a plain bank on the bus. For a detuned bank, p = X_L/X_C in %: the capacitor then sees U/(1 − p) "
@@ -79,8 +77,9 @@ def _spectrum(ins):
                                          "IEEE 519 counts. Enter orders from 2 to 50.")
         if v < 0:
             raise FieldError("spectrum", f"Row {n}: the level cannot be negative (got {fmt.sig(v)} %).")
-        if v > 100:
-            raise FieldError("spectrum", f"Row {n}: the level must be at most 100 % of the fundamental (got {fmt.sig(v)} %).")
+        if v > capduty.LEVEL_MAX_PERCENT:
+            raise FieldError("spectrum", f"Row {n}: the level must be at most {fmt.sig(capduty.LEVEL_MAX_PERCENT)} % of the "
+                                         f"fundamental (got {fmt.sig(v)} %).")
         h = int(h)
         if h in spec:
             raise FieldError("spectrum", f"Row {n}: harmonic order {h} appears twice; enter each order once.")
@@ -95,7 +94,7 @@ def _bars(title, items, y_label, desc, ref_lines=()):
     left, right, top, bottom = 60, 16, 34, 46
     pw, ph = w - left - right, h - top - bottom
     vals = [v for _, v, _, _ in items] + [lim for _, _, lim, _ in items if lim is not None] + [v for v, _ in ref_lines]
-    y1 = max(vals + [1e-9]) * 1.12
+    y1 = max(vals + [1e-9]) * 1.12  # drawing: headroom above the tallest bar
     ticks = nice_ticks(0.0, y1)
     y1 = max(y1, ticks[-1])
     svg = Svg(w, h, title, desc)
@@ -112,7 +111,7 @@ def _bars(title, items, y_label, desc, ref_lines=()):
     svg.line(left, top, left, top + ph, "fp-axis")
     svg.text(14, top + ph / 2, y_label, anchor="middle", size=12)
     slot = pw / max(1, len(items))
-    bw = min(56.0, slot * 0.6)
+    bw = min(56.0, slot * 0.6)  # drawing: bar width
     for i, (label, v, lim, cls) in enumerate(items):
         cx = left + slot * (i + 0.5)
         svg.rect(cx - bw / 2, py(v), bw, max(0.0, top + ph - py(v)), cls)
@@ -139,9 +138,10 @@ def compute(ins, out):
     spec = _spectrum(ins)
     if ins.errors or spec is None:
         return
-    if not (u_rated / 3.0 <= u_bus <= 3.0 * u_rated):
-        # a factor of 3 either way is no capacitor duty but a unit typed wrong (V for kV)
-        raise FieldError("u_bus", f"The bus voltage is {fmt.sig(u_bus / u_rated, 3)} times the capacitor's rated "
+    u_c = u_bus / (1.0 - p_pct / 100.0)  # the capacitor's fundamental voltage (raised by a series reactor)
+    if not capduty.voltage_ratio_plausible(u_c, u_rated):
+        seen = "The bus voltage" if p_pct == 0 else "The capacitor's voltage U/(1 − p)"
+        raise FieldError("u_bus", f"{seen} is {fmt.sig(u_c / u_rated, 3)} times the capacitor's rated "
                                   "voltage: check the units (V or kV) and that both are line-to-line, or both "
                                   "line-to-neutral.")
     f_ratio = 1.0 if f_sys is None else f_sys / f_rated
@@ -161,7 +161,7 @@ def compute(ins, out):
             failed.append(_NAMES[name].lower())
         out.result(name, f"{_NAMES[name]}, % of rated", val, "%", display=f"{fmt.sig(val, 4)} % — {word}",
                    status="ok" if ok else "fail", key=True, group=G, method=_METHODS[name],
-                   source=f"{SRC_1036}; limit {SRC_18}")
+                   source=cite("ieee1036", "ieee18"))
     verdict = ("Within all four IEEE Std 18 limits" if not failed
                else "Exceeds the IEEE Std 18 limit for " + ", ".join(failed))
     out.result("verdict", "Duty verdict", None, display=verdict, status="fail" if failed else "ok", key=True,
@@ -180,7 +180,7 @@ def compute(ins, out):
                source=SRC_CIRCUIT)
     v_c1 = duty.v_cap_pu[1] * 100
     out.result("v_c1", "Capacitor fundamental voltage, % of rated", v_c1, "%", digits=4, group="Currents",
-               method="U_bus/(1 − p)/U_rated", source="Circuit theory (voltage divider of the detuned branch)")
+               method="U_bus/(1 − p)/U_rated", source=ref("circuits_resonance"))
 
     ind_lim, thd_lim, band = capduty.ieee519_voltage_limits(u_bus)
     GB = f"Bus voltage distortion against IEEE Std 519-2014 ({band})"
@@ -217,11 +217,11 @@ def compute(ins, out):
 
     out.figure("Duty against IEEE Std 18", _bars(
         "Capacitor duty, % of rating",
-        [("V rms", duty.v_rms_percent, 110.0, "fp-s1-fill"), ("V peak", duty.v_peak_percent, 120.0, "fp-s1-fill"),
-         ("I rms", duty.i_rms_percent, 135.0, "fp-s2-fill"), ("kvar", duty.kvar_percent, 135.0, "fp-s2-fill")],
+        [("V rms", duty.v_rms_percent, LIM["v_rms"], "fp-s1-fill"), ("V peak", duty.v_peak_percent, LIM["v_peak"], "fp-s1-fill"),
+         ("I rms", duty.i_rms_percent, LIM["i_rms"], "fp-s2-fill"), ("kvar", duty.kvar_percent, LIM["kvar"], "fp-s2-fill")],
         "%",
         "Bars for rms voltage, peak voltage, rms current and kvar in % of rating; dashed ticks mark the IEEE Std 18 "
-        "limits 110, 120, 135 and 135 %.",
+        f"limits {', '.join(fmt.sig(LIM[k]) for k in ('v_rms', 'v_peak', 'i_rms'))} and {fmt.sig(LIM['kvar'])} %.",
     ))
     spec_items = [(str(h), duty.v_bus_percent[h], None, "fp-s3-fill") for h in sorted(duty.v_bus_percent)]
     out.figure("Bus voltage spectrum", _bars(
@@ -244,8 +244,6 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.STORED_CHARGE, cautions.ESTIMATE],
     order=27,
     references=[
-        "IEEE Std 18-2002, Standard for Shunt Power Capacitors (continuous limits 110/120/135/135 %)",
-        "IEEE Std 1036, Guide for the Application of Shunt Power Capacitors (duty with harmonics)",
-        "IEEE Std 519-2014, Recommended Practice and Requirements for Harmonic Control, Table 1",
+        ref("ieee18"), ref("ieee1036"), ref("ieee519"),
     ],
 )

@@ -5,32 +5,33 @@ from __future__ import annotations
 
 import math
 
-from pycore import detuning, supply
+from pycore import capduty, detuning, supply
+from pycore.capacitor import IEEE18_VOLTAGE
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
-SRC_CIRCUIT = "Circuit theory of the series L–C branch (e.g. Alexander & Sadiku, Fundamentals of Electric Circuits, resonance)"
-SRC_IEC = "Circuit theory; detuned banks as described in IEC 61642 (from memory)"
-SRC_PRACTICE = "Common practice (makers' catalogues and trade tables; not a standard)"
-SRC_SUPPLY = "Per-unit short-circuit method, IEEE Std 141 (Red Book); resonance order, IEEE Std 1036"
+SRC_CIRCUIT = ref("circuits_resonance")
+SRC_IEC = cite("circuits_resonance", "iec61642")
+SRC_PRACTICE = ref("practice_makers")
+SRC_SUPPLY = cite("ieee141_sc", "ieee1036")
 
 FIELDS = [
-    Field("u", "System voltage (line-to-line)", unit="V", default="400", min=50, max=36000,
-          suggest=["400", "480", "600", "690"], group="Bus and bank",
-          help="The bus voltage the bank connects to, line-to-line. 0.4 kV is read as 400 V."),
-    Field("f", "System frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
-    Field("q", "Reactive power wanted at system voltage", unit="kvar", default="200", min=0, min_open=True, max=1e6,
-          help="What the whole bank should deliver at the system voltage, all steps in. 0.2 Mvar is read as 200 kvar."),
+    Q.SYSTEM_VOLTAGE.field("u", default="400", group="Bus and bank"),
+    Q.SYSTEM_FREQUENCY.field("f", "System frequency", default="50"),
+    Q.BANK_KVAR.field("q", "Reactive power wanted at system voltage", default="200",
+                      note="What the whole bank should deliver, all steps in. 0.2 Mvar is read as 200 kvar."),
     Field("steps", "Number of equal steps", default="4", min=1, max=24, suggest=["1", "4", "6", "8"],
           help="Each step is its own reactor and capacitor; the results per step use the bank's kvar divided by this."),
     Field("spec", "Tuning given as", kind="choice", default="p", group="Tuning",
           options=[("p", "Detuning factor p"), ("ft", "Tuning frequency")],
           help="p = X_L/X_C at the fundamental, in %, or the series-resonance frequency of the branch."),
     Field("p", "Detuning factor p", unit="%", default="7", min=0, min_open=True, max=100, max_open=True,
-          suggest=["5.67", "7", "14"], show_when={"field": "spec", "in": ["p"]},
+          suggest=[fmt.sig(p) for p in detuning.TYPICAL_DETUNING_PERCENT], show_when={"field": "spec", "in": ["p"]},
           help="5.67 %, 7 % and 14 % are the usual choices (common practice); any value from above 0 to below 100 % is allowed. "
                "Use 14 % where a 3rd harmonic is present."),
     Field("ft", "Tuning frequency", unit="Hz", default="189", min=0, min_open=True, max=100000,
@@ -38,22 +39,20 @@ FIELDS = [
           help="Series-resonance frequency of the branch; it must be above the system frequency. 7 % at 50 Hz is about 189 Hz."),
     Field("h_low", "Lowest harmonic present", default="5", min=2, max=50, suggest=["3", "5", "7"],
           help="The lowest harmonic order with real content at the bus: 5 for six-pulse drives, 3 where single-phase loads are many."),
-    Field("u_cap", "Capacitor rated voltage", unit="V", default="", required=False, min=0, min_open=True, max=100000,
-          group="Capacitor",
-          help="Leave blank to have one chosen from common low-voltage ratings; enter the maker's rating to use it instead."),
+    Q.CAPACITOR_VOLTAGE.field("u_cap", default="", required=False, group="Capacitor",
+                              note="Leave blank to have one chosen from common low-voltage ratings; enter the maker's rating to use it instead."),
     Field("margin", "Voltage margin for choosing the rating", unit="%", default="10", min=0, max=50, suggest=["5", "10", "15"],
           help="The rated voltage must exceed the capacitor's fundamental voltage U/(1 − p) by this much (supply tolerance, harmonics)."),
-    Field("s_kva", "Supply transformer rating", unit="kVA", default="1000", required=False, min=0, min_open=True, max=1e6,
-          group="Supply (optional, for the bus resonance)",
-          help="Leave blank to skip the bus resonance. 1 MVA is read as 1000 kVA."),
-    Field("z_pct", "Transformer impedance", unit="%", default="6", required=False, min=0, min_open=True, max=40,
-          help="Nameplate impedance in % on the transformer's own rating."),
+    Q.TRANSFORMER_KVA.field("s_kva", "Supply transformer rating", default="1000", required=False,
+                            group="Supply (optional, for the bus resonance)",
+                            note="Leave blank to skip the bus resonance."),
+    Q.TRANSFORMER_Z.field("z_pct", default="6", required=False),
 ]
 
 
 def _plot(br_step, n, h_low, x_s=None, x_c_bank=None, x_c_plain=None):
     """|Z| per phase against harmonic order: the branch, and the bus with and without reactors."""
-    h_max = max(15.0, min(50.0, 2.0 * h_low + 3.0))
+    h_max = max(15.0, min(50.0, 2.0 * h_low + 3.0))  # drawing: the plotted range
     step = 0.04
     hs = [1.0 + k * step for k in range(int((h_max - 1.0) / step) + 1)]
     floor = br_step.x_c_ohm * 1e-3
@@ -74,7 +73,7 @@ def _plot(br_step, n, h_low, x_s=None, x_c_bank=None, x_c_plain=None):
         series.append({"label": "bus, no reactors", "cls": "fp-s3", "dash": "6 4",
                        "points": [(h, bus(h, x_c_plain, 0.0)) for h in hs]})
     markers = [{"x": n, "label": f"n = {fmt.sig(n, 3)}", "cls": "fp-mark"}]
-    if abs(h_low - n) > 0.4:
+    if abs(h_low - n) > 0.4:  # drawing: labels apart
         markers.append({"x": h_low, "label": f"h = {fmt.sig(h_low, 3)}", "cls": "fp-axis"})
     desc = (f"Impedance magnitude per phase against harmonic order 1 to {fmt.sig(h_max, 3)}. The detuned branch "
             f"has its series resonance (minimum) at the tuning order {fmt.sig(n, 3)}; harmonics from order "
@@ -133,6 +132,10 @@ def compute(ins, out):
                                       "(capacitor voltage plus margin): enter the maker's rated voltage.")
     else:
         u_rated = u_cap
+    if not capduty.voltage_ratio_plausible(u_c, u_rated):
+        raise FieldError("u_cap", f"A capacitor rated {fmt.sig(u_rated)} V would run at {fmt.sig(u_c / u_rated, 3)} times "
+                                  f"its rating ({fmt.sig(u_c, 4)} V at the capacitor): "
+                                  + ("check the units (V or kV)." if not chosen else "enter the maker's rated voltage."))
     try:
         br = detuning.design_branch(u, f, q_step, p, u_rated)
     except InputError as e:
@@ -151,19 +154,19 @@ def compute(ins, out):
     if n >= h_low:
         st, word = "fail", f"at or above the lowest harmonic ({fmt.sig(h_low)}): the branch is capacitive there and can resonate with the supply"
     elif clear < detuning.TUNING_CLEARANCE:
-        st, word = "warn", f"only {fmt.sig(100 * clear, 2)} % below the lowest harmonic ({fmt.sig(h_low)}); keep it about 10 % or more below"
+        st, word = "warn", f"only {fmt.sig(100 * clear, 2)} % below the lowest harmonic ({fmt.sig(h_low)}); keep it about {fmt.sig(100 * detuning.TUNING_CLEARANCE)} % or more below"
     else:
         st, word = "ok", f"{fmt.sig(100 * clear, 2)} % below the lowest harmonic ({fmt.sig(h_low)})"
     out.result("clearance", "Tuning order against the lowest harmonic", 100 * clear, "%",
                display=f"n = {fmt.sig(n, 3)}: {word}", status=st, key=True, group=G1,
                method="(h_low − n)/h_low; the branch is inductive for every harmonic above n",
-               source=SRC_PRACTICE + " for the 10 % clearance")
+               source=SRC_PRACTICE)
     if st == "fail":
         out.warn(f"The tuning order {fmt.sig(n, 3)} is not below the lowest harmonic present ({fmt.sig(h_low)}). "
                  "Choose a larger detuning factor (14 % where the 3rd harmonic is present).")
     elif st == "warn":
         out.warn("Capacitance falls with age and tolerance, which raises the tuning frequency toward the harmonic: "
-                 "keep the tuning order about 10 % or more below the lowest harmonic (common practice).")
+                 f"keep the tuning order about {fmt.sig(100 * detuning.TUNING_CLEARANCE)} % or more below the lowest harmonic (common practice).")
 
     out.result("l_mh", f"Reactor inductance, per phase ({per})", br.l_mh, "mH", digits=4, key=True, group=G2,
                method="L = p·X_C/(2πf), X_C = U²/(Q(1 − p)) with Q the step's kvar", source=SRC_IEC)
@@ -183,7 +186,7 @@ def compute(ins, out):
     out.result("rise", "Capacitor voltage rise above the bus", rise, "%", digits=3, group=G3,
                method="p/(1 − p)", source=SRC_CIRCUIT)
     ratio = br.voltage_ratio_percent
-    if ratio > 110 + 1e-9:
+    if ratio > 100 * IEEE18_VOLTAGE + 1e-9:
         v_st = "fail"
     elif ratio > 100 + 1e-9:
         v_st = "warn"
@@ -191,15 +194,15 @@ def compute(ins, out):
         v_st = "ok"
     if chosen:
         label = f"{fmt.sig(u_rated)} V (lowest common rating ≥ {fmt.sig(u_c * (1 + margin / 100), 4)} V)"
-        src = SRC_PRACTICE + ": typical low-voltage capacitor ratings, from memory"
+        src = SRC_PRACTICE  # typical low-voltage capacitor ratings, from memory
     else:
         label = f"{fmt.sig(u_rated)} V (entered): U_C is {fmt.sig(ratio, 4)} % of it"
-        src = "Entered; IEEE Std 18-2002 allows 110 % of rated rms voltage continuously"
+        src = cite("input", "ieee18")  # 110 % of rated rms voltage continuously
     out.result("u_rated", "Capacitor rated voltage", u_rated, "V", display=label, key=True, status=v_st, group=G3,
                method=f"rating ≥ U_C·(1 + margin), margin {fmt.sig(margin)} %", source=src)
     if v_st == "fail":
         out.warn(f"The capacitor would run at {fmt.sig(ratio, 4)} % of its rated voltage at the fundamental alone, "
-                 "above the 110 % IEEE Std 18 allows. Choose a higher rated voltage.")
+                 f"above the {fmt.sig(100 * IEEE18_VOLTAGE)} % IEEE Std 18 allows. Choose a higher rated voltage.")
     elif v_st == "warn":
         out.warn(f"The capacitor would run at {fmt.sig(ratio, 4)} % of its rated voltage before any harmonics; "
                  "a higher rating leaves room for supply tolerance and harmonic voltage.")
@@ -245,8 +248,8 @@ def compute(ins, out):
                    display=f"h = {fmt.sig(h_det, 3)} ({fmt.sig(h_det * f, 4)} Hz), below n = {fmt.sig(n, 3)}",
                    status="ok" if h_det < h_low else "fail", key=True, group=GS,
                    method="h = 1/√(Q_C/S_sc + p), Q_C = U²/X_C of the capacitors at the bus voltage; "
-                          "fewer steps in move it up toward n, never above",
-                   source=SRC_CIRCUIT + "; reduces to IEEE Std 1036's √(S_sc/Q) for p = 0")
+                          "fewer steps in move it up toward n, never above; reduces to √(S_sc/Q) for p = 0",
+                   source=cite("circuits_resonance", "ieee1036"))
         out.notes.append("The bus plot is lossless: the positions of the peaks are meaningful, their heights are not.")
 
     out.figure("|Z| against harmonic order", _plot(br, n, h_low, x_s, bank.x_c_ohm, x_c_plain))
@@ -269,9 +272,6 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.STORED_CHARGE, cautions.ESTIMATE],
     order=25,
     references=[
-        "Circuit theory of the series L–C branch (C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits)",
-        "IEC 61642, Industrial a.c. networks affected by harmonics — application of filters and shunt capacitors",
-        "IEEE Std 18-2002, Shunt Power Capacitors (110 % rms voltage limit)",
-        "IEEE Std 1036, Guide for the Application of Shunt Power Capacitors (resonance order)",
+        ref("circuits_resonance"), ref("iec61642"), ref("ieee18"), ref("ieee1036"),
     ],
 )

@@ -6,13 +6,14 @@ import math
 
 from pycore import phasor
 from pycore.errors import InputError
+from pycore.references import cite, ref
 from pycore.numparse import parse_quantity
 
 from .. import cautions, fmt
 from ..sheet import OUT_OF_RANGE_MESSAGE, Column, Field, FieldError, Worksheet, out_of_range
 from ..svg import Svg
 
-SRC_PHASOR = "Circuit theory (Alexander & Sadiku, Fundamentals of Electric Circuits, phasors and impedance)"
+SRC_PHASOR = ref("circuits_phasors")
 
 FIELDS = [
     Field(
@@ -113,7 +114,7 @@ def _plane_figure(z: complex) -> str:
     svg.rect(0, 0, w, h, "fp-bg")
     cx, cy = 60, h / 2
     m = max(abs(z.real), abs(z.imag), 1e-30)
-    k = min((w - 110) / max(abs(z.real), m * 0.25), (h / 2 - 40) / max(abs(z.imag), m * 0.25))
+    k = min((w - 110) / max(abs(z.real), m * 0.25), (h / 2 - 40) / max(abs(z.imag), m * 0.25))  # drawing: scale
     x_end = cx + z.real * k
     y_end = cy - z.imag * k
     svg.line(20, cy, w - 10, cy, "fp-axis")
@@ -212,5 +213,5 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=30,
-    references=["C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (phasors, impedance, AC power)"],
+    references=[ref("circuits_phasors")],
 )

@@ -7,12 +7,13 @@ import math
 
 from pycore import resonance as rz
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
-SRC = "Alexander & Sadiku, Fundamentals of Electric Circuits, frequency response (series and parallel resonance)"
+SRC = ref("circuits_resonance")
 
 _OUT_OF_RANGE = "These values are out of range for a calculation (resonance outside 1 µHz to 1 THz); check the units: L in mH, C in µF."
 
@@ -112,9 +113,9 @@ def _phase_words(ph: float) -> str:
 
 
 def _sweep(a: rz.Resonance, f_at):
-    lo, hi = a.f0 / 10.0, a.f0 * 10.0
+    lo, hi = a.f0 / 10.0, a.f0 * 10.0  # drawing: sweep a decade each side
     if f_at is not None:
-        lo, hi = min(lo, f_at / 1.5), max(hi, f_at * 1.5)
+        lo, hi = min(lo, f_at / 1.5), max(hi, f_at * 1.5)  # drawing
         lo = max(lo, hi / 1e6)  # at most six decades
     fs = rz.log_space(lo, hi, 400)
     fs += [a.f0]
@@ -123,7 +124,7 @@ def _sweep(a: rz.Resonance, f_at):
         bw = a.f_high - a.f_low
         fs += [a.f0 + bw * k / 40.0 for k in range(-120, 121) if a.f0 + bw * k / 40.0 > 0]
     else:
-        fs += [a.f0 * (1 + s * 10.0 ** -k) for k in range(1, 6) for s in (-1, 1)]
+        fs += [a.f0 * (1 + s * 10.0 ** -k) for k in range(1, 6) for s in (-1, 1)]  # drawing: points close to f0
     fs = sorted(f for f in set(fs) if lo <= f <= hi)
     pts = []
     for f in fs:
@@ -138,7 +139,7 @@ def _figures(out, a: rz.Resonance, f_at):
     bands = []
     if a.q != math.inf and a.f_high > a.f_low:
         bands.append({"x0": a.f_low, "x1": a.f_high, "cls": "fp-band"})
-    if f_at is not None and abs(f_at - a.f0) > 0.02 * a.f0:
+    if f_at is not None and abs(f_at - a.f0) > 0.02 * a.f0:  # drawing: a marker apart from f0
         markers.append({"x": f_at, "label": f"{fmt.si(f_at, 'Hz', 3)}", "cls": "fp-grid"})
     kind = "series" if a.topology == "series" else "parallel"
     desc_z = (
@@ -251,11 +252,11 @@ def compute(ins, out):
             out.result("z_at", "|Z|", None, "Ω", display="∞ (lossless parallel resonance)", group=g,
                        method="parallel Z = 1/(1/R + j(ωC − 1/ωL))", source=SRC)
 
-    if a.q != math.inf and a.q < 0.5:
-        out.warn("Q is below 0.5: the circuit is so heavily damped that 'resonance' has little practical meaning; "
+    if a.q != math.inf and a.q < rz.Q_HEAVILY_DAMPED:
+        out.warn(f"Q is below {fmt.sig(rz.Q_HEAVILY_DAMPED)}: the circuit is so heavily damped that 'resonance' has little practical meaning; "
                  "the half-power points lie far apart.")
-    if a.q != math.inf and a.q > 1000:
-        out.warn("Q above 1000 is unusual for power components; check the resistance entered.")
+    if a.q != math.inf and a.q > rz.Q_UNUSUAL_FOR_POWER:
+        out.warn(f"Q above {fmt.sig(rz.Q_UNUSUAL_FOR_POWER)} is unusual for power components; check the resistance entered.")
     _figures(out, a, f_at)
 
 
@@ -268,7 +269,5 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=40,
-    references=[
-        "C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (frequency response: series and parallel resonance)"
-    ],
+    references=[ref("circuits_resonance")],
 )

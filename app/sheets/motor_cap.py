@@ -4,29 +4,28 @@ full-load power factor it gives, and the overload-setting reminder (NEC 460.9)."
 from __future__ import annotations
 
 from pycore import motorcap as mc
-from pycore.capacitor import capacitance_uf
+from pycore.capacitor import NEC_460_8, capacitance_uf
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 
-SRC_AC = "AC power, circuit theory: P = √3·V·I·cos φ, Q = √3·V·I·sin φ (Alexander & Sadiku)"
-SRC_LIMIT = ("No more than the no-load magnetising kvar, 90 % of it as margin: common practice; NEMA MG 1 Part 14 warns "
-             "against exceeding the maker's safe value (from memory)")
-SRC_ESTIMATE = ("Induction-motor equivalent circuit (e.g. Chapman, Electric Machinery Fundamentals): full-load kvar "
-                "less leakage kvar I²X, X from the locked-rotor current — a rough estimate")
-SRC_NEC_9 = "NFPA 70 (NEC) 460.9: overload setting based on the improved power factor"
-SRC_NEC_8 = "NFPA 70 (NEC) 460.8(A): capacitor conductors at least 135 % of rated capacitor current"
+SRC_AC = ref("circuits_ac_power")
+SRC_LIMIT = cite("practice", "nema_mg1")
+SRC_ESTIMATE = ref("machines")
+SRC_NEC_9 = ref("nec460_9")
+SRC_NEC_8 = ref("nec460_8")
 
 FIELDS = [
-    Field("v", "Rated voltage", unit="V", default="400", min=1, max=1e5,
-          group="Motor nameplate", suggest=["400", "415", "460", "480", "575", "690"],
-          help="Line-to-line. The capacitor is rated at this voltage too."),
-    Field("f", "Frequency", unit="Hz", default="50", min=10, max=1000, suggest=["50", "60"]),
+    Q.SYSTEM_VOLTAGE.field("v", "Rated voltage", default="400", group="Motor nameplate",
+                           note="The motor's; the capacitor is rated at this voltage too."),
+    Q.SYSTEM_FREQUENCY.field("f", default="50"),
     Field("i_full", "Full-load current", unit="A", default="68", min=0, min_open=True, max=1e5,
           help="Nameplate full-load amperes at the rated voltage."),
-    Field("pf_full", "Full-load power factor", default="0.86", min=0, min_open=True, max=1,
-          help="Lagging, as a decimal (0.86). From the nameplate or the maker's data sheet."),
+    Q.POWER_FACTOR.field("pf_full", "Full-load power factor", default="0.86",
+                         note="Lagging. From the nameplate or the maker's data sheet."),
     Field("basis", "Magnetising current from", kind="choice", default="i0", group="Magnetising current",
           options=[("i0", "No-load current (measured or from the maker)"),
                    ("rated", "Rated data only (rough estimate)")],
@@ -38,6 +37,7 @@ FIELDS = [
     Field("lr_ratio", "Locked-rotor ÷ full-load current", default="6", min=1, min_open=True, max=20,
           show_when={"field": "basis", "in": ["rated"]}, suggest=["5", "6", "7", "8"],
           help="From the data sheet or the code letter; 6 to 7 is typical of general-purpose motors."),
+    # a terminal capacitor is at most the motor's magnetising kvar: far below a bank's limits, so its own field
     Field("q_cap", "Capacitor to check", unit="kvar", default="", required=False, min=0, min_open=True, max=1e5,
           group="Check a capacitor (optional)", placeholder="none",
           help="The kvar, at the motor's rated voltage, of a capacitor already fitted or proposed."),
@@ -86,10 +86,10 @@ def compute(ins, out):
         q0_method = "Q0 = √3·V·I0 (no-load current taken as all magnetising)"
         q0_src = SRC_LIMIT
         ratio = i0 / i_full
-        if ratio < 0.10:
+        if ratio < mc.NO_LOAD_RATIO_PLAUSIBLE[0]:
             out.warn(f"The no-load current is only {fmt.sig(100 * ratio, 2)} % of full-load current, low for an induction "
                      "motor: check it was read at rated voltage with the motor uncoupled.")
-        elif ratio > 0.70:
+        elif ratio > mc.NO_LOAD_RATIO_PLAUSIBLE[1]:
             out.warn(f"The no-load current is {fmt.sig(100 * ratio, 2)} % of full-load current, high for most motors: "
                      "check the reading (the motor may be lightly built, multi-pole, or was loaded).")
 
@@ -106,7 +106,7 @@ def compute(ins, out):
     out.result("c_max", "Capacitance per phase" + (" (delta)" if cap_conn == "delta" else " (wye)"),
                (c_d if cap_conn == "delta" else c_y) * 1e-6, "F", si=True, group=g,
                method="C = Q/(3·2πf·V²) delta; Q/(2πf·V²) wye",
-               source="Circuit theory: Q = 2πf·C·V² per element")
+               source=SRC_AC)
     try:
         fl = mc.full_load_with_capacitor(v, i_full, pf_full, q_max)
     except InputError as e:
@@ -119,8 +119,8 @@ def compute(ins, out):
                method="I' = √(P² + (Q − Q_C)²)/(√3·V)", source=SRC_NEC_9)
     i_c = mc.capacitor_current(q_max, v)
     out.result("i_cap", "Capacitor rated current", i_c, "A", group=g, method="I = Q/(√3·V)", source=SRC_AC)
-    out.result("i_cap_cond", "Capacitor conductors at least", 1.35 * i_c, "A", group=g,
-               method="135 % of rated capacitor current, and not less than one third of the motor circuit conductors' ampacity",
+    out.result("i_cap_cond", "Capacitor conductors at least", NEC_460_8 * i_c, "A", group=g,
+               method=f"{fmt.sig(100 * NEC_460_8)} % of rated capacitor current, and not less than one third of the motor circuit conductors' ampacity",
                source=SRC_NEC_8)
     if rough:
         out.warn("Rough estimate from rated data: it errs on the small side but can be well off for unusual motors. "
@@ -168,8 +168,6 @@ SHEET = Worksheet(
     cautions=[cautions.STORED_CHARGE, cautions.QUALIFIED, cautions.ESTIMATE],
     order=55,
     references=[
-        "NFPA 70, National Electrical Code, Article 460 (460.8 conductors, 460.9 overload setting)",
-        "NEMA MG 1, Part 14, power-factor correction capacitors (from memory)",
-        "S. J. Chapman, Electric Machinery Fundamentals (induction-motor equivalent circuit)",
+        ref("nec460_8"), ref("nec460_9"), ref("nema_mg1"), ref("machines"),
     ],
 )

@@ -5,14 +5,17 @@ from __future__ import annotations
 import math
 
 from pycore import correction, savings
+from pycore.references import cite, ref
+from pycore.survey import PF_AGREEMENT
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 
-SRC_KVA = "Released kVA ΔS = P(1/PF₁ − 1/PF₂) (circuit theory; IEEE Std 141, Red Book, chapter on power factor)"
-SRC_TARIFF = "Common tariff structure (common practice); the tariff's own wording governs"
-SRC_LOSS = "I ∝ 1/PF at the same P and voltage, so I²R losses ∝ 1/PF² (circuit theory; IEEE Std 141, power factor chapter)"
-SRC_PAYBACK = "Simple payback = installed cost / yearly saving (common practice)"
+SRC_KVA = cite("circuits_ac_power", "ieee141_pf")
+SRC_TARIFF = ref("practice_tariff")
+SRC_LOSS = cite("circuits_ac_power", "ieee141_pf")
+SRC_PAYBACK = ref("practice")
 
 def _when(field, *values):
     return {"field": field, "in": list(values)}
@@ -20,10 +23,10 @@ def _when(field, *values):
 
 # Demo figures are invented (the "Kestrel Vale Creamery" of the survey demo).
 FIELDS = [
-    Field("pf1", "Present power factor (lagging)", default="0.78", min=0, min_open=True, max=1, group="Power factor",
-          help="The average or peak-time power factor the bill is worked on, e.g. kW ÷ kVA from the bill."),
-    Field("pf2", "Power factor after correction (lagging)", default="0.95", min=0, min_open=True, max=1,
-          suggest=["0.92", "0.95", "0.98"], help="The power factor the new capacitors will give."),
+    Q.POWER_FACTOR.field("pf1", "Present power factor (lagging)", default="0.78", group="Power factor",
+                         note="The average or peak-time power factor the bill is worked on, e.g. kW ÷ kVA from the bill."),
+    Q.TARGET_POWER_FACTOR.field("pf2", "Power factor after correction (lagging)", default="0.95",
+                                note="The power factor the new capacitors will give."),
     Field("tariff", "How the bill charges for power factor", kind="choice", default="kva", group="Bill",
           options=[
               ("kva", "Demand charge on kVA"),
@@ -32,13 +35,11 @@ FIELDS = [
               ("none", "No PF charge (count reduced losses only)"),
           ],
           help="Pick the structure on your tariff sheet. Its own rules (ratchets, minimums, rounding, caps) govern."),
-    Field("p_kw", "Peak real demand P", unit="kW", default="420", min=0, min_open=True, max=1e7,
-          show_when=_when("tariff", "kva"), help="The billed peak demand in kW (the kVA demand × its PF)."),
+    Q.REAL_POWER.field("p_kw", "Peak real demand P", default="420", show_when=_when("tariff", "kva"),
+                       note="The billed peak demand (the kVA demand × its PF)."),
     Field("kva_price", "Demand price per kVA per month", default="11.5", min=0,
           show_when=_when("tariff", "kva"), help="In your currency, per kVA of billed demand each month."),
-    Field("threshold", "Power factor threshold", default="0.9", min=0, min_open=True, max=1,
-          show_when=_when("tariff", "penalty", "kvarh"), suggest=["0.85", "0.9", "0.92", "0.95"],
-          help="Below this PF the tariff charges."),
+    Q.PF_THRESHOLD.field("threshold", default="0.9", show_when=_when("tariff", "penalty", "kvarh")),
     Field("penalty_mode", "The penalty is", kind="choice", default="percent",
           options=[("percent", "A % of the bill per 0.01 below"), ("amount", "A fixed amount per 0.01 below")],
           show_when=_when("tariff", "penalty")),
@@ -151,7 +152,7 @@ def compute(ins, out):
             pf_bill = correction.pf_from_energy(kwh, kvarh1)
             out.result("pf_bill", "PF from the bill's kWh and kvarh", pf_bill, "", display=f"{pf_bill:.3f} lagging",
                        group=g, method="kWh/√(kWh² + kvarh²)", source=SRC_TARIFF)
-            if abs(pf_bill - pf1) > 0.02:
+            if abs(pf_bill - pf1) > PF_AGREEMENT:
                 out.warn(f"The bill's kWh and kvarh give PF {pf_bill:.3f}, not the present PF entered "
                          f"({fmt.sig(pf1)}); the saving uses the bill's kvarh now and PF {fmt.sig(pf2)} after.")
         kvarh2 = savings.kvarh_for_pf(kwh, pf2)
@@ -214,6 +215,6 @@ SHEET = Worksheet(
     cautions=[cautions.ESTIMATE],
     order=60,
     references=[
-        "IEEE Std 141 (Red Book), Recommended Practice for Electric Power Distribution for Industrial Plants, chapter on power factor",
+        ref("ieee141_pf"),
     ],
 )

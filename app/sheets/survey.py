@@ -5,13 +5,15 @@ from __future__ import annotations
 from pycore import survey
 from pycore.phasor import power_factor
 from pycore.errors import InputError
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import Svg
 
-SRC_SUM = "Complex power adds: S = Σ(P + jQ) (Alexander & Sadiku, Fundamentals of Electric Circuits, AC power)"
-SRC_KVAR = "IEEE Std 141 (Red Book), chapter on power factor: kvar = P(tan φ1 − tan φ2)"
+SRC_SUM = ref("circuits_ac_power")
+SRC_KVAR = ref("ieee141_pf")
 
 MAX_LINKS = 20
 
@@ -41,7 +43,7 @@ FIELDS = [
         ),
         columns=[
             Column("name", "Load", kind="text", required=False),
-            Column("p", "P", unit="kW", required=False, min=0),
+            Column("p", "P", unit="kW", required=False, min=0, max=Q.REAL_POWER.max),  # 0 kW: a spare, counted as nothing
             Column("pf", "PF", kind="text", required=False),
             Column("q", "Q", unit="kvar", required=False),
             Column("qty", "Quantity", required=False, min=0),
@@ -49,17 +51,7 @@ FIELDS = [
         ],
         max_rows=500,
     ),
-    Field(
-        "target_pf",
-        "Target power factor (lagging)",
-        default="0.95",
-        min=0,
-        min_open=True,
-        max=1,
-        group="Target",
-        suggest=["0.9", "0.92", "0.95", "0.98"],
-        help="The power factor to reach, usually the utility's threshold plus a margin.",
-    ),
+    Q.TARGET_POWER_FACTOR.field("target_pf", default="0.95", group="Target"),
 ]
 
 
@@ -122,7 +114,7 @@ def _triangle(t) -> str:
     svg.rect(0, 0, w, h, "fp-bg")
     top = max(q, q2, 0.0)
     bot = min(q, q2, 0.0)
-    span_y = max(top - bot, 0.05 * p)
+    span_y = max(top - bot, 0.05 * p)  # drawing: a flat triangle still shows
     x0, right = 40, 130
     k = min((w - x0 - right) / p, (h - 70) / span_y)
     y0 = 36 + top * k
@@ -163,7 +155,7 @@ def compute(ins, out):
     out.result("pf_site", "Overall power factor", t.pf, "", display=_pf_text(t.pf, t.pf_word), key=True, group=g1,
                status="ok" if t.pf_word != "leading" and t.pf >= target else "warn",
                method="PF = ΣP / √((ΣP)² + (ΣQ)²), from summed P and Q, not an average of row PFs", source=SRC_SUM)
-    out.result("units", "Units counted", t.units, "", group=g1, method="Σ quantity (blank = 1)", source="—")
+    out.result("units", "Units counted", t.units, "", group=g1, method="Σ quantity (blank = 1)", source=ref("input"))
 
     g2 = f"Correction to PF {fmt.sig(target)} lagging"
     out.result("central_kvar", "One central bank", t.central_kvar, "kvar", key=True, group=g2,
@@ -237,15 +229,35 @@ def compute(ins, out):
     out.caution(cautions.ESTIMATE)
 
 
+def _pf_link_text(pf: float, target: float) -> str:
+    """The power factor as typed text: 4 decimals, or more when 4 would round it up to the target."""
+    for d in (4, 6, 9, 12):
+        text = f"{pf:.{d}f}"
+        if 0 < float(text) < target:
+            return text
+    return repr(pf)
+
+
+def _number_text(v: float) -> str:
+    """A number as text the fields read back exactly enough (no ×10ⁿ display form)."""
+    return f"{v:.6g}"
+
+
 def _links(out, t, target):
     needing = [r for r in t.rows if r.need_each_kvar > 0 and r.load.quantity > 0 and r.load.p_kw > 0]
     needing.sort(key=lambda r: -r.need_row_kvar)
+    too_big = [r for r in needing if not Q.BANK_KVAR.admits(r.need_each_kvar)]
+    needing = [r for r in needing if Q.BANK_KVAR.admits(r.need_each_kvar)]
     for r in needing[:MAX_LINKS]:
         ld = r.load
         pf_each, _ = power_factor(complex(ld.p_kw, ld.q_kvar))
         out.link(f"Size correction for {ld.name}", "correction",
-                 {"basis": "p_pf", "p_kw": fmt.sig(ld.p_kw, 6), "pf1": f"{pf_each:.4f}", "pf1_sense": "lagging",
-                  "pf2": fmt.sig(target, 6), "light_p": ""})  # one load: no lightest-load check
+                 {"basis": "p_pf", "p_kw": _number_text(ld.p_kw), "pf1": _pf_link_text(pf_each, target),
+                  "pf1_sense": "lagging", "pf2": fmt.sig(target, 6), "light_p": ""})  # one load: no lightest-load check
+    if too_big:
+        out.notes.append(f"No correction link for {len(too_big)} row{'s' if len(too_big) > 1 else ''} needing more than "
+                         f"{fmt.sig(Q.BANK_KVAR.max / 1000)} Mvar each, the largest bank the correction worksheet sizes: "
+                         "check their figures.")
     if needing:
         extra = len(needing) - MAX_LINKS
         msg = "Correction links carry P and PF per unit (one of the quantity)"
@@ -254,9 +266,9 @@ def _links(out, t, target):
         else:
             msg += ", largest need first."
         out.notes.append(msg)
-    if t.central_kvar > 0:
+    if t.central_kvar > 0 and Q.REAL_POWER.admits(t.p_kw):
         out.link("Estimate savings and payback for this site", "savings",
-                 {"pf1": f"{t.pf:.4f}", "pf2": fmt.sig(target, 6), "p_kw": fmt.sig(t.p_kw, 6)})
+                 {"pf1": _pf_link_text(t.pf, target), "pf2": fmt.sig(target, 6), "p_kw": _number_text(t.p_kw)})
 
 
 SHEET = Worksheet(
@@ -268,7 +280,6 @@ SHEET = Worksheet(
     cautions=[cautions.ESTIMATE],
     order=5,
     references=[
-        "IEEE Std 141 (Red Book), Recommended Practice for Electric Power Distribution for Industrial Plants, chapter on power factor",
-        "C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits (complex power)",
+        ref("ieee141_pf"), ref("circuits_ac_power"),
     ],
 )

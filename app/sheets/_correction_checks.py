@@ -1,0 +1,198 @@
+"""The capacitor correction worksheet's checks: the capacitor's duty off its rating, how the plan
+fits the need, over-correction at the lightest load, voltage rise and resonance with the supply,
+and the table of step combinations. Not a worksheet (no SHEET)."""
+
+from __future__ import annotations
+
+import math
+
+from pycore import banksteps, capacitor, correction, supply
+from pycore.errors import InputError
+
+from .. import cautions, fmt
+from ..sheet import FieldError
+from ._correction_steps import G_CAPACITOR, SRC_IEEE18, SRC_SUPPLY, SRC_TRIANGLE, _pf_text
+from pycore.references import cite, ref
+
+def rating_and_selection_checks(out, cx):
+    """Warnings on the capacitor's voltage and frequency duty and on how well the plan fits the need."""
+    G3 = G_CAPACITOR
+    after, bank, cap_f, cap_v, f = cx.after, cx.bank, cx.cap_f, cx.cap_v, cx.f
+    need_rated, pattern, pf_after, ratings, step_units, steps_rated = cx.need_rated, cx.pattern, cx.pf_after, cx.ratings, cx.step_units, cx.steps_rated
+    steps_sys, total_rated, v = cx.steps_sys, cx.total_rated, cx.v
+    d = capacitor.duty(v, cap_v, f, cap_f)
+    if cap_v < v * (1 - 1e-9):
+        over = d.over_limits()
+        status = "fail" if over else "warn"
+        out.result("cap_duty", "Capacitor voltage at system voltage", 100 * d.voltage, "% of rating", digits=3, status=status,
+                   group=G3, method="V/V_r; IEEE 18 continuous limit 110 %", source=SRC_IEEE18)
+        msg = (f"The capacitor is rated {fmt.sig(cap_v)} V, below the {fmt.sig(v)} V system: it runs at {fmt.sig(100 * d.voltage, 3)} % "
+               f"of its rated voltage and {fmt.sig(100 * d.kvar, 3)} % of its rated kvar")
+        if over:
+            msg += f", beyond the IEEE Std 18 continuous limits ({', '.join(over)}). Choose a unit rated at least {fmt.sig(v)} V."
+        else:
+            msg += ", within IEEE Std 18 continuous limits but with a shorter life and no margin for overvoltage or harmonics. Prefer a unit rated at least the system voltage."
+        out.warn(msg)
+    elif d.over_limits():
+        out.warn(f"At {fmt.sig(f)} Hz this {fmt.sig(cap_f)} Hz capacitor runs at {fmt.sig(100 * d.kvar, 3)} % kvar and "
+                 f"{fmt.sig(100 * d.current, 3)} % current, beyond IEEE Std 18 continuous limits (135 %).")
+    if abs(cap_f - f) > 1e-9 * f:
+        out.warn(f"The capacitor is rated for {fmt.sig(cap_f)} Hz but runs at {fmt.sig(f)} Hz: its kvar and current scale by "
+                 f"{fmt.sig(f / cap_f, 3)} × (included above). Check that the maker allows it.")
+    if cap_v > capacitor.OVERRATED_VOLTAGE_RATIO * v:
+        out.notes.append(f"A {fmt.sig(cap_v)} V unit on {fmt.sig(v)} V gives only {fmt.sig(100 * (v / cap_v) ** 2, 3)} % of its nameplate kvar; "
+                         "you pay for kvar you do not get, in exchange for voltage margin.")
+
+    # --- selection checks at full load
+    if after.sense == "leading":
+        out.warn(f"The bank leads at full load (PF {_pf_text(pf_after, 'leading')}): the units you can buy are too coarse "
+                 "for this load. Add smaller ratings to the list" + (" or use fewer steps." if bank == "auto" else "."))
+    if need_rated > 0 and (total_rated - need_rated) > banksteps.EXCESS_WARN_FRACTION * need_rated and total_rated - need_rated > min(ratings):
+        hint = "Fewer steps, another pattern or more unit ratings would fit closer."
+        if bank == "auto" and pattern != "custom":
+            found = banksteps.best_step_count(need_rated, ratings, pattern)
+            if found and found[0] != len(steps_rated) and found[1].total < total_rated - 1e-9:
+                n_best, p_best = found
+                hint = (f"With {n_best} step{'s' if n_best > 1 else ''} in the same pattern the bank would be "
+                        f"{', '.join(fmt.sig(x) for x in p_best.steps)} kvar ({fmt.sig(p_best.total)} kvar rated).")
+        out.warn(f"The step plan orders {fmt.sig(100 * (total_rated - need_rated) / need_rated, 3)} % more than needed. " + hint)
+
+    most = max((len(u) for u in step_units), default=0)
+    if most > banksteps.MANY_UNITS_PER_STEP:
+        out.warn(f"One step of this plan is {most} units in parallel. A step is usually one to a few units: add a larger "
+                 "unit rating to the list, or leave out the smallest, for fewer units, connections and fuses.")
+
+    combos = banksteps.combinations(steps_sys)
+    cx.combos = combos
+
+
+def light_load(out, cx):
+    """Over-correction at the lightest load."""
+    bank, combos, delivered, existing, existing_in, light_p = cx.bank, cx.combos, cx.delivered, cx.existing, cx.existing_in, cx.light_p
+    light_pf, net, steps_sys = cx.light_pf, cx.net, cx.steps_sys
+    light_check = None
+    light_net = None
+    if light_p is not None:
+        if light_p > net.p_kw * (1 + 1e-9):
+            raise FieldError("light_p", f"The lightest load is above the full load ({fmt.sig(net.p_kw)} kW); check the figures.")
+        light = correction.load_from_p_pf(light_p, light_pf)
+        light_net = light.corrected(existing) if (not existing_in and existing > 0) else light
+        light_check = banksteps.light_load_check(light_net, steps_sys, combos=combos)
+        full_light = light_net.corrected(delivered)
+        out.result("pf_light", f"Power factor at the lightest load ({fmt.sig(light_p)} kW), whole bank in", full_light.pf, "",
+                   display=_pf_text(full_light.pf, full_light.sense), key=True,
+                   status="warn" if full_light.sense == "leading" else "ok", group="",
+                   method="PF = P_min/√(P_min² + (Q_min − Q_C)²)", source=SRC_TRIANGLE)
+        if light_check.leading:
+            if bank == "fixed":
+                out.warn(f"Over-correction: at the lightest load the fixed bank gives PF {_pf_text(full_light.pf, full_light.sense)}. "
+                         "Switch it with the load, make it smaller, or use an automatic bank.")
+            elif light_check.best is None:
+                out.warn("Over-correction: even the smallest step makes the power factor leading at the lightest load. "
+                         "Use a smaller first step.")
+            else:
+                b = light_check.best
+                out.warn(f"Over-correction: at the lightest load, more than {fmt.sig(b.total)} kvar makes the power factor leading. "
+                         f"Keep step{'s' if len(light_check.leave_out) > 1 else ''} {', '.join(str(i) for i in light_check.leave_out)} off "
+                         f"(steps {'+'.join(str(i) for i in b.on)} in give {_pf_text(light_net.corrected(b.total).pf, light_net.corrected(b.total).sense)}); "
+                         "set the controller's target and switching delay so it does.")
+    else:
+        out.notes.append("No lightest load entered: the over-correction check was skipped.")
+    cx.light_check, cx.light_net = light_check, light_net
+
+
+def supply_checks(out, cx):
+    """Voltage rise and parallel resonance with the supply, when the transformer is entered."""
+    bank, delivered, existing, f, fault_mva, phases = cx.bank, cx.delivered, cx.existing, cx.f, cx.fault_mva, cx.phases
+    steps_sys, tx_kva, tx_z = cx.steps_sys, cx.tx_kva, cx.tx_z
+    s_sc = None
+    near_orders = ((supply.SINGLE_PHASE_ORDER,) if phases == 1 else ()) + supply.LOW_ORDERS
+    if tx_kva is not None:
+        try:
+            s_sc = supply.transformer_short_circuit_kva(tx_kva, tx_z, None if fault_mva is None else fault_mva * 1000.0)
+        except InputError as e:  # pragma: no cover - fields are range-checked
+            raise FieldError("tx_kva", str(e)) from None
+        if not supply.bank_fits_bus(delivered + existing, s_sc):
+            weak_utility = fault_mva is not None and fault_mva * 1000.0 < tx_kva / (tx_z / 100.0)
+            raise FieldError("fault_mva" if weak_utility else "tx_kva",
+                             f"The capacitors ({fmt.sig(delivered + existing)} kvar) are as large as the bus short-circuit "
+                             f"level ({fmt.sig(s_sc)} kVA): check the transformer rating and impedance"
+                             + (", the utility fault level" if fault_mva is not None else "") + " and their units.")
+        G6 = "Supply"
+        out.result("s_sc", "Short-circuit level at the bus", s_sc, "kVA", group=G6,
+                   method="S_sc = 1/(Z%/100/S_t + 1/S_utility)", source=SRC_SUPPLY)
+        rise = supply.voltage_rise_percent(delivered, s_sc)
+        out.result("v_rise", "Voltage rise, whole new bank switched in", rise, "%", digits=3, group=G6,
+                   status="warn" if rise > supply.VOLTAGE_RISE_LIMIT_PERCENT else "ok",
+                   method="ΔV ≈ 100·Q_C/S_sc (source reactance only; overstates the rise by up to about 10 % of itself for transformer X/R ≥ 3 at up to full load)",
+                   source=cite("practice", "ngspice_checked"))
+        if bank == "auto":
+            out.result("v_rise_step", "Voltage step, largest step switched", supply.voltage_rise_percent(max(steps_sys), s_sc), "%",
+                       digits=3, group=G6, method="ΔV ≈ 100·Q_step/S_sc", source=ref("practice"))
+        if rise > supply.VOLTAGE_RISE_LIMIT_PERCENT:
+            out.warn(f"Switching the whole bank raises the bus voltage by about {fmt.sig(rise, 2)} %: check light-load voltage, "
+                     f"and switch in steps (common practice keeps it under about {fmt.sig(supply.VOLTAGE_RISE_LIMIT_PERCENT)} %).")
+        q_bus = delivered + existing
+        h = supply.resonance_order(s_sc, q_bus)
+        near = supply.near_harmonic(h, near_orders)
+        out.result("h_res", "Parallel resonance order, all capacitors in", h, "", digits=3, group=G6,
+                   display=f"{fmt.sig(h, 3)} (≈ {fmt.sig(h * f, 3)} Hz)" + (f": near the {near}th harmonic" if near else ""),
+                   status="warn" if near else "ok",
+                   method="h = √(S_sc/Q_C), Q_C = new bank + existing at system voltage; neglects damping and the load's own inductance (which raises the true h by about √(1 + Q_load/S_sc))", source=SRC_SUPPLY)
+        out.caution(cautions.SCREENING)
+    cx.near_orders, cx.s_sc = near_orders, s_sc
+
+
+def combinations_table(out, cx):
+    """The table of step combinations and the resonance warning it leads to."""
+    bank, combos, existing, light_check, light_net, near_orders = cx.bank, cx.combos, cx.existing, cx.light_check, cx.light_net, cx.near_orders
+    net, pf2, s_sc, v = cx.net, cx.pf2, cx.s_sc, cx.v
+    target_combo = next((c for c in combos if net.corrected(c.total).pf >= pf2 - 1e-9 and net.corrected(c.total).sense != "leading"), None)
+    near_list = []
+    rows = []
+    levels = combos
+    note_cut = ""
+    if len(levels) > 64:
+        stride = math.ceil(len(levels) / 64)
+        keep = set(levels[::stride]) | {levels[-1]}
+        if target_combo:
+            keep.add(target_combo)
+        if light_check and light_check.best:
+            keep.add(light_check.best)
+        levels = [c for c in combos if c in keep]
+        note_cut = f"Showing {len(levels)} of {len(combos)} positions, evenly spread. "
+    for c in levels:
+        a = net.corrected(c.total)
+        row = ["All (fixed bank)" if bank == "fixed" else "+".join(str(i) for i in c.on), fmt.sig(c.total), _pf_text(a.pf, a.sense)]
+        notes = []
+        if light_net is not None:
+            lt = light_net.corrected(c.total)
+            row.append(_pf_text(lt.pf, lt.sense))
+            if lt.sense == "leading":
+                notes.append("leads at light load")
+        if s_sc is not None:
+            hc = supply.resonance_order(s_sc, c.total + existing)
+            nh = supply.near_harmonic(hc, near_orders)
+            row.append(fmt.sig(hc, 3))
+            if nh:
+                notes.append(f"near {nh}th")
+                near_list.append((c, hc, nh))
+        if c is target_combo:
+            notes.insert(0, "reaches target")
+        row.append(", ".join(notes))
+        rows.append(row)
+    cols = ["Steps in", f"kvar at {fmt.sig(v)} V", "PF at full load"]
+    if light_net is not None:
+        cols.append("PF at lightest load")
+    if s_sc is not None:
+        cols.append("Resonance order h" + (" (existing included)" if existing > 0 else ""))
+    cols.append("Note")
+    out.table("Step combinations" if bank == "auto" else "Bank switched in", cols, rows,
+              note=note_cut + "Steps are numbered from the first (smallest) step. kvar at system voltage and frequency. "
+                   "PF: lagging = inductive, leading = capacitive.")
+
+    if near_list:
+        worst = sorted({nh for _, _, nh in near_list})
+        out.warn(f"Resonance risk: with some step combinations the bus resonates near harmonic order "
+                 f"{', '.join(str(x) for x in worst)} (see the table). If the plant has drives, rectifiers or other "
+                 "harmonic sources, check it with the bus resonance scan and consider a detuned (reactor) bank.")

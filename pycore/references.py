@@ -1,0 +1,67 @@
+"""The one table of what results cite: each publication (or practice) cited one way.
+
+A result's ``source`` is :func:`cite` of one or more keys, joined by "; ". The publication names
+are written once below and the entries (a publication with its chapter or clause) are built
+from them, so a standard is never spelled two ways. "from memory" marks a clause or value
+recalled rather than read; "common practice" a fact of the trade with no single source.
+"""
+
+from __future__ import annotations
+
+# --- publications, each named once
+_CIRCUITS = "C. K. Alexander, M. N. O. Sadiku, Fundamentals of Electric Circuits"
+_MACHINES = "S. J. Chapman, Electric Machinery Fundamentals"
+_DUGAN = "R. C. Dugan, M. F. McGranaghan, S. Santoso, H. W. Beaty, Electrical Power Systems Quality"
+_IEEE18 = "IEEE Std 18, shunt power capacitors"
+_IEEE141 = "IEEE Std 141 (Red Book), electric power distribution for industrial plants"
+_IEEE399 = "IEEE Std 399 (Brown Book), power system analysis"
+_IEEE519 = "IEEE Std 519-2014, harmonic control in electric power systems"
+_IEEE1036 = "IEEE Std 1036, guide for the application of shunt power capacitors"
+_IEC60831 = "IEC 60831-1, shunt power capacitors of the self-healing type for AC systems up to 1000 V"
+_IEC61642 = "IEC 61642, industrial AC networks affected by harmonics: filters and shunt capacitors"
+_NEC = "NFPA 70 (NEC), Article 460"
+_NEMA_MG1 = "NEMA MG 1, motors and generators"
+
+REFERENCES: dict[str, str] = {
+    # textbooks
+    "circuits": _CIRCUITS,
+    "circuits_ac_power": f"{_CIRCUITS}, AC power analysis",
+    "circuits_phasors": f"{_CIRCUITS}, phasors and impedance",
+    "circuits_resonance": f"{_CIRCUITS}, frequency response (series and parallel resonance)",
+    "circuits_three_phase": f"{_CIRCUITS}, three-phase circuits (Y–Δ transformation)",
+    "machines": f"{_MACHINES}, induction-motor equivalent circuit",
+    "dugan": f"{_DUGAN}, capacitor resonance",
+    # standards
+    "ieee18": f"{_IEEE18}, 2002 edition (the 2012 revision believed to keep the same limits, from memory)",
+    "ieee18_1992": f"{_IEEE18}, 1992 edition, routine capacitance test",
+    "ieee141_pf": f"{_IEEE141}, power-factor chapter",
+    "ieee141_sc": f"{_IEEE141}, short-circuit chapter (per-unit method)",
+    "ieee399": f"{_IEEE399}, short-circuit studies",
+    "ieee519": f"{_IEEE519} (Table 1 voltage limits, the 6k ± 1 harmonics of converters)",
+    "ieee1036": f"{_IEEE1036} (resonance, voltage rise, duty with harmonics: clauses from memory)",
+    "iec60831": f"{_IEC60831} (from memory)",
+    "iec61642": f"{_IEC61642} (from memory)",
+    "nec460_8": f"{_NEC}, 460.8 (conductors, disconnect, overcurrent protection)",
+    "nec460_9": f"{_NEC}, 460.9 (overload setting with the improved power factor)",
+    "nema_mg1": f"{_NEMA_MG1} (from memory)",
+    # practice and this app
+    "practice": "Common practice (no single published source)",
+    "practice_makers": "Common practice (makers' catalogues and trade tables, not a standard)",
+    "practice_tariff": "Common tariff practice: the tariff's own wording governs",
+    "practice_billing": "Utility billing practice (common practice)",
+    "ngspice_checked": "Checked against an AC circuit solution (ngspice) in this app's tests",
+    "this_app": "This app's own method (least-excess unit selection by dynamic programming)",
+    "input": "As entered",
+}
+
+SEPARATOR = "; "
+
+
+def ref(key: str) -> str:
+    """The one citation for ``key`` (a KeyError names an unknown key at import time)."""
+    return REFERENCES[key]
+
+
+def cite(*keys: str) -> str:
+    """Several citations, in order, as one ``source`` text."""
+    return SEPARATOR.join(REFERENCES[k] for k in keys)
