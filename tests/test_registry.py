@@ -82,7 +82,8 @@ def test_one_worksheet_imports_only_its_own_module():
     )
     assert before == ["app.sheets.impedance"]
     ids = sorted(s["id"] for s in json.loads(bridge.catalog()))
-    assert after == sorted(f"app.sheets.{i}" for i in ids)
+    # helper modules of a worksheet (app/sheets/_<name>.py, no SHEET) load with it; only worksheets count here
+    assert [m for m in after if not m.rsplit(".", 1)[1].startswith("_")] == sorted(f"app.sheets.{i}" for i in ids)
 
 
 def test_the_same_worksheet_object_before_and_after_the_catalog_loads():
