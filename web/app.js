@@ -129,21 +129,25 @@ function remember(slot, sheetId, inputs, result) {
   store.putRemembered(slot, rec).catch(() => { /* a cache: nothing lost */ });
 }
 
-/** Show the remembered result of what was just opened, if it is for these very inputs and this build:
- * at once when localStorage has it and the build is known, else when IndexedDB answers. Nothing if
- * an edit or the engine's answer came first. */
+/** While the engine starts, show the remembered result of what was just opened if it is for these very
+ * inputs and this build: at once when localStorage has it and the build is known, else when IndexedDB
+ * answers. Nothing if an edit or the engine's answer came first. */
 function recall() {
   const seq = state.editSeq;
   const slot = state.slot;
   const p = window.fieldphasor.perf;
+  p.recall = "none";
+  if (engine.state !== "starting") return; // once the engine is up its answer comes in a few ms
   p.recall = "looking";
   const show = (rec) => {
     p.recall = "none"; // what the tests wait for: "shown", or "none" (nothing that matches, or too late)
     if (seq !== state.editSeq || slot !== state.slot || state.shownSeq === seq || !rec || !build) return;
     if (rec.build !== build || rec.inputs !== inputsKey(state.sheet.id, state.inputs)) return;
+    const t0 = performance.now();
     showResult(rec.result, { remembered: true });
     p.recall = "shown";
     p.rememberedShown = performance.now();
+    p.rememberedDrawMs = p.rememberedShown - t0;
     requestAnimationFrame(() => { p.rememberedPainted = performance.now(); });
   };
   let local = null;
