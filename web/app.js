@@ -66,7 +66,7 @@ const computer = new Latest(async ({ sheetId, slot, inputs, t0, seq }) => {
   if (!state.sheet || state.sheet.id !== sheetId || state.slot !== slot) return;
   showResult(res);
   state.shownSeq = seq;
-  remember(slot, sheetId, inputs, res);
+  setTimeout(() => remember(slot, sheetId, inputs, res), 20); // after this frame: not on the recompute's path
   const p = window.fieldphasor.perf;
   p.lastComputeMs = performance.now() - t0;
   if (!p.firstResult) p.firstResult = performance.now();
@@ -86,7 +86,10 @@ function scheduleCompute(delay = DEBOUNCE_MS) {
 function showResult(res, { remembered = false } = {}) {
   state.form.showErrors(res.field_errors || {});
   const text = JSON.stringify(res);
-  if (text === state.lastShown) return markRemembered(remembered); // unchanged: leave the DOM alone but the mark
+  if (text === state.lastShown) { // unchanged: leave the DOM alone but the mark
+    if (state.remembered && !remembered) $("announce").textContent = "The remembered result is confirmed.";
+    return markRemembered(remembered);
+  }
   state.lastShown = text;
   state.lastResult = res;
   renderResults($("results-body"), res, { onLink: followLink });

@@ -83,8 +83,12 @@ def reopen_held(page):
 
 
 def edit_and_settle(page, value):
+    """Edit, wait for the engine's answer, and for the shell to have remembered it (just after its frame)."""
     page.fill(f"#in-{FIELD}", value)
     settle(page)
+    page.wait_for_function("""([field, value]) => {
+        const r = JSON.parse(localStorage.getItem('fp-remembered') || 'null');
+        return r && r.inputs.includes(JSON.stringify([field, value])); }""", arg=[FIELD, value])
 
 
 def field_top(page):
@@ -250,3 +254,32 @@ def test_job_entry_reopens_with_its_remembered_result(browser, site):
         s = state(page)
         assert not s["remembered"] and s["marks"] == [], s
         assert page.evaluate(HEADLINE_JS) == want
+
+
+def test_engine_answer_replaces_a_different_remembered_one_entirely(browser, site):
+    with reopen_page(browser, site) as page:
+        page.goto(site + f"#/sheet/{SHEET}")
+        wait_ready(page)
+        edit_and_settle(page, VALUE)
+        want = page.evaluate(HEADLINE_JS)
+        rows = page.evaluate(ROWS_JS)
+        page.wait_for_function("() => localStorage.getItem('fp-remembered')")
+        # the same build and inputs, but a remembered answer that differs from what the engine will say
+        page.evaluate("""() => { const r = JSON.parse(localStorage.getItem('fp-remembered'));
+            const k = r.result.results.find(x => x.key); k.display = 'STALE 999';
+            r.result.warnings = [...(r.result.warnings || []), 'STALE warning'];
+            localStorage.setItem('fp-remembered', JSON.stringify(r)); }""")
+        held = reopen_held(page)
+        assert state(page)["recall"] == "shown"
+        assert "STALE 999" in page.evaluate(HEADLINE_JS)
+        assert "STALE warning" in page.text_content("#results-body")
+
+        held.release()
+        wait_ready(page)
+        settle(page)
+        s = state(page)
+        assert not s["remembered"] and s["marks"] == [], s
+        assert page.evaluate(HEADLINE_JS) == want
+        assert page.evaluate(ROWS_JS) == rows
+        assert "STALE" not in page.text_content("#sheet-view")
+        assert "STALE" not in page.text_content("#announce")
