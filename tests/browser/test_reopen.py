@@ -255,6 +255,21 @@ def test_job_entry_reopens_with_its_remembered_result(browser, site):
         assert not s["remembered"] and s["marks"] == [], s
         assert page.evaluate(HEADLINE_JS) == want
 
+        # deleting the entry deletes what was remembered for it
+        stored = """(key) => new Promise((res) => { const rq = indexedDB.open('fieldphasor');
+            rq.onsuccess = () => { const g = rq.result.transaction('drafts').objectStore('drafts').get(key);
+                g.onsuccess = () => { rq.result.close(); res(g.result !== undefined); }; }; })"""
+        job_id, entry_id = entry_hash.split("/")[2:4]
+        key = f"result:entry:{job_id}/{entry_id}"
+        assert page.evaluate(stored, key)
+        page.evaluate("([j, e]) => window.fieldphasor.jobs.deleteEntry(j, e)", [job_id, entry_id])
+        for _ in range(50):  # the delete is queued after the job's write
+            if not page.evaluate(stored, key):
+                break
+            page.wait_for_timeout(100)
+        assert not page.evaluate(stored, key)
+        assert page.evaluate(stored, f"result:sheet:{SHEET}")  # the worksheet's own draft keeps its result
+
 
 def test_engine_answer_replaces_a_different_remembered_one_entirely(browser, site):
     with reopen_page(browser, site) as page:
