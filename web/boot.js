@@ -15,6 +15,8 @@
   worker.onmessage = function (e) { early.push(e.data); };
   // This build's engine.json, read now so the shell knows the build when it runs (a remembered result
   // is shown only under the build that computed it; see recall in app.js).
-  var build = fetch(new URL("engine.json", document.baseURI)).then(function (r) { return r.ok ? r.text() : null; });
+  var build = fetch(new URL("engine.json", document.baseURI))
+    .then(function (r) { return r.ok ? r.text() : null; })
+    .catch(function () { return null; });
   window.__fpBoot = { worker: worker, early: early, build: build };
 })();
