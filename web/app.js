@@ -17,6 +17,8 @@ const DEBOUNCE_MS = 120;
 const state = {
   catalog: [],
   sheet: null,
+  slot: "", // what is being edited: "sheet:<id>" (the worksheet's draft) or "entry:<job>/<entry>"
+  remembered: false, // the result on screen is a remembered one, not yet confirmed by the engine
   inputs: {},
   form: null,
   lastShown: "",
@@ -59,11 +61,12 @@ $("theme-btn").addEventListener("click", () => {
 try { applyTheme(localStorage.getItem("fp-theme") || "auto"); } catch { applyTheme("auto"); }
 
 // ---- computing -------------------------------------------------------------------------------
-const computer = new Latest(async ({ sheetId, inputs, t0, seq }) => {
+const computer = new Latest(async ({ sheetId, slot, inputs, t0, seq }) => {
   const res = await engine.json("compute", { worksheet: sheetId, inputs });
-  if (!state.sheet || state.sheet.id !== sheetId) return;
+  if (!state.sheet || state.sheet.id !== sheetId || state.slot !== slot) return;
   showResult(res);
   state.shownSeq = seq;
+  setTimeout(() => remember(slot, sheetId, inputs, res), 20); // after this frame: not on the recompute's path
   const p = window.fieldphasor.perf;
   p.lastComputeMs = performance.now() - t0;
   if (!p.firstResult) p.firstResult = performance.now();
@@ -75,14 +78,18 @@ function scheduleCompute(delay = DEBOUNCE_MS) {
   clearTimeout(state.timer);
   state.timer = setTimeout(() => {
     if (!state.sheet || engine.state !== "ready") return;
-    computer.push({ sheetId: state.sheet.id, inputs: { ...state.inputs }, t0: performance.now(), seq: state.editSeq });
+    computer.push({ sheetId: state.sheet.id, slot: state.slot, inputs: { ...state.inputs }, t0: performance.now(), seq: state.editSeq });
   }, delay);
 }
 
-function showResult(res) {
+/** Show a result: the engine's answer, or (``remembered``) the one it gave before for these inputs and this build. */
+function showResult(res, { remembered = false } = {}) {
   state.form.showErrors(res.field_errors || {});
   const text = JSON.stringify(res);
-  if (text === state.lastShown) return; // unchanged: leave the DOM alone
+  if (text === state.lastShown) { // unchanged: leave the DOM alone but the mark
+    if (state.remembered && !remembered) $("announce").textContent = "The remembered result is confirmed.";
+    return markRemembered(remembered);
+  }
   state.lastShown = text;
   state.lastResult = res;
   renderResults($("results-body"), res, { onLink: followLink });
@@ -94,8 +101,96 @@ function showResult(res) {
   if (first) head.textContent = `${first.label}: ${first.display} — all results ↓`; // build.py sizes the placeholder with this wording
   const nErr = Object.keys(res.field_errors || {}).length;
   const key = (res.results || []).filter((r) => r.key).map((r) => `${r.label} ${r.display}`).join("; ");
-  $("announce").textContent = res.ok ? `Updated. ${key}` : `${nErr || "An"} input${nErr === 1 ? "" : "s"} need${nErr === 1 ? "s" : ""} attention. ${Object.values(res.field_errors || {}).join(" ")} ${res.error || ""}`;
+  $("announce").textContent = remembered ? `Remembered result, being confirmed. ${key}` : res.ok ? `Updated. ${key}` : `${nErr || "An"} input${nErr === 1 ? "" : "s"} need${nErr === 1 ? "s" : ""} attention. ${Object.values(res.field_errors || {}).join(" ")} ${res.error || ""}`;
   $("results").dataset.ok = String(!!res.ok);
+  markRemembered(remembered);
+}
+
+// ---- remembering the last result -------------------------------------------------------------
+// The engine's last answer for each draft and job entry is kept beside it, keyed by the build and the
+// exact inputs, and shown on reopening before the engine is up, marked until the engine confirms it.
+// It is the bridge's JSON, drawn by renderResults like any answer. The newest one is also in
+// localStorage (read synchronously, so it can be drawn with the form); every one is in IndexedDB.
+const REMEMBERED = "fp-remembered";
+// The build: engine.json names this build's engine (the app wheel's SHA-256, Pyodide's version), so a
+// result remembered under another build never matches. boot.js starts reading it with the page.
+let build = null;
+const buildRead = ((window.__fpBoot && window.__fpBoot.build) || fetch("./engine.json").then((r) => (r.ok ? r.text() : null)))
+  .then((t) => { build = t ? t.trim() : null; }, () => { build = null; });
+const slotOf = (sheetId, target) => (target ? `entry:${target.jobId}/${target.entryId}` : `sheet:${sheetId}`);
+/** The exact inputs as one string: the worksheet and each field's text, in field-name order. */
+const inputsKey = (sheetId, inputs) => JSON.stringify([sheetId, Object.keys(inputs).sort().map((k) => [k, inputs[k]])]);
+let lastRemembered = "";
+
+function remember(slot, sheetId, inputs, result) {
+  if (!build) return;
+  const rec = { build, inputs: inputsKey(sheetId, inputs), result };
+  const text = JSON.stringify({ slot, ...rec });
+  if (text === lastRemembered) return;
+  lastRemembered = text;
+  try { localStorage.setItem(REMEMBERED, text); } catch { /* storage off or full: IndexedDB still has it */ }
+  store.putRemembered(slot, rec).catch(() => { /* a cache: nothing lost */ });
+}
+
+/** While the engine starts, show the remembered result of what was just opened if it is for these very
+ * inputs and this build: at once when localStorage has it and the build is known, else when IndexedDB
+ * answers. Nothing if an edit or the engine's answer came first. */
+function recall() {
+  const seq = state.editSeq;
+  const slot = state.slot;
+  const p = window.fieldphasor.perf;
+  p.recall = "none";
+  if (engine.state !== "starting") return; // once the engine is up its answer comes in a few ms
+  p.recall = "looking";
+  const show = (rec) => {
+    p.recall = "none"; // what the tests wait for: "shown", or "none" (nothing that matches, or too late)
+    if (seq !== state.editSeq || slot !== state.slot || state.shownSeq === seq || !rec || !build) return;
+    if (rec.build !== build || rec.inputs !== inputsKey(state.sheet.id, state.inputs)) return;
+    const t0 = performance.now();
+    showResult(rec.result, { remembered: true });
+    p.recall = "shown";
+    p.rememberedShown = performance.now();
+    p.rememberedDrawMs = p.rememberedShown - t0;
+    requestAnimationFrame(() => { p.rememberedPainted = performance.now(); });
+  };
+  let local = null;
+  try {
+    local = JSON.parse(localStorage.getItem(REMEMBERED) || "null");
+    if (!local || local.slot !== slot) local = null;
+  } catch { local = null; }
+  if (local && build) return show(local);
+  buildRead.then(async () => show(local || (await store.getRemembered(slot).catch(() => null))));
+}
+
+/** Mark the result on screen as remembered (not yet confirmed), or clear the mark. */
+function markRemembered(on) {
+  state.remembered = on;
+  const head = $("headline");
+  const body = $("results-body");
+  $("results").toggleAttribute("data-remembered", on);
+  head.toggleAttribute("data-remembered", on);
+  for (const el of document.querySelectorAll(".remembered-mark")) el.remove();
+  if (!on) return;
+  // on the headline's border, out of the flow: the mark does not change the box's size
+  if (!head.hasAttribute("data-pending")) head.append(h("span", { class: "remembered-mark", text: "Remembered — confirming…" }));
+  body.prepend(h("p", { class: "msg remembered-mark", text: "Remembered result for these inputs, shown while the engine starts; it is being confirmed." }));
+}
+
+/** An edit while a remembered result is on screen: that answer is for other inputs, so take it away
+ * and say the answer is pending (the headline keeps its size, so the form does not move). */
+function showPending() {
+  if (!state.remembered) return;
+  markRemembered(false);
+  state.lastShown = "";
+  state.lastResult = null;
+  state.form.showErrors({});
+  const head = $("headline");
+  const size = head.textContent;
+  if (!head.hidden) clear(head).append(h("span", { class: "pending-msg", text: "Answer pending…" }), h("span", { class: "pending-size", "aria-hidden": "true", text: size }));
+  if (!head.hidden) head.setAttribute("data-pending", "");
+  clear($("results-body")).append(h("p", { class: "muted pending-note", text: "The inputs changed: their answer appears here once the engine has computed it." }));
+  $("results").dataset.ok = "pending";
+  $("announce").textContent = "Answer pending.";
 }
 
 // ---- saving what is typed ---------------------------------------------------------------------
@@ -151,6 +246,8 @@ async function openSheet(id, { inputs = null, target = null } = {}) {
   if (state.sheet) await saveNow();
   state.sheet = decl;
   state.target = target;
+  state.slot = slotOf(decl.id, target);
+  markRemembered(false);
   state.lastShown = "";
   state.lastResult = null;
   // index.html starts with a placeholder headline the size of the opening sheet's answer (build.py), so the
@@ -175,6 +272,7 @@ async function openSheet(id, { inputs = null, target = null } = {}) {
   state.form = renderForm($("form"), decl, state.inputs, (name, text) => {
     state.inputs[name] = text;
     state.editSeq++;
+    showPending();
     scheduleSave();
     scheduleCompute();
   });
@@ -186,6 +284,7 @@ async function openSheet(id, { inputs = null, target = null } = {}) {
     }
   }
   clear($("results-body")).append(h("p", { class: "muted", text: engine.state === "ready" ? "Computing…" : "The engine is starting; results appear here in a moment. You can type now." }));
+  recall();
   jobs.showBar(target);
   showView("sheet");
   const want = target ? `#/entry/${target.jobId}/${target.entryId}` : `#/sheet/${decl.id}`;

@@ -13,5 +13,10 @@
   var worker = new Worker(new URL("worker.js", document.baseURI), { type: "module", name: name });
   // Keep messages that arrive before the Engine takes over (status marks, "ready").
   worker.onmessage = function (e) { early.push(e.data); };
-  window.__fpBoot = { worker: worker, early: early };
+  // This build's engine.json, read now so the shell knows the build when it runs (a remembered result
+  // is shown only under the build that computed it; see recall in app.js).
+  var build = fetch(new URL("engine.json", document.baseURI))
+    .then(function (r) { return r.ok ? r.text() : null; })
+    .catch(function () { return null; });
+  window.__fpBoot = { worker: worker, early: early, build: build };
 })();

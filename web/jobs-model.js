@@ -123,6 +123,7 @@ export class JobsModel {
     const job = this.jobs.get(id);
     this.jobs.delete(id);
     this.writes = this.writes.then(() => this.store.deleteJob(id)).catch((err) => this.markSaveFailed(err));
+    this.store.forgetRemembered(`entry:${id}/`).catch(() => {}); // its entries' remembered results
     await this.writes;
     return job;
   }
@@ -152,6 +153,7 @@ export class JobsModel {
     const i = job.entries.findIndex((e) => e.id === entryId);
     const [gone] = job.entries.splice(i, 1);
     await this.persist(job);
+    this.store.forgetRemembered(`entry:${job.id}/${entryId}`).catch(() => {}); // a cache: undo recomputes
     const restore = async () => {
       job.entries.splice(Math.min(i, job.entries.length), 0, gone);
       await this.persist(job);

@@ -65,5 +65,12 @@ export const store = {
   putJob: (job) => withFallback("jobs", () => tx("jobs", "readwrite", (s) => { s.put(job); }), (m) => { m.set(job.id, structuredClone(job)); }),
   putJobs: (jobs) => withFallback("jobs", () => tx("jobs", "readwrite", (s) => { for (const j of jobs) s.put(j); }), (m) => { for (const j of jobs) m.set(j.id, structuredClone(j)); }),
   deleteJob: (id) => withFallback("jobs", () => tx("jobs", "readwrite", (s) => { s.delete(id); }), (m) => { m.delete(id); }),
+  // The last result shown for a draft or job entry ({build, inputs, result}; see remember in app.js),
+  // beside the drafts under a key no worksheet id can take ("result:..."); a cache, never needed.
+  getRemembered: (slot) => withFallback("drafts", () => open().then((db) => req(db.transaction("drafts").objectStore("drafts").get(`result:${slot}`))), (m) => m.get(`result:${slot}`)),
+  putRemembered: (slot, rec) => withFallback("drafts", () => tx("drafts", "readwrite", (s) => { s.put(rec, `result:${slot}`); }), (m) => { m.set(`result:${slot}`, rec); }),
+  forgetRemembered: (prefix) => withFallback("drafts", () => tx("drafts", "readwrite", (s) => {
+    s.delete(IDBKeyRange.bound(`result:${prefix}`, `result:${prefix}\uffff`));
+  }), (m) => { for (const k of [...m.keys()]) if (k.startsWith(`result:${prefix}`)) m.delete(k); }),
   usingMemory: () => memory !== null,
 };

@@ -11,6 +11,7 @@ Figures (milliseconds from navigation start unless noted):
   input_ready_ms         the worksheet form rendered and accepting input
   engine_ready_ms        Pyodide up and the app package importable in the worker
   first_result_ms        the first computed result on screen
+  reopen_result_ms       reopening the unchanged draft: the frame that paints its remembered result (before the engine)
   recompute_*_ms         input event → result painted, after the debounce (which is printed separately)
   throttled_*            the same main-thread figures with CDP CPU throttling 4× (the worker is not slowed)
   precache_bytes         total bytes the service worker precaches
@@ -178,6 +179,7 @@ def measure(args) -> dict:
 
             bare, fp, ready_in, eng, first, heap, py, inst, shell_ready, paths, wstart = ([] for _ in range(11))
             sources, t_sources = {}, {}  # how each form paint was read (see FORM_PAINT_JS)
+            reopen = []  # every measured start reopens the draft the first visit computed
             for _ in range(args.runs):
                 # baseline and app alternate so both see the same machine state
                 pg = ctx.new_page()
@@ -192,7 +194,7 @@ def measure(args) -> dict:
                     const p = window.fieldphasor.perf;
                     const m = window.fieldphasor.engine.marks;
                     const snap = 'snapshot-checked' in m;
-                    return {engine: p.engineReady, first: p.firstResult,
+                    return {engine: p.engineReady, first: p.firstResult, reopen: p.rememberedPainted || null,
                             snap, worker: m['worker-start'],
                             py: snap ? m['snapshot-restored'] - m['worker-start'] : m['python-ready'] - m['worker-start'],
                             inst: snap ? m['snapshot-checked'] - m['snapshot-restored'] : m['app-installed'] - m['python-ready']};
@@ -205,6 +207,7 @@ def measure(args) -> dict:
                 shell_ready.append(form["shell"])
                 eng.append(perf["engine"])
                 first.append(perf["first"])
+                reopen.append(perf["reopen"])
                 py.append(perf["py"])
                 paths.append(perf["snap"])
                 wstart.append(perf["worker"])
@@ -270,6 +273,8 @@ def measure(args) -> dict:
             "snapshot": args.snapshot,
             "runs_from_snapshot": sum(1 for x in paths if x),
             "first_result_ms": median(first),
+            "reopen_result_ms": median([x for x in reopen if x is not None]) if any(reopen) else None,
+            "reopen_remembered_runs": sum(1 for x in reopen if x is not None),
             "recompute_debounce_ms": debounce,
             "recompute_total_median_ms": median(lat),
             "recompute_median_ms": median(after),
@@ -415,6 +420,8 @@ def report(r: dict) -> str:
         ("  of which Python up" + (" (snapshot restored)" if r["runs_from_snapshot"] else ""), r["worker_python_ready_ms"], "ms", "—", None),
         ("  of which " + ("wheel + probe check" if r["runs_from_snapshot"] else f"app install ({r['installer']})"),
          r["worker_app_install_ms"], "ms", "—", None),
+        ("reopened draft: remembered result", r["reopen_result_ms"] or float("nan"), "ms",
+         f"≤ first paint + 50 = {r['first_paint_ms'] + 50:.0f} ms", (r["reopen_result_ms"] or 1e9) <= r["first_paint_ms"] + 50),
         ("first result", r["first_result_ms"], "ms", f"≤ 1.15 × bare = {1.15 * b:.0f} ms", r["first_result_ms"] <= 1.15 * b),
         ("  stretch: below the bare boot", r["first_result_ms"], "ms", f"< {b:.0f} ms", r["first_result_ms"] < b),
         ("recompute median (after debounce)", r["recompute_median_ms"], "ms", "≤ 16 ms", r["recompute_median_ms"] <= 16),
