@@ -18,6 +18,7 @@ from hypothesis import strategies as st
 import app.bridge as bridge
 from app import demo, registry
 from app import jobfile as jobs
+from helpers import run
 
 STAMP = "2025-03-14T09:26:53.589Z"  # the shape toISOString() gives (ECMA-262, from memory)
 
@@ -306,7 +307,7 @@ def test_demo_job_is_valid_and_uses_several_worksheets():
     assert len(used) >= min(3, n_sheets)
     assert len({e["id"] for e in job["entries"]}) == len(job["entries"])
     for e in job["entries"]:
-        res = json.loads(bridge.compute(e["worksheet"], json.dumps(e["inputs"])))
+        res = run(e["worksheet"], e["inputs"])
         assert res["ok"], (e["name"], res.get("field_errors"), res.get("error"))
         assert res["results"]
 
