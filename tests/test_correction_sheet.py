@@ -120,7 +120,7 @@ def test_load_from_measured_v_i_p_against_numpy():
 
 
 def test_bill_energy_average_power_factor():
-    # PF = kWh/√(kWh² + kvarh²) (issue 3; utility billing practice), P = kWh / operating hours
+    # PF = kWh/√(kWh² + kvarh²) (utility billing practice, common practice), P = kWh / operating hours
     r = run(SHEET, basis="bill_energy", bill_kwh="215000", bill_kvarh="172000", bill_hours="520", bill_kw="")
     assert val(r, "pf1") == pytest.approx(215000 / np.hypot(215000, 172000), rel=1e-12)
     assert val(r, "p") == pytest.approx(215000 / 520, rel=1e-12)

@@ -35,7 +35,7 @@ def test_1500_kva_case_is_flagged_near_the_7th():
 
 
 def test_bank_out_voltage_reading_becomes_16_percent_with_the_bank():
-    # the case: 1,000 kVA 5.75 % X/R 5, 300 kW resistive, 700 kvar, 2 % 5th measured before the bank
+    # a worked case (invented plant): 1,000 kVA 5.75 % X/R 5, 300 kW resistive, 700 kvar, 2 % 5th measured before the bank
     out = run("harmonic_study", {"tx_kva": "1000", "tx_z": "5.75", "tx_xr": "5", "motor_kva": "0", "load_kw": "300",
                "steps": table(["700", "plain", "", ""]), "source": "voltage", "v_spec": table(["5", "2"]),
                "bank_state": "out", "i_load": "1200"})

@@ -1,6 +1,6 @@
 """Jobs export files: round trip, and rejection of corrupt, truncated, foreign, future and bad files.
 
-The file format is the project's own (fixed in issue 5); the outside references here are
+The file format is the project's own; the outside references here are
 the JSON grammar (RFC 8259: what a parser must accept or refuse), Python's own json module
 as an independent reader of what we write, the ISO 8601 calendar (datetime), and
 JavaScript's Date.prototype.toISOString() form "YYYY-MM-DDTHH:mm:ss.sssZ" (ECMA-262,

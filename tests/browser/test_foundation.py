@@ -1,4 +1,4 @@
-"""The app loads, computes in Pyodide, installs, and keeps working offline (issue: foundation)."""
+"""The app loads, computes in Pyodide, installs, and keeps working offline."""
 
 from __future__ import annotations
 
