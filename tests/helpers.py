@@ -10,8 +10,11 @@ the browser receives, lists where Python held tuples.
 from __future__ import annotations
 
 import json
+import os
 
 from app import registry
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))  # the repository
 
 
 def run(sheet_id: str, inputs: dict | None = None, /, **more) -> dict:

@@ -14,10 +14,9 @@ import re
 import pytest
 
 from app import bridge
-from helpers import run
+from helpers import ROOT, run
 from pycore import references as R
 
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 ENTRIES = set(R.REFERENCES.values())
 
 

@@ -7,7 +7,6 @@ Sadiku); 0.48 kV = 480 V by the SI prefix kilo = 10³ (SI Brochure, 9th edition,
 """
 
 import json
-import os
 import subprocess
 import sys
 
@@ -15,9 +14,8 @@ import pytest
 
 from app import bridge, registry
 from app.sheet import Inputs
-from helpers import res
+from helpers import ROOT, res
 
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 CONTRACT_KEYS = {"ok", "results", "tables", "field_errors", "warnings", "cautions", "figures"}
 
 
