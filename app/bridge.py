@@ -34,7 +34,9 @@ def catalog() -> str:
 
 
 def compute(worksheet_id: str, inputs: str) -> str:
-    """Compute one worksheet from a JSON object of field name → typed text. Never raises."""
+    """Compute one worksheet from a JSON object of field name → typed text. Never raises; an
+    unexpected exception (also one writing the answer as JSON) gives
+    :func:`app.registry.internal_failure`, marked ``"internal": true``."""
     try:
         if registry.sheet(worksheet_id) is None:
             return json.dumps(registry.failure(f"Unknown worksheet '{worksheet_id}'."), ensure_ascii=False)
@@ -47,7 +49,7 @@ def compute(worksheet_id: str, inputs: str) -> str:
         return json.dumps(registry.run(worksheet_id, raw), ensure_ascii=False, allow_nan=False)
     except Exception as exc:  # the contract: never raise across the bridge
         traceback.print_exc()
-        return json.dumps(registry.failure(registry.INTERNAL_ERROR.format(type(exc).__name__)), ensure_ascii=False)
+        return json.dumps(registry.internal_failure(exc), ensure_ascii=False)
 
 
 def version() -> str:

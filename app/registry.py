@@ -6,6 +6,11 @@ first result in the browser pays for the worksheet on screen alone. :func:`run` 
 worksheet from a dict of field name → typed text and returns the outcome dict of the bridge
 contract (DESIGN §1); it never raises.
 
+A failure the computation did not mean (an unexpected exception: a bug) comes back as
+:func:`internal_failure`: ``ok: false``, the message :data:`INTERNAL_ERROR` in ``"error"``, and
+the extension key ``"internal": true``, present on no other outcome. Tests and tools tell a bug
+from a refused input by that key, never by the message's wording.
+
 Jobs, reports, the snapshot warm-up and the tests use this module; :mod:`app.bridge` is only
 the JSON door for the worker, the build and outside tools.
 """
@@ -81,13 +86,22 @@ def failure(message: str) -> dict:
     }
 
 
+def internal_failure(exc: BaseException) -> dict:
+    """The outcome for an unexpected exception (a bug): :func:`failure` with the message
+    :data:`INTERNAL_ERROR` naming the exception's type, marked ``"internal": true``."""
+    out = failure(INTERNAL_ERROR.format(type(exc).__name__))
+    out["internal"] = True
+    return out
+
+
 def run(worksheet_id: str, inputs: Any, *, echo: bool = False) -> dict:
     """Compute one worksheet from a dict of field name → typed text; the outcome dict.
 
     With ``echo`` the outcome also holds ``"inputs"``: what the computation read from each
     visible field (see :meth:`app.sheet.Worksheet.run`). Never raises: an unknown worksheet,
     inputs that are not a dict or a failure inside the computation come back as
-    ``{"ok": false, "error": ...}``.
+    ``{"ok": false, "error": ...}``; an unexpected exception also carries ``"internal": true``
+    (:func:`internal_failure`).
     """
     try:
         ws = sheet(worksheet_id)
@@ -98,4 +112,4 @@ def run(worksheet_id: str, inputs: Any, *, echo: bool = False) -> dict:
         return ws.run(inputs, echo=echo)
     except Exception as exc:  # the contract: a computation never raises
         traceback.print_exc()
-        return failure(INTERNAL_ERROR.format(type(exc).__name__))
+        return internal_failure(exc)

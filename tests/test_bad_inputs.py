@@ -1,8 +1,8 @@
-"""Bad input, everywhere (issue 8, item 3): a table of typed mistakes across every worksheet.
+"""Bad input, everywhere: a table of typed mistakes across every worksheet.
 
 Each case names the worksheet, the field, the text a person might type (with any other fields
 needed to make that field visible or to set up a cross-field check) and, where it matters, a
-word the message must contain. Through :func:`app.bridge.compute` every case must give
+word the message must contain. Run as the browser receives it (``helpers.run``), every case must give
 ``ok: false`` with one message, at that field and nowhere else, no general error, and a
 message written for a person: it starts with a capital letter or a quote and carries no
 Python internals.
@@ -25,14 +25,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from app import bridge
-
-
-def run(sheet: str, inputs) -> dict:
-    return json.loads(bridge.compute(sheet, json.dumps(inputs) if isinstance(inputs, dict) else inputs))
-
-
-def table(*rows) -> str:
-    return json.dumps([list(r) for r in rows])
+from helpers import assert_answered, run, table
 
 
 # A survey row: name, P (kW), PF, Q (kvar), quantity, hours per day.
@@ -425,12 +418,8 @@ def test_any_mix_of_mistakes_gives_messages_never_a_crash(sheet):
     @given(_mixes(sheet))
     def check(inputs):
         out = run(sheet, inputs)
-        assert "Internal error" not in out.get("error", ""), (inputs, out.get("error"))
-        if out["ok"]:
-            return
-        messages = list(out["field_errors"].values()) + ([out["error"]] if "error" in out else [])
-        assert messages, inputs
-        for m in messages:
+        assert_answered(out)
+        for m in list(out["field_errors"].values()) + ([out["error"]] if "error" in out else []):
             assert_for_a_person(m)
 
     check()

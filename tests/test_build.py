@@ -6,17 +6,8 @@ import os
 import re
 import zipfile
 
-import pytest
-
 import build
 from app import OPENING_SHEET
-
-
-@pytest.fixture(scope="module")
-def dist():
-    if not (os.environ.get("FIELDPHASOR_DIST_BUILT") and os.path.exists(os.path.join(build.DIST, "sw.js"))):
-        build.build(quiet=True)
-    return build.DIST
 
 
 def tree_digest(root):

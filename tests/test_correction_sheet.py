@@ -1,4 +1,4 @@
-"""The capacitor correction worksheet through the bridge: answers, bad input, supply checks.
+"""The capacitor correction worksheet: answers, bad input, supply checks.
 
 Voltage rise and resonance order are checked against ngspice solutions of the per-phase circuit
 (source + transformer + load + capacitor); everything else against numpy or named sources.
@@ -13,24 +13,10 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import app.bridge as bridge
+from helpers import assert_answered, res, run, val
 from spice import ac_node_voltages, impedance_at, needs_ngspice
 
 SHEET = "correction"
-
-
-def run(**inputs):
-    return json.loads(bridge.compute(SHEET, json.dumps(inputs)))
-
-
-def res(r, name):
-    for x in r["results"]:
-        if x["name"] == name:
-            return x
-    raise KeyError(name)
-
-
-def val(r, name):
-    return res(r, name)["value"]
 
 
 def declaration():
@@ -41,7 +27,7 @@ def declaration():
 
 
 def test_defaults_compute_and_answer_what_to_order_first():
-    r = run()
+    r = run(SHEET)
     assert r["ok"], r
     keys = [x["name"] for x in r["results"] if x.get("key")]
     assert keys[0] == "order"
@@ -59,8 +45,8 @@ def test_frequency_field_range_and_suggestions():
     f = next(x for x in declaration()["fields"] if x["name"] == "f")
     assert f["min"] == 16.7 and f["max"] == 400
     assert {"50", "60"} <= set(f["suggest"])
-    assert run(f="16.7", cap_f="16.7")["ok"]
-    assert run(f="400", cap_f="400")["ok"]
+    assert run(SHEET, f="16.7", cap_f="16.7")["ok"]
+    assert run(SHEET, f="400", cap_f="400")["ok"]
 
 
 def test_every_input_set_has_its_fields_shown_only_for_it():
@@ -74,7 +60,7 @@ def test_every_input_set_has_its_fields_shown_only_for_it():
 
 
 def test_kvar_needed_and_power_factor_reached_against_numpy():
-    r = run(p_kw="420", pf1="0.78", pf2="0.95")
+    r = run(SHEET, p_kw="420", pf1="0.78", pf2="0.95")
     p = 420.0
     q1 = p * np.tan(np.arccos(0.78))
     q2 = p * np.tan(np.arccos(0.95))
@@ -86,13 +72,13 @@ def test_kvar_needed_and_power_factor_reached_against_numpy():
 
 def test_rating_to_order_scales_with_voltage_squared_and_frequency():
     # Q_r = Q·(V_r/V)²·(f_r/f): physics of X_C = 1/(2πfC), computed here directly
-    r = run(cap_v="525", cap_f="50", v_ll="480", f="60")
+    r = run(SHEET, cap_v="525", cap_f="50", v_ll="480", f="60")
     assert val(r, "q_need_rated") == pytest.approx(val(r, "q_need") * (525 / 480) ** 2 * (50 / 60), rel=1e-9)
     assert val(r, "q_delivered") == pytest.approx(val(r, "order") * (480 / 525) ** 2 * (60 / 50), rel=1e-9)
 
 
 def test_capacitance_and_currents_against_numpy_phasors():
-    r = run(bank="fixed", ratings="50", cap_v="480", v_ll="480", f="60", cap_f="60")
+    r = run(SHEET, bank="fixed", ratings="50", cap_v="480", v_ll="480", f="60", cap_f="60")
     q = val(r, "order")
     assert q == pytest.approx(200.0)  # 4 × 50 kvar cover 198.9 kvar with the least excess
     w = 2 * np.pi * 60
@@ -113,7 +99,7 @@ def test_capacitance_and_currents_against_numpy_phasors():
 
 def test_iec_profile_current_basis():
     # IEC 60831-1 (from memory): 1.3 × I_N, 1.43 × I_N with capacitance tolerance
-    r = run(profile="iec")
+    r = run(SHEET, profile="iec")
     i_n = val(r, "i_rated")
     assert val(r, "iec_13") == pytest.approx(1.3 * i_n)
     assert val(r, "iec_143") == pytest.approx(1.43 * i_n)
@@ -121,42 +107,42 @@ def test_iec_profile_current_basis():
 
 
 def test_load_from_measured_v_i_pf_against_numpy():
-    r = run(basis="vi_pf", v_meas="472", i_meas="600", pf1="0.78")
+    r = run(SHEET, basis="vi_pf", v_meas="472", i_meas="600", pf1="0.78")
     s = np.sqrt(3) * 472 * 600 / 1000
     assert val(r, "p") == pytest.approx(s * 0.78, rel=1e-9)
     assert val(r, "i1") == pytest.approx(600, rel=1e-9)
 
 
 def test_load_from_measured_v_i_p_against_numpy():
-    r = run(basis="vi_p", v_meas="400", i_meas="300", p_kw="160", phases="3")
+    r = run(SHEET, basis="vi_p", v_meas="400", i_meas="300", p_kw="160", phases="3")
     s = np.sqrt(3) * 400 * 300 / 1000
     assert val(r, "pf1") == pytest.approx(160 / s, rel=1e-9)
 
 
 def test_bill_energy_average_power_factor():
-    # PF = kWh/√(kWh² + kvarh²) (issue 3; utility billing practice), P = kWh / operating hours
-    r = run(basis="bill_energy", bill_kwh="215000", bill_kvarh="172000", bill_hours="520", bill_kw="")
+    # PF = kWh/√(kWh² + kvarh²) (utility billing practice, common practice), P = kWh / operating hours
+    r = run(SHEET, basis="bill_energy", bill_kwh="215000", bill_kvarh="172000", bill_hours="520", bill_kw="")
     assert val(r, "pf1") == pytest.approx(215000 / np.hypot(215000, 172000), rel=1e-12)
     assert val(r, "p") == pytest.approx(215000 / 520, rel=1e-12)
-    r2 = run(basis="bill_energy", bill_kw="610")
+    r2 = run(SHEET, basis="bill_energy", bill_kw="610")
     assert val(r2, "p") == pytest.approx(610)
 
 
 def test_bill_peak_demand():
-    r = run(basis="bill_demand", peak_kw="430", peak_kva="550")
+    r = run(SHEET, basis="bill_demand", peak_kw="430", peak_kva="550")
     assert val(r, "pf1") == pytest.approx(430 / 550, rel=1e-12)
 
 
 def test_s_pf_and_p_q_sets():
-    assert val(run(basis="s_pf", s_kva="540", pf1="0.78"), "p") == pytest.approx(540 * 0.78)
-    r = run(basis="p_q", p_kw="420", q_kvar="340")
+    assert val(run(SHEET, basis="s_pf", s_kva="540", pf1="0.78"), "p") == pytest.approx(540 * 0.78)
+    r = run(SHEET, basis="p_q", p_kw="420", q_kvar="340")
     assert val(r, "pf1") == pytest.approx(420 / np.hypot(420, 340))
 
 
 def test_horsepower_accepted_with_conversion_shown():
     # 1 hp = 550 ft·lbf/s = 550 × 0.3048 m × 4.4482216152605 N /s (NIST SP 811 exact factors)
     kw = 560 * 550 * 0.3048 * 4.4482216152605 / 1000
-    r = run(p_kw="560 hp")
+    r = run(SHEET, p_kw="560 hp")
     assert r["ok"]
     assert val(r, "p") == pytest.approx(kw, rel=1e-9)
     assert "hp" in res(r, "hp_p_kw")["display"]
@@ -164,22 +150,22 @@ def test_horsepower_accepted_with_conversion_shown():
 
 
 def test_typed_units_accepted():
-    r = run(p_kw="0.42 MW", v_ll="0.48 kV", ratings="5 kvar, 10, 0.0125 Mvar, 15, 20, 25, 30, 40, 50")
-    base = run()
+    r = run(SHEET, p_kw="0.42 MW", v_ll="0.48 kV", ratings="5 kvar, 10, 0.0125 Mvar, 15, 20, 25, 30, 40, 50")
+    base = run(SHEET)
     assert r["ok"]
     assert val(r, "q_need") == pytest.approx(val(base, "q_need"))
     assert val(r, "order") == pytest.approx(val(base, "order"))
 
 
 def test_existing_correction_not_in_figures_is_subtracted():
-    r = run(existing_kvar="100", existing_in="no", p_kw="420", pf1="0.78")
+    r = run(SHEET, existing_kvar="100", existing_in="no", p_kw="420", pf1="0.78")
     q_net = 420 * np.tan(np.arccos(0.78)) - 100
     assert val(r, "q") == pytest.approx(q_net, rel=1e-9)
     assert val(r, "q_need") == pytest.approx(q_net - 420 * np.tan(np.arccos(0.95)), rel=1e-9)
 
 
 def test_benefits_against_numpy():
-    r = run()
+    r = run(SHEET)
     p = 420.0
     q1 = p * np.tan(np.arccos(0.78))
     q2 = q1 - val(r, "q_delivered")
@@ -198,7 +184,7 @@ def _parse_pf(text):
 
 
 def test_step_table_power_factors_against_numpy():
-    r = run()
+    r = run(SHEET)
     table = r["tables"][0]
     cols = table["columns"]
     p, q1 = 420.0, 420 * np.tan(np.arccos(0.78))
@@ -215,7 +201,7 @@ def test_step_table_power_factors_against_numpy():
 
 
 def test_over_correction_at_light_load_names_steps_to_leave_out():
-    r = run()
+    r = run(SHEET)
     ql = 90 * np.tan(np.arccos(0.70))
     assert res(r, "pf_light")["status"] == "warn"
     warn = next(w for w in r["warnings"] if w.startswith("Over-correction"))
@@ -227,23 +213,23 @@ def test_over_correction_at_light_load_names_steps_to_leave_out():
 
 
 def test_fixed_bank_over_correction_warning():
-    r = run(bank="fixed", light_p="60", light_pf="0.8")
+    r = run(SHEET, bank="fixed", light_p="60", light_pf="0.8")
     assert r["ok"]
     assert any("fixed bank" in w for w in r["warnings"])
 
 
 def test_no_light_load_skips_check():
-    r = run(light_p="", light_pf="")
+    r = run(SHEET, light_p="", light_pf="")
     assert r["ok"]
     assert not any(x["name"] == "pf_light" for x in r["results"])
 
 
 def test_custom_and_binary_patterns():
-    r = run(pattern="custom", custom_steps="25:50:50:100")
+    r = run(SHEET, pattern="custom", custom_steps="25:50:50:100")
     assert r["ok"]
     steps = res(r, "steps")["display"]
     assert steps.count(",") == 3  # four steps
-    r = run(pattern="binary", n_steps="4")
+    r = run(SHEET, pattern="binary", n_steps="4")
     assert r["ok"] and len(r["tables"][0]["rows"]) == 15  # 2⁴ − 1 positions
 
 
@@ -251,18 +237,18 @@ def test_custom_and_binary_patterns():
 
 
 def test_capacitor_rated_below_system_voltage_warns_not_refuses():
-    r = run(cap_v="440", v_ll="480")
+    r = run(SHEET, cap_v="440", v_ll="480")
     assert r["ok"]
     assert res(r, "cap_duty")["status"] == "warn"
     assert any("below" in w and "440" in w for w in r["warnings"])
-    r = run(cap_v="400", v_ll="480")  # 120 %: beyond IEEE Std 18's 110 % continuous limit
+    r = run(SHEET, cap_v="400", v_ll="480")  # 120 %: beyond IEEE Std 18's 110 % continuous limit
     assert r["ok"]
     assert res(r, "cap_duty")["status"] == "fail"
     assert any("IEEE Std 18" in w for w in r["warnings"])
 
 
 def test_rated_frequency_differs_warns():
-    r = run(cap_f="50", f="60")
+    r = run(SHEET, cap_f="50", f="60")
     assert r["ok"]
     assert any("50 Hz" in w for w in r["warnings"])
 
@@ -336,7 +322,7 @@ BAD = [
 
 @pytest.mark.parametrize("inputs,field", BAD)
 def test_bad_input_message_at_its_field(inputs, field):
-    r = run(**inputs)
+    r = run(SHEET, **inputs)
     assert r["ok"] is False
     assert field in r["field_errors"], r["field_errors"]
     assert len(r["field_errors"][field]) > 10
@@ -348,18 +334,18 @@ def test_every_required_visible_field_left_empty():
     for fld in declaration()["fields"]:
         if fld["kind"] == "choice" or not fld["required"] or fld.get("show_when"):
             continue
-        r = run(**{fld["name"]: ""})
+        r = run(SHEET, **{fld["name"]: ""})
         assert r["ok"] is False and fld["name"] in r["field_errors"], fld["name"]
 
 
 def test_hidden_fields_are_not_validated():
     # the bill fields are hidden under the default kW-and-PF basis: nonsense there is ignored
-    r = run(bill_kwh="nonsense", peak_kva="-1", custom_steps="??")
+    r = run(SHEET, bill_kwh="nonsense", peak_kva="-1", custom_steps="??")
     assert r["ok"]
 
 
 def test_several_bad_fields_reported_together():
-    r = run(v_ll="0", pf1="2", ratings="")
+    r = run(SHEET, v_ll="0", pf1="2", ratings="")
     assert {"v_ll", "pf1", "ratings"} <= set(r["field_errors"])
 
 
@@ -373,10 +359,7 @@ FIELD_NAMES = [x["name"] for x in json.loads(bridge.catalog()) if x["id"] == SHE
     st.floats(allow_nan=True).map(str),
 )))
 def test_never_crashes(inputs):
-    r = json.loads(bridge.compute(SHEET, json.dumps(inputs)))
-    assert "Internal error" not in r.get("error", "")
-    if not r["ok"]:
-        assert r["field_errors"] or r.get("error")
+    assert_answered(run(SHEET, inputs))
 
 
 # --------------------------------------------------------------------------- figure and link
@@ -388,7 +371,7 @@ ALLOWED_CLASSES = {"fp-s1", "fp-s2", "fp-s3", "fp-s4", "fp-s5", "fp-s6", "fp-axi
 
 @pytest.mark.parametrize("inputs", [{}, {"bank": "fixed", "ratings": "50", "p_kw": "20", "pf1": "0.9", "light_p": ""}])
 def test_power_triangle_svg(inputs):
-    r = run(**inputs)
+    r = run(SHEET, **inputs)
     assert r["ok"], r["field_errors"]
     svg = r["figures"][0]["svg"]
     root = ET.fromstring(svg)  # well-formed
@@ -398,7 +381,7 @@ def test_power_triangle_svg(inputs):
 
 
 def test_link_to_bus_scan_passes_what_is_known():
-    r = run(existing_kvar="50")
+    r = run(SHEET, existing_kvar="50")
     link = next(x for x in r["links"] if x["worksheet"] == "bus_scan")
     assert {"v_ll", "f", "tx_kva", "tx_z", "steps"} <= set(link["inputs"])
     assert link["inputs"]["fault_mva"] == ""  # infinite utility here, so also there
@@ -406,17 +389,17 @@ def test_link_to_bus_scan_passes_what_is_known():
     if "bus_scan" in bridge.sheets():
         names = {f.name for f in bridge.sheets()["bus_scan"].fields}
         assert set(link["inputs"]) <= names
-        assert json.loads(bridge.compute("bus_scan", json.dumps(link["inputs"])))["ok"]
+        assert run("bus_scan", link["inputs"])["ok"]
     steps = [float(s) for s in link["inputs"]["steps"].split(",")]
     assert steps[0] == pytest.approx(50)
     assert sum(steps[1:]) == pytest.approx(val(r, "q_delivered"))
-    r = run(tx_kva="", tx_z="")
+    r = run(SHEET, tx_kva="", tx_z="")
     link = next(x for x in r["links"] if x["worksheet"] == "bus_scan")
     assert "tx_kva" not in link["inputs"]
 
 
 def test_cautions_present():
-    c = " ".join(run()["cautions"])
+    c = " ".join(run(SHEET)["cautions"])
     assert "lethal charge" in c and "qualified persons" in c and "estimates" in c
 
 
@@ -460,7 +443,7 @@ VRISE_CASES = [
 @needs_ngspice
 @pytest.mark.parametrize("inputs,xr", VRISE_CASES)
 def test_voltage_rise_against_ngspice(inputs, xr):
-    r = run(**inputs)
+    r = run(SHEET, **inputs)
     assert r["ok"], r["field_errors"]
     v, f = float(inputs.get("v_ll", 480)), float(inputs.get("f", 60))
     p = float(inputs.get("p_kw", 420))
@@ -521,7 +504,7 @@ def _check_order(h_formula, h_spice, q_load, s_sc):
 @needs_ngspice
 @pytest.mark.parametrize("inputs", RES_CASES)
 def test_resonance_order_against_ngspice_sweep(inputs):
-    r = run(**inputs)
+    r = run(SHEET, **inputs)
     assert r["ok"], r["field_errors"]
     v, f, p, q, tx, z, fault, s_sc = _case(inputs)
     qc = val(r, "q_delivered") + float(inputs.get("existing_kvar", 0))
@@ -533,14 +516,14 @@ def test_resonance_order_against_ngspice_sweep(inputs):
 @needs_ngspice
 def test_resonance_order_without_load_inductance_is_close():
     # The formula's own model (source inductance, capacitor, resistive load only): within 1 %
-    r = run(tx_kva="300", tx_z="6", bank="fixed", ratings="50", p_kw="380", pf1="0.72")
+    r = run(SHEET, tx_kva="300", tx_z="6", bank="fixed", ratings="50", p_kw="380", pf1="0.72")
     body = _per_phase_deck(480, 60, 300, 6, 8.0, 380, 1e-6, val(r, "q_delivered"), source=False)
     assert val(r, "h_res") == pytest.approx(_peak_order(body, 60), rel=0.01)
 
 
 @needs_ngspice
 def test_resonance_order_per_step_combination_against_ngspice():
-    r = run()
+    r = run(SHEET)
     table = r["tables"][0]
     col = next(i for i, c in enumerate(table["columns"]) if c.startswith("Resonance order"))
     v, f, p, q, tx, z, fault, s_sc = _case({})
@@ -552,7 +535,7 @@ def test_resonance_order_per_step_combination_against_ngspice():
 
 def test_near_fifth_harmonic_warns_and_links():
     # S_sc = 300 kVA / 0.06 = 5000 kVA; 200 kvar → h = √25 = 5 (IEEE Std 1036 formula, arithmetic)
-    r = run(tx_kva="300", tx_z="6", bank="fixed", ratings="50")
+    r = run(SHEET, tx_kva="300", tx_z="6", bank="fixed", ratings="50")
     assert res(r, "h_res")["status"] == "warn"
     assert any("Resonance risk" in w and "5" in w for w in r["warnings"])
     assert any(x["worksheet"] == "bus_scan" for x in r["links"])
@@ -563,8 +546,8 @@ def test_third_harmonic_only_for_single_phase():
     # S_sc = 10 kVA / 0.074 = 135 kVA → h = √(135/15) = 3.0
     common = dict(v_ll="240", cap_v="240", bank="fixed", ratings="5", p_kw="20", pf1="0.70", light_p="",
                   tx_kva="10", tx_z="7.4")
-    one = run(phases="1", **common)
-    three = run(phases="3", **common)
+    one = run(SHEET, phases="1", **common)
+    three = run(SHEET, phases="3", **common)
     assert one["ok"] and three["ok"]
     assert val(one, "h_res") == pytest.approx(3.0, abs=0.01)
     assert any("Resonance risk" in w for w in one["warnings"])
@@ -575,15 +558,15 @@ def test_many_units_in_one_step_is_warned_and_a_fine_grid_beside_a_large_unit_is
     # The default load needs 198.9 kvar (see the tests above). Units of 1.001 and 50 kvar: the
     # least-excess plan builds each step from many 1.001 kvar units, which a bank builder would not
     # do (common practice: a step is one to a few units), so the sheet says so.
-    r = run(ratings="1.001, 50")
+    r = run(SHEET, ratings="1.001, 50")
     assert r["ok"]
     assert any("units in parallel" in w for w in r["warnings"])
     # With the usual stock no step needs more than a few units, and there is no such warning.
-    r = run()
+    r = run(SHEET)
     assert r["ok"] and not any("units in parallel" in w for w in r["warnings"])
     # 12.345 kvar beside 400 kvar units: the order stays near the need, with 12.345 kvar units only
     # (least sum found exactly; a 400 kvar unit was once chosen here).
-    r = run(ratings="12.345, 400", bank="fixed")
+    r = run(SHEET, ratings="12.345, 400", bank="fixed")
     need = val(r, "q_need_rated")
     assert need <= val(r, "q_delivered") < need + 12.345
     assert "400 kvar" not in res(r, "order")["display"]

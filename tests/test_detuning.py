@@ -131,7 +131,8 @@ def test_branch_output_first_principles():
 
 
 def test_rated_kvar_round_trip_and_voltage_scaling():
-    # DESIGN §4: branch output Q = Q_rated·(U/U_rated)²/(1 − p) — the inverse of the sizing formula.
+    # Circuit theory (series reactor and capacitor; IEC 61642 covers capacitors with harmonics): branch output
+    # Q = Q_rated·(U/U_rated)²/(1 − p) — the inverse of the sizing formula.
     for u, u_r, p in ((400, 480, 0.07), (400, 525, 0.14), (480, 600, 0.0567)):
         q_r = detuning.capacitor_rated_kvar(100.0, u, p, u_r)
         assert detuning.branch_output_kvar(q_r, u, u_r, p) == pytest.approx(100.0, rel=1e-12)

@@ -1,4 +1,4 @@
-"""Bridge-level checks of the bank-health and motor-capacitor worksheets: answers against
+"""Checks of the bank-health and motor-capacitor worksheets: answers against
 independent solutions, and bad input (zero, negative, absurd, missing, nonsense) giving a
 clear message at the field that caused it, never a crash."""
 
@@ -11,21 +11,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import app.bridge as bridge
+from helpers import assert_answered, res, run
 
 W50 = 2 * math.pi * 50
-
-
-def run(sheet, inputs):
-    out = json.loads(bridge.compute(sheet, json.dumps(inputs)))
-    assert "Internal error" not in out.get("error", "")
-    return out
-
-
-def value(out, name):
-    for r in out["results"]:
-        if r["name"] == name:
-            return r
-    raise KeyError(name)
 
 
 def nodal_between(c, pair):
@@ -69,19 +57,19 @@ def test_between_readings_resolved_like_numpy():
                               "m31": f"{m[2] * 1e6!r}", "band": "iec60831"})
     assert out["ok"], out
     for k, ck in enumerate(c, 1):
-        assert value(out, f"c_{k}")["value"] == pytest.approx(ck, rel=1e-6)
+        assert res(out, f"c_{k}")["value"] == pytest.approx(ck, rel=1e-6)
     # expected C = Q/(3ωV²) = 331.573 µF (first principles); 290/331.573 = 87.46 % → below −5 %
-    assert value(out, "verdict_3")["status"] == "fail"
-    assert value(out, "verdict_1")["status"] == "ok"
+    assert res(out, "verdict_3")["status"] == "fail"
+    assert res(out, "verdict_1")["status"] == "ok"
     # real kvar: Σ ωCV² at 400 V = 2π·50·(329 + 327 + 290) µF·400² / 1000 = 47.55 kvar
-    assert value(out, "q_total")["value"] == pytest.approx(W50 * sum(c) * 400**2 / 1000, rel=1e-6)
+    assert res(out, "q_total")["value"] == pytest.approx(W50 * sum(c) * 400**2 / 1000, rel=1e-6)
 
 
 def test_units_typed_in_nf():
     out = run("bank_health", {"mode": "phase", "c1": "329000 nF", "c2": "0.327 mF", "c3": "290u"})
     assert out["ok"], out
-    assert value(out, "c_2")["value"] == pytest.approx(327e-6)
-    assert value(out, "c_3")["value"] == pytest.approx(290e-6)
+    assert res(out, "c_2")["value"] == pytest.approx(327e-6)
+    assert res(out, "c_3")["value"] == pytest.approx(290e-6)
 
 
 @pytest.mark.parametrize("text", ["0", "-5", "0 µF"])
@@ -140,7 +128,7 @@ def test_voltage_mistakes():
 
 def test_custom_band():
     out = run("bank_health", {"mode": "phase", "band": "custom", "band_lo": "-15", "band_hi": "10"})
-    assert out["ok"] and value(out, "verdict_3")["status"] == "ok"  # 87.5 % is inside −15 %
+    assert out["ok"] and res(out, "verdict_3")["status"] == "ok"  # 87.5 % is inside −15 %
     out = run("bank_health", {"band": "custom", "band_lo": "5", "band_hi": "2"})
     assert "band_hi" in out["field_errors"]
 
@@ -150,7 +138,7 @@ def test_open_phase_in_delta_reported():
     m = [nodal_between(c, p) for p in ((0, 1), (1, 2), (2, 0))]
     out = run("bank_health", {"mode": "between", **{k: f"{x * 1e6:.2f}" for k, x in zip(("m12", "m23", "m31"), m)}})
     assert out["ok"], out
-    assert value(out, "verdict_1")["display"].startswith("Open")
+    assert res(out, "verdict_1")["display"].startswith("Open")
     assert any(n.startswith("Open") for n in out["notes"])
 
 
@@ -161,16 +149,16 @@ def test_motor_defaults_first_principles():
     out = run("motor_cap", {"v": "400", "f": "50", "i_full": "68", "pf_full": "0.86", "basis": "i0", "i0": "24"})
     assert out["ok"], out
     # 0.9 × √3 × 400 × 24 / 1000 = 14.965 kvar (hand arithmetic)
-    assert value(out, "q_max")["value"] == pytest.approx(14.965, rel=1e-4)
+    assert res(out, "q_max")["value"] == pytest.approx(14.965, rel=1e-4)
     # delta capacitance per phase C = Q/(3ωV²) = 14 965/(3 × 314.159 × 160 000) = 99.24 µF
-    assert value(out, "c_max")["value"] == pytest.approx(99.24e-6, rel=1e-3)
+    assert res(out, "c_max")["value"] == pytest.approx(99.24e-6, rel=1e-3)
     assert any("460.9" in n for n in out["notes"])
 
 
 def test_motor_rough_estimate_marked():
     out = run("motor_cap", {"basis": "rated", "lr_ratio": "6"})
     assert out["ok"]
-    r = value(out, "q_max")
+    r = res(out, "q_max")
     assert "rough" in r["label"] and r["status"] == "warn"
     assert out["warnings"]
 
@@ -197,10 +185,10 @@ def test_motor_bad_inputs(inputs, field):
 
 def test_motor_check_verdicts():
     base = {"v": "400", "i_full": "68", "pf_full": "0.86", "i0": "24"}  # Q0 = 16.628 kvar
-    assert value(run("motor_cap", {**base, "q_cap": "14"}), "check")["status"] == "ok"
-    assert value(run("motor_cap", {**base, "q_cap": "15.5"}), "check")["status"] == "warn"
+    assert res(run("motor_cap", {**base, "q_cap": "14"}), "check")["status"] == "ok"
+    assert res(run("motor_cap", {**base, "q_cap": "15.5"}), "check")["status"] == "warn"
     out = run("motor_cap", {**base, "q_cap": "17"})
-    assert value(out, "check")["status"] == "fail" and out["warnings"]
+    assert res(out, "check")["status"] == "fail" and out["warnings"]
 
 
 # --------------------------------------------------------------------------- never crashes
@@ -214,15 +202,13 @@ _text = st.one_of(st.sampled_from(["", "0", "-1", "1e308", "1e-300", "5e-324", "
                                         "c1", "c2", "c3", "i1", "i2", "i3", "v_meas", "v_sys", "f_sys", "band",
                                         "band_lo", "band_hi"]), _text))
 def test_bank_health_never_crashes(inputs):
-    out = run("bank_health", inputs)
-    assert out["ok"] or out["field_errors"] or out.get("error")
+    assert_answered(run("bank_health", inputs))
 
 
 @settings(max_examples=150, deadline=None)
 @given(st.dictionaries(st.sampled_from(["v", "f", "i_full", "pf_full", "basis", "i0", "lr_ratio", "q_cap", "cap_conn"]), _text))
 def test_motor_cap_never_crashes(inputs):
-    out = run("motor_cap", inputs)
-    assert out["ok"] or out["field_errors"] or out.get("error")
+    assert_answered(run("motor_cap", inputs))
 
 
 @settings(max_examples=100, deadline=None)
@@ -231,7 +217,8 @@ def test_motor_cap_never_crashes(inputs):
 def test_bank_health_any_positive_readings(c, conn, mode):
     names = ("m12", "m23", "m31") if mode == "between" else ("c1", "c2", "c3")
     out = run("bank_health", {"mode": mode, "connection": conn, **{n: f"{x!r} F" for n, x in zip(names, c)}})
-    assert out["ok"] or out["field_errors"]
+    assert_answered(out)
+    assert "error" not in out  # a computed answer or a message at a field, never a general one
 
 
 def test_connection_mix_up_hints():

@@ -1,31 +1,19 @@
-"""The harmonic study worksheet through the bridge: cases from the issue, checked against the
-core (itself checked against ngspice, worked computations and the standards' tables in
-tests/test_harmonicbus.py, test_harmonicstudy.py, test_resonancescreen.py, test_ieee519.py)."""
+"""The harmonic study worksheet: worked cases checked against the core (itself checked against
+ngspice, worked computations and the standards' tables in tests/test_harmonicbus.py,
+test_harmonicstudy.py, test_resonancescreen.py, test_ieee519.py)."""
 
 from __future__ import annotations
 
-import json
 import math
 
 import pytest
 
-from app import bridge, cautions
-
-
-def run(inputs) -> dict:
-    return json.loads(bridge.compute("harmonic_study", json.dumps(inputs)))
-
-
-def steps(*rows):
-    return json.dumps([list(r) for r in rows])
-
-
-def res(out, name):
-    return next(r for r in out["results"] if r["name"] == name)
+from app import cautions
+from helpers import res, run, table
 
 
 def test_defaults_compute_with_worst_first_plot_recommendation_and_caution():
-    out = run({})
+    out = run("harmonic_study", {})
     assert out["ok"], out["field_errors"]
     assert [r["name"] for r in out["results"] if r.get("key")] == ["worst", "h_res", "thd_v", "duty", "tdd"]
     titles = [t["title"] for t in out["tables"]]
@@ -38,8 +26,8 @@ def test_defaults_compute_with_worst_first_plot_recommendation_and_caution():
 
 def test_1500_kva_case_is_flagged_near_the_7th():
     # 1,500 kVA, 6 %, 400 kvar plain at 480 V 60 Hz: h = √(25000/400) = 7.91 (IEEE Std 1036); no motors
-    out = run({"tx_kva": "1500", "tx_z": "6", "tx_xr": "", "motor_kva": "0", "load_kw": "0",
-               "steps": steps(["400", "plain", "", ""]), "i_load": "1500"})
+    out = run("harmonic_study", {"tx_kva": "1500", "tx_z": "6", "tx_xr": "", "motor_kva": "0", "load_kw": "0",
+               "steps": table(["400", "plain", "", ""]), "i_load": "1500"})
     assert out["ok"], out["field_errors"]
     h = res(out, "h_res")
     assert h["value"] == pytest.approx(math.sqrt(25000 / 400), rel=1e-9) and h["status"] == "warn"
@@ -47,9 +35,9 @@ def test_1500_kva_case_is_flagged_near_the_7th():
 
 
 def test_bank_out_voltage_reading_becomes_16_percent_with_the_bank():
-    # the issue's case: 1,000 kVA 5.75 % X/R 5, 300 kW resistive, 700 kvar, 2 % 5th measured before the bank
-    out = run({"tx_kva": "1000", "tx_z": "5.75", "tx_xr": "5", "motor_kva": "0", "load_kw": "300",
-               "steps": steps(["700", "plain", "", ""]), "source": "voltage", "v_spec": steps(["5", "2"]),
+    # a worked case (invented plant): 1,000 kVA 5.75 % X/R 5, 300 kW resistive, 700 kvar, 2 % 5th measured before the bank
+    out = run("harmonic_study", {"tx_kva": "1000", "tx_z": "5.75", "tx_xr": "5", "motor_kva": "0", "load_kw": "300",
+               "steps": table(["700", "plain", "", ""]), "source": "voltage", "v_spec": table(["5", "2"]),
                "bank_state": "out", "i_load": "1200"})
     assert out["ok"], out["field_errors"]
     volts = next(t for t in out["tables"] if t["title"] == "Harmonic voltages")["rows"]
@@ -60,16 +48,16 @@ def test_bank_out_voltage_reading_becomes_16_percent_with_the_bank():
                                                rel=2e-3)
     assert res(out, "thd_v")["status"] == "fail"
     # the same reading taken with the bank in service is only 2 %
-    out_in = run({"tx_kva": "1000", "tx_z": "5.75", "tx_xr": "5", "motor_kva": "0", "load_kw": "300",
-                  "steps": steps(["700", "plain", "", ""]), "source": "voltage", "v_spec": steps(["5", "2"]),
+    out_in = run("harmonic_study", {"tx_kva": "1000", "tx_z": "5.75", "tx_xr": "5", "motor_kva": "0", "load_kw": "300",
+                  "steps": table(["700", "plain", "", ""]), "source": "voltage", "v_spec": table(["5", "2"]),
                   "bank_state": "in", "i_load": "1200"})
     assert next(t for t in out_in["tables"] if t["title"] == "Harmonic voltages")["rows"][0][3] == "2"
 
 
 def test_iec_profile_shows_the_8_hour_allowance():
     # 400 V bus, 415 V units behind 7 % reactors: 103.6 % of rated voltage (IEC 60831-1 from memory)
-    out = run({"v_ll": "400", "f": "50", "steps": steps(["100", "detuned", "7", "415"]), "profile": "iec60831",
-               "source": "current", "i_spec": steps(["5", "1"]), "i1": "100"})
+    out = run("harmonic_study", {"v_ll": "400", "f": "50", "steps": table(["100", "detuned", "7", "415"]), "profile": "iec60831",
+               "source": "current", "i_spec": table(["5", "1"]), "i1": "100"})
     assert out["ok"], out["field_errors"]
     step_rows = next(t for t in out["tables"] if t["title"].startswith("Steps in the worst"))["rows"]
     assert step_rows[0][2] == "103.6" and step_rows[0][-1] == "8 h in 24 h only"
@@ -77,6 +65,6 @@ def test_iec_profile_shows_the_8_hour_allowance():
 
 
 def test_detuned_bank_gets_no_recommendation_table():
-    out = run({"steps": steps(["100", "detuned", "7", ""], ["100", "detuned", "7", ""])})
+    out = run("harmonic_study", {"steps": table(["100", "detuned", "7", ""], ["100", "detuned", "7", ""])})
     assert out["ok"], out["field_errors"]
     assert not any(t["title"].startswith("Recommendation") for t in out["tables"])

@@ -88,7 +88,7 @@ def test_motor_effect_on_the_resonance_against_ngspice():
             assert h == pytest.approx(expect, rel=1e-9)
         else:
             # the motors add about k·S_m = 4,800 kVA to the 25,000 kVA short-circuit power:
-            # h = √(29,800/400) = 8.63 (the figure, here checked against ngspice above)
+            # h = √(29,800/400) = 8.63 (hand arithmetic; the ngspice sweep above agrees)
             assert h == pytest.approx(math.sqrt((25000 + 6 * 800) / 400), rel=1e-9)
             assert h == pytest.approx(8.63, abs=0.005)
 

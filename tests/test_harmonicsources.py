@@ -29,7 +29,8 @@ def test_typical_spectra_are_marked_and_shaped():
     # every recalled spectrum says so where it is shown
     for key, s in sp.items():
         assert (s.confidence == "memory") == ("from memory" in s.source), key
-    # a drive with a choke has a larger 5th than the ideal 20 % and smaller higher orders (DESIGN §4)
+    # a drive with a choke has a larger 5th than the ideal 20 % and smaller higher orders (typical measured
+    # spectra, from memory; the ideal 1/h is the Fourier series of the six-pulse current, textbook)
     assert sp["six_pulse_choke"].levels[5] > 20.0
     assert all(sp["six_pulse_choke"].levels[h] < 100.0 / h for h in (11, 13, 17, 19))
     assert sp["six_pulse_bare"].levels[5] > sp["six_pulse_choke"].levels[5]

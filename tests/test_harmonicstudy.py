@@ -1,5 +1,5 @@
-"""The harmonic study: duty formulas against worked computations, the bank-out/bank-in case of
-the issue against an independent numpy solve, every combination, worst first, and the detuned
+"""The harmonic study: duty formulas against worked computations, a bank-out/bank-in worked case
+(invented plant) against an independent numpy solve, every combination, worst first, and the detuned
 recommendation.
 
 References: capacitor duty V_rms = √ΣV_h², V_peak = ΣV_h, I_rms = √Σ(h·V_h)², Q = Σh·V_h² in
@@ -74,7 +74,7 @@ def test_iec_profile_against_a_worked_computation():
 
 
 def test_bank_out_measurement_then_bank_in_against_numpy():
-    # The issue's case: 480 V, 1,000 kVA 5.75 % X/R 5, 300 kW resistive, 700 kvar plain; 2 % 5th
+    # A worked case (invented plant): 480 V, 1,000 kVA 5.75 % X/R 5, 300 kW resistive, 700 kvar plain; 2 % 5th
     # measured before the bank. Independent solve with numpy: V_5,in = V_5,out·|Z_in(5)|/|Z_out(5)|.
     s = _one_step_study(hb.Step(700.0), {5: 2.0})
     bus = s.bus
@@ -89,7 +89,7 @@ def test_bank_out_measurement_then_bank_in_against_numpy():
     (c,) = s.combos
     assert c.v_pct[5] == pytest.approx(2.0 * ratio, rel=1e-9)
     assert c.amplification == pytest.approx(ratio, rel=1e-9)
-    # about 8×: 16 % of the 5th, capacitor current √(1 + (5·0.16)²) ≈ 128 %, peak ≈ 116 % (the issue's figures)
+    # about 8×: 16 % of the 5th, capacitor current √(1 + (5·0.16)²) ≈ 128 %, peak ≈ 116 % (rounded by hand)
     assert c.v_pct[5] == pytest.approx(16.0, abs=0.3)
     assert c.duties[0].i_rms == pytest.approx(100 * math.sqrt(1 + (5 * c.v_pct[5] / 100) ** 2), rel=1e-9)
     assert c.duties[0].i_rms == pytest.approx(128.0, abs=0.5) and c.duties[0].v_peak == pytest.approx(116.0, abs=0.3)

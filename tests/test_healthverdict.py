@@ -14,7 +14,7 @@ IEEE = bh.BANDS["ieee18"]
 IEC = bh.BANDS["iec60831"]
 
 
-def test_issue_case_minus_0_47_percent_is_not_replace():
+def test_worked_case_minus_0_47_percent_is_not_replace():
     # IEEE Std 18 band 0..+10 %; a phase at −0.47 % read with a 1 % meter (the 1–2 % the worksheet quotes)
     v = hv.phase_verdict(99.53, IEEE, meter_accuracy_percent=1.0)
     assert v.state == "tolerance"
@@ -47,7 +47,7 @@ def test_bank_state_is_the_worst():
     assert hv.bank_state(vs) == "drifted"
 
 
-def test_issue_case_330_332_290_ratio_between_terminals():
+def test_worked_case_330_332_290_ratio_between_terminals():
     # delta elements 330/332/290 µF: between-terminal readings c + series of the other two (circuit theory)
     c = (330e-6, 332e-6, 290e-6)
     hand = (330 + 332 * 290 / 622, 332 + 290 * 330 / 620, 290 + 330 * 332 / 662)

@@ -1,7 +1,7 @@
 """IEEE Std 519-2014 limits: Table 1 (voltage) and Table 2 (current), and the checks.
 
 Source: IEEE Std 519-2014. Table 1 (≤ 1 kV row and the THD column) as published; the individual
-voltage limits above 1 kV and all of Table 2 are from memory (as DESIGN.md §4 marks them).
+voltage limits above 1 kV and all of Table 2 are from memory.
 """
 
 from __future__ import annotations

@@ -1,4 +1,4 @@
-"""The impedance worksheet through the bridge contract (DESIGN §1)."""
+"""The impedance worksheet, and the keys of the bridge contract (app/bridge.py) on its answers."""
 
 import cmath
 import json
@@ -7,10 +7,7 @@ import math
 import pytest
 
 from app import bridge
-
-
-def run(inputs):
-    return json.loads(bridge.compute("impedance", json.dumps(inputs)))
+from helpers import run
 
 
 def by_name(res):
@@ -29,7 +26,7 @@ def test_catalog_contract_keys():
 
 
 def test_compute_contract_keys_and_values():
-    res = run({"mode": "z", "z": "3 + j4", "f": "50"})
+    res = run("impedance", {"mode": "z", "z": "3 + j4", "f": "50"})
     assert res["ok"] is True
     assert {"ok", "results", "field_errors", "warnings", "cautions", "figures"} <= set(res)
     for r in res["results"]:
@@ -46,14 +43,14 @@ def test_compute_contract_keys_and_values():
 
 
 def test_admittance_entry():
-    res = run({"mode": "y", "y": "0.12 - j0.16", "f": "60"})
+    res = run("impedance", {"mode": "y", "y": "0.12 - j0.16", "f": "60"})
     z = 1 / complex(0.12, -0.16)
     assert by_name(res)["z_mag"]["value"] == pytest.approx(abs(z))
     assert by_name(res)["pf"]["display"].endswith("lagging")
 
 
 def test_network_parallel_rc_leads():
-    res = run({"mode": "network", "topology": "parallel", "f": "50",
+    res = run("impedance", {"mode": "network", "topology": "parallel", "f": "50",
                "elements": json.dumps([["R", "100"], ["C", "31.83 µF"]])})
     z = 1 / (1 / 100 + 1j * 2 * math.pi * 50 * 31.83e-6)  # reference: admittances add
     rs = by_name(res)
@@ -77,7 +74,7 @@ def test_network_parallel_rc_leads():
     ({"mode": "z", "z": "3+j4", "f": "1e999"}, "f"),
 ])
 def test_bad_input_message_at_field(inputs, field):
-    res = run(inputs)
+    res = run("impedance", inputs)
     assert res["ok"] is False
     assert field in res["field_errors"] and res["field_errors"][field]
 

@@ -1,6 +1,6 @@
 """Jobs export files: round trip, and rejection of corrupt, truncated, foreign, future and bad files.
 
-The file format is the project's own (fixed in issue 5); the outside references here are
+The file format is the project's own; the outside references here are
 the JSON grammar (RFC 8259: what a parser must accept or refuse), Python's own json module
 as an independent reader of what we write, the ISO 8601 calendar (datetime), and
 JavaScript's Date.prototype.toISOString() form "YYYY-MM-DDTHH:mm:ss.sssZ" (ECMA-262,
@@ -18,6 +18,7 @@ from hypothesis import strategies as st
 import app.bridge as bridge
 from app import demo, registry
 from app import jobfile as jobs
+from helpers import run
 
 STAMP = "2025-03-14T09:26:53.589Z"  # the shape toISOString() gives (ECMA-262, from memory)
 
@@ -306,7 +307,7 @@ def test_demo_job_is_valid_and_uses_several_worksheets():
     assert len(used) >= min(3, n_sheets)
     assert len({e["id"] for e in job["entries"]}) == len(job["entries"])
     for e in job["entries"]:
-        res = json.loads(bridge.compute(e["worksheet"], json.dumps(e["inputs"])))
+        res = run(e["worksheet"], e["inputs"])
         assert res["ok"], (e["name"], res.get("field_errors"), res.get("error"))
         assert res["results"]
 

@@ -12,7 +12,7 @@ import ast
 import os
 import re
 
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+from helpers import ROOT
 PACKAGES = ("app", "pycore")
 
 

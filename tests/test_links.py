@@ -18,10 +18,7 @@ import pytest
 
 from app import bridge
 from app import quantities as Q
-
-
-def run(sheet: str, inputs: dict) -> dict:
-    return json.loads(bridge.compute(sheet, json.dumps(inputs)))
+from helpers import run
 
 
 def _quantities() -> list[Q.Quantity]:

@@ -1,6 +1,6 @@
-"""The load-profile worksheet through the bridge: defaults, the invented files, links into
-correction and savings, messages at the right field, and the time a year of 15-minute data
-takes through ``app.bridge.compute`` (printed, never asserted)."""
+"""The load-profile worksheet: defaults, the invented files, links into correction and
+savings, messages at the right field, and the time a year of 15-minute data takes through
+``app.bridge.compute`` (printed, never asserted)."""
 
 from __future__ import annotations
 
@@ -13,22 +13,15 @@ import numpy as np
 import pytest
 
 from app import bridge
+from helpers import res, run
 from pycore.profile_demo import demo_text
 from pycore.profile_read import read_profile
 
 DATA = Path(__file__).parent / "data"
 
 
-def run(inputs):
-    return json.loads(bridge.compute("load_profile", json.dumps(inputs)))
-
-
-def res(out, name):
-    return next(r for r in out["results"] if r["name"] == name)
-
-
 def test_defaults_compute_and_match_numpy():
-    out = run({})
+    out = run("load_profile", {})
     assert out["ok"], out["field_errors"]
     prof = read_profile(bridge.sheets()["load_profile"].field("profile").default)
     p, q = np.array(prof.p), np.array(prof.q)
@@ -46,9 +39,9 @@ def test_defaults_compute_and_match_numpy():
 
 
 def test_link_carries_the_design_point_into_correction():
-    out = run({})
+    out = run("load_profile", {})
     link = next(l for l in out["links"] if l["worksheet"] == "correction")
-    corr = json.loads(bridge.compute("correction", json.dumps(link["inputs"])))
+    corr = run("correction", link["inputs"])
     assert corr["ok"], corr["field_errors"]
     # the correction worksheet sizes the same kvar as the share figure (to the rounding of the link)
     assert res(corr, "q_need")["value"] == pytest.approx(res(out, "kvar_share")["value"], abs=0.5)
@@ -56,17 +49,17 @@ def test_link_carries_the_design_point_into_correction():
 
 
 def test_link_carries_the_lowest_month_into_savings():
-    out = run({})
+    out = run("load_profile", {})
     link = next(l for l in out["links"] if l["worksheet"] == "savings")
-    sav = json.loads(bridge.compute("savings", json.dumps(link["inputs"])))
+    sav = run("savings", link["inputs"])
     assert sav["ok"], sav["field_errors"]
     assert float(link["inputs"]["kwh_month"]) == pytest.approx(res(out, "kwh")["value"], abs=1)
 
 
 @pytest.mark.parametrize("path", sorted(DATA.glob("profile_*")), ids=lambda p: p.name)
 def test_each_invented_file_gives_the_same_bank_size(path):
-    ref = run({"profile": (DATA / "profile_kw_kvar_comma.csv").read_text()})
-    out = run({"profile": path.read_text(encoding="utf-8")})
+    ref = run("load_profile", {"profile": (DATA / "profile_kw_kvar_comma.csv").read_text()})
+    out = run("load_profile", {"profile": path.read_text(encoding="utf-8")})
     assert out["ok"], out["field_errors"]
     rough = "kva" in path.name or "pf" in path.name
     assert res(out, "kvar_share")["value"] == pytest.approx(res(ref, "kvar_share")["value"], abs=0.3 if rough else 1e-9)
@@ -74,8 +67,8 @@ def test_each_invented_file_gives_the_same_bank_size(path):
 
 
 def test_measured_voltage_scales_the_bank():
-    base = run({"bank": "fixed", "fixed_kvar": "150"})
-    low = run({"bank": "fixed", "fixed_kvar": "150", "cap_v": "480", "v_bus": "440"})
+    base = run("load_profile", {"bank": "fixed", "fixed_kvar": "150"})
+    low = run("load_profile", {"bank": "fixed", "fixed_kvar": "150", "cap_v": "480", "v_bus": "440"})
     assert res(low, "bank_size")["value"] == pytest.approx(150 * (440 / 480) ** 2)
     assert res(low, "pf_after")["value"] < res(base, "pf_after")["value"]
     assert "440 V" in res(low, "bank_size")["display"]
@@ -84,7 +77,7 @@ def test_measured_voltage_scales_the_bank():
 def test_rows_left_out_are_listed_and_the_rest_computes():
     text = demo_text(days=3, interval_min=60).splitlines()
     text[5] = text[5].split(",")[0] + ",abc,12"
-    out = run({"profile": "\n".join(text)})
+    out = run("load_profile", {"profile": "\n".join(text)})
     assert out["ok"]
     table = next(t for t in out["tables"] if t["title"] == "Rows left out or flagged")
     assert table["rows"][0][0] == "6" and "not a number" in table["rows"][0][2]
@@ -103,15 +96,15 @@ def test_rows_left_out_are_listed_and_the_rest_computes():
     ("v_bus", "", {"cap_v": "480"}, "both"),
 ])
 def test_messages_land_at_the_field(field, text, extra, word):
-    out = run({**extra, field: text})
+    out = run("load_profile", {**extra, field: text})
     assert out["ok"] is False
     assert set(out["field_errors"]) == {field}, out["field_errors"]
     assert word.lower() in out["field_errors"][field].lower()
 
 
 def test_percent_target_is_accepted():
-    a = run({"target_pf": "95 %"})
-    b = run({"target_pf": "0.95"})
+    a = run("load_profile", {"target_pf": "95 %"})
+    b = run("load_profile", {"target_pf": "0.95"})
     assert a["ok"] and a["results"] == b["results"]
 
 

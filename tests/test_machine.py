@@ -7,8 +7,7 @@ import subprocess
 import pytest
 
 from buildkit import machine
-
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+from helpers import ROOT
 
 
 @pytest.fixture

@@ -10,7 +10,7 @@ from pycore.errors import InputError
 
 
 def _plain():
-    # the 71.3 kvar need as the binary plan 5, 10, 20, 40 kvar at 480 V, 60 Hz (invented site)
+    # a 71.3 kvar need as the binary plan 5, 10, 20, 40 kvar at 480 V, 60 Hz (invented site)
     return ol.design_bank([5, 10, 20, 40], [(5,), (10,), (20,), (40,)], 480, 60, 480, 60, "delta", 0.0, "nec",
                           s_sc_kva=1000 / 0.0575, ct_primary_a=400)
 

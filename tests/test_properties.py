@@ -9,7 +9,7 @@
   Red Book, power-factor chapter), with tan φ₂ computed here by ``math.tan(math.acos(PF₂))``.
 * The parallel-resonance order falls as the bank grows: h ≈ √(S_sc/Q) (IEEE Std 1036) and
   the |Z| peak of the bus model.
-* Robustness contract of the core (DESIGN: a worksheet never crashes): every public pycore
+* Robustness contract of the core (house rule: a worksheet's compute never raises): every public pycore
   function, given finite numbers (or any text, for the parsers), either returns a value with
   no NaN in it or raises :class:`pycore.errors.InputError` — never ZeroDivisionError,
   OverflowError, a bare ValueError or anything else.
@@ -605,7 +605,7 @@ CASES = {
     "survey.make_load": A(st.text(max_size=5), F, OPT, BOOL, OPT, OPT, OPT),
     "survey.row_totals": A(SLOAD, F),
     "survey.survey_totals": A(st.lists(SLOAD, max_size=4), F),
-    # load profiles (issue 15) and the pieces the correction worksheet will call
+    # load profiles and the pieces the correction worksheet will call
     "pfparse.parse_pf": A(TEXT),
     "pfparse.parse_lagging_pf": A(TEXT),
     "transformer.typical_no_load_pct": A(F),
@@ -652,7 +652,7 @@ CASES = {
     "profile_demo.read_and_analyse": A(TEXT | PTEXT, F, F),
 }
 
-# Switching, discharge, protection, cable, step plans, bank losses, health verdicts, order list (issue 16).
+# Switching, discharge, protection, cable, step plans, bank losses, health verdicts, order list.
 STEPC = st.builds(inrush.StepCircuit, F, F, F, F)
 PROFILE = st.sampled_from(["nec", "iec", "csa"])
 VERDICT = st.builds(healthverdict.PhaseVerdict, st.sampled_from(list(healthverdict.STATES)), st.just(""), F, F, st.just(""))

@@ -8,21 +8,16 @@ and every entry of a worksheet's reference list must be a table entry. The house
 
 from __future__ import annotations
 
-import json
 import os
 import re
 
 import pytest
 
 from app import bridge
+from helpers import ROOT, run
 from pycore import references as R
 
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 ENTRIES = set(R.REFERENCES.values())
-
-
-def run(sheet: str, inputs: dict) -> dict:
-    return json.loads(bridge.compute(sheet, json.dumps(inputs)))
 
 
 def variants(sheet) -> list[dict]:

@@ -7,7 +7,6 @@ Sadiku); 0.48 kV = 480 V by the SI prefix kilo = 10³ (SI Brochure, 9th edition,
 """
 
 import json
-import os
 import subprocess
 import sys
 
@@ -15,20 +14,16 @@ import pytest
 
 from app import bridge, registry
 from app.sheet import Inputs
+from helpers import ROOT, res
 
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 CONTRACT_KEYS = {"ok", "results", "tables", "field_errors", "warnings", "cautions", "figures"}
-
-
-def _result(out, name):
-    return next(r for r in out["results"] if r["name"] == name)
 
 
 def test_run_from_a_dict_computes_the_worksheet():
     out = registry.run("impedance", {"mode": "z", "z": "3 + j4", "f": "50"})
     assert out["ok"] is True and out["field_errors"] == {}
-    assert _result(out, "z_mag")["value"] == pytest.approx(5.0, rel=1e-12)  # √(3² + 4²)
-    assert _result(out, "pf")["value"] == pytest.approx(0.6, rel=1e-12)  # R/|Z|
+    assert res(out, "z_mag")["value"] == pytest.approx(5.0, rel=1e-12)  # √(3² + 4²)
+    assert res(out, "pf")["value"] == pytest.approx(0.6, rel=1e-12)  # R/|Z|
     # the bridge is only the JSON door onto the same computation
     assert json.loads(bridge.compute("impedance", json.dumps({"mode": "z", "z": "3 + j4", "f": "50"}))) == out
     assert "inputs" not in out  # the record of what was read comes only when asked for
@@ -45,6 +40,7 @@ def test_unknown_worksheet(wid):
     out = registry.run(wid, {})
     assert out["ok"] is False and CONTRACT_KEYS <= set(out)
     assert out["error"] == f"Unknown worksheet '{wid}'."
+    assert "internal" not in out  # a refusal, not a bug
 
 
 def test_inputs_that_are_not_a_dict():
@@ -61,7 +57,30 @@ def test_run_never_raises(monkeypatch):
     monkeypatch.setattr(ws, "compute", broken)
     out = registry.run("impedance", {})
     assert out["ok"] is False and CONTRACT_KEYS <= set(out)
-    assert out["error"].startswith("Internal error (ZeroDivisionError)")
+    assert out["internal"] is True  # what tests and tools look for, whatever the wording
+    assert out["error"] == registry.INTERNAL_ERROR.format("ZeroDivisionError")
+    # the bridge passes the mark on
+    assert json.loads(bridge.compute("impedance", "{}"))["internal"] is True
+
+
+def test_an_answer_the_bridge_cannot_write_is_marked_internal(monkeypatch):
+    # a NaN in a result: JSON has no NaN, so the bridge's writing fails and it says so, marked
+    ws = registry.sheet("impedance")
+    real = ws.compute
+
+    def with_nan(ins, out):
+        real(ins, out)
+        out.results[0]["value"] = float("nan")
+
+    monkeypatch.setattr(ws, "compute", with_nan)
+    assert registry.run("impedance", {})["ok"] is True
+    out = json.loads(bridge.compute("impedance", "{}"))
+    assert out["ok"] is False and out["internal"] is True
+
+
+def test_refused_inputs_are_not_marked_internal():
+    out = registry.run("impedance", {"mode": "z", "z": "3 + j4", "f": "-5"})
+    assert out["ok"] is False and "internal" not in out
 
 
 def _fresh_python(code):

@@ -26,6 +26,7 @@ import pytest
 
 import app.bridge as bridge
 from app import report
+from helpers import run
 
 DATE = "2025-03-14"
 STAMP = "2025-03-14T09:26:53.589Z"
@@ -167,8 +168,8 @@ def html_doc(job):
 
 @pytest.fixture(scope="module")
 def computed(job):
-    """Each entry computed independently through the bridge, as the report must show it."""
-    return {e["id"]: json.loads(bridge.compute(e["worksheet"], json.dumps(e["inputs"]))) for e in job["entries"]}
+    """Each entry computed independently, as the report must show it."""
+    return {e["id"]: run(e["worksheet"], e["inputs"]) for e in job["entries"]}
 
 
 ALLOWED = {
@@ -292,7 +293,7 @@ def test_report_marks_an_out_of_range_value_invalid_not_used(typed):
     """A value the range check refuses was not used: the report must not echo it as if it were
     (1 kHz would otherwise read '1000 Hz' in the 'value used' column)."""
     job = _used_job({"v_ll": "0.48 kV", "f": typed})
-    out = json.loads(bridge.compute("correction", json.dumps(job["entries"][0]["inputs"])))
+    out = run("correction", job["entries"][0]["inputs"])
     assert out["ok"] is False and "f" in out["field_errors"]
     doc = Doc(report.render(job, "html", app_version="0.1.0", date=DATE))
     assert [F_LABEL, typed, "(invalid)"] in doc.rows

@@ -2,8 +2,9 @@
 
 References: h = √(S_sc/Q) for a plain bank (IEEE Std 1036; Dugan et al.); tolerances: capacitance
 0 to +10 % (IEEE Std 18-2002), transformer impedance ±7.5 % (IEEE C57.12.00, from memory); the
-±10 % band is the project's screening choice. The 1,500 kVA case is the one the issue reports as
-passing unflagged (its resonance order confirmed there and in tests/test_harmonicbus.py with ngspice).
+±10 % band is the project's screening choice. The 1,500 kVA case (400 kvar plain, h ≈ 7.91, next
+to the 7th) is a worked case a screen must flag (its resonance order checked with ngspice in
+tests/test_harmonicbus.py).
 """
 
 from __future__ import annotations

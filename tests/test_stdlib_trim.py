@@ -29,13 +29,6 @@ from buildkit.assemble import FULL_STDLIB
 NODE = shutil.which("node")
 
 
-@pytest.fixture(scope="module")
-def dist():
-    if not (os.environ.get("FIELDPHASOR_DIST_BUILT") and os.path.exists(os.path.join(build.DIST, "sw.js"))):
-        build.build(quiet=True)
-    return build.DIST
-
-
 def archive_modules(path):
     out = set()
     with zipfile.ZipFile(path) as zf:

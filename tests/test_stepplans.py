@@ -1,5 +1,5 @@
-"""pycore.stepplans: the three offered plans (hypothesis properties), the issue's 71.3 and 38.3 kvar
-cases, the controller's held combination against a brute-force enumeration, and C/k by hand."""
+"""pycore.stepplans: the three offered plans (hypothesis properties), two worked needs of 71.3 and
+38.3 kvar, the controller's held combination against a brute-force enumeration, and C/k by hand."""
 
 import itertools
 import math
@@ -21,7 +21,7 @@ def _load_for_need(need, target=0.95, p=150.0):
 
 
 @pytest.mark.parametrize("need", [71.3, 38.3])
-def test_issue_cases_get_a_plan_within_15_percent(need):
+def test_worked_needs_get_a_plan_within_15_percent(need):
     # the old default (six steps 1:2:2:2:2:2) orders 110 and 55 kvar: 54 % and 44 % too much
     old = banksteps.plan_steps(need, STOCK, banksteps.step_weights("one_two", 6))
     assert old.total in (110.0, 55.0)

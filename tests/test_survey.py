@@ -50,7 +50,7 @@ def test_parse_pf_refuses_with_a_reason(text, words):
 # --- kvar per kW: IEEE Std 141 multiplier table --------------------------------------------------
 
 # IEEE Std 141 (Red Book), power-factor chapter, table of kW multipliers for kvar (from memory;
-# tables print 3 decimals and some truncate, so compare within ±0.001 as DESIGN §4 says).
+# tables print 3 decimals and some truncate, so compare within ±0.001).
 RED_BOOK_MULTIPLIERS = [
     (0.70, 0.90, 0.536),
     (0.70, 1.00, 1.020),

@@ -8,21 +8,7 @@ import numpy as np
 import pytest
 
 import app.bridge as bridge
-
-
-def run(sheet, inputs):
-    return json.loads(bridge.compute(sheet, json.dumps(inputs)))
-
-
-def res(r, name):
-    for x in r["results"]:
-        if x["name"] == name:
-            return x
-    raise KeyError(name)
-
-
-def table(rows):
-    return json.dumps(rows)
+from helpers import res, run, table
 
 
 # --- catalogue ------------------------------------------------------------------------------------
@@ -81,7 +67,7 @@ def test_survey_defaults_compute_and_agree_with_numpy():
     ([["Bank", "0", "", "-20", "", ""]], ["no real power"]),
 ])
 def test_survey_bad_rows_get_a_message_at_the_table(rows, words):
-    r = run("survey", {"loads": table(rows)})
+    r = run("survey", {"loads": table(*rows)})
     assert not r["ok"]
     msg = r["field_errors"].get("loads", "")
     for w in words:
@@ -91,7 +77,7 @@ def test_survey_bad_rows_get_a_message_at_the_table(rows, words):
 
 def test_survey_counts_further_bad_rows():
     rows = [["A", "10", "", "", "", ""], ["B", "10", "", "", "", ""], ["C", "10", "0.8", "", "", ""], ["D", "5", "2", "", "", ""]]
-    msg = run("survey", {"loads": table(rows)})["field_errors"]["loads"]
+    msg = run("survey", {"loads": table(*rows)})["field_errors"]["loads"]
     assert msg.startswith("Row 1 (A)") and "2 more rows" in msg
 
 
@@ -109,7 +95,7 @@ def test_survey_bad_target(target):
 
 def test_markup_in_a_load_name_comes_back_verbatim():
     evil = '<img src=x onerror="alert(1)"><script>alert("x")</script> & Co'
-    r = run("survey", {"loads": table([[evil, "40", "0.75", "", "2", "8"], ["Pump", "10", "0.9", "", "", ""]])})
+    r = run("survey", {"loads": table([evil, "40", "0.75", "", "2", "8"], ["Pump", "10", "0.9", "", "", ""])})
     assert r["ok"], r
     names = [row[0] for row in r["tables"][0]["rows"]]
     assert evil in names  # plain text, unchanged: escaping is the shell's job
@@ -117,7 +103,7 @@ def test_markup_in_a_load_name_comes_back_verbatim():
 
 
 def test_correction_links_open_the_correction_sheet_prefilled():
-    r = run("survey", {"loads": table([["Press", "40", "0.75", "", "3", ""], ["Lights", "10", "0.99", "", "", ""]]),
+    r = run("survey", {"loads": table(["Press", "40", "0.75", "", "3", ""], ["Lights", "10", "0.99", "", "", ""]),
                        "target_pf": "0.96"})
     links = [x for x in r["links"] if x["worksheet"] == "correction"]
     assert len(links) == 1  # the lights are already above the target
@@ -138,7 +124,7 @@ def test_correction_links_open_the_correction_sheet_prefilled():
 
 def test_links_capped_at_twenty_and_said_so():
     rows = [[f"Motor {i}", str(5 + i), "0.8", "", "", ""] for i in range(35)]
-    r = run("survey", {"loads": table(rows)})
+    r = run("survey", {"loads": table(*rows)})
     links = [x for x in r["links"] if x["worksheet"] == "correction"]
     assert len(links) == 20
     # the twenty largest needs: motors 15..34 (P rises with i at the same PF)
@@ -147,7 +133,7 @@ def test_links_capped_at_twenty_and_said_so():
 
 
 def test_leading_site_warns_and_offers_no_bank():
-    r = run("survey", {"loads": table([["Drive filter", "20", "0.5 lead", "", "", ""], ["Fan", "5", "0.9", "", "", ""]])})
+    r = run("survey", {"loads": table(["Drive filter", "20", "0.5 lead", "", "", ""], ["Fan", "5", "0.9", "", "", ""])})
     assert r["ok"]
     assert res(r, "central_kvar")["value"] == 0
     assert "leading" in res(r, "pf_site")["display"]
@@ -162,7 +148,7 @@ def test_several_hundred_rows_quickly():
     qty = rng.integers(1, 6, n)
     rows = [[f"Load {i}", f"{p[i]}", f"{pf[i]}", "", f"{qty[i]}", "12"] for i in range(n)]
     t0 = time.perf_counter()
-    r = run("survey", {"loads": table(rows)})
+    r = run("survey", {"loads": table(*rows)})
     dt = time.perf_counter() - t0
     assert r["ok"]
     assert len(r["tables"][0]["rows"]) == n + 1  # plus the total row
@@ -172,7 +158,7 @@ def test_several_hundred_rows_quickly():
 
 def test_too_many_rows_is_refused():
     rows = [["x", "1", "0.9", "", "", ""]] * 501
-    r = run("survey", {"loads": table(rows)})
+    r = run("survey", {"loads": table(*rows)})
     assert not r["ok"] and "500" in r["field_errors"]["loads"]
 
 

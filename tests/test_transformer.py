@@ -3,7 +3,7 @@ a bank's output at a measured voltage (pycore.bankoutput).
 
 Reference: the transformer's equivalent circuit (series leakage reactance u_k, shunt magnetising
 admittance i₀ at the primary terminals) solved directly with complex arithmetic (cmath), per unit
-on S_T, secondary at 1 pu. The cases are the ones in issue 15: 800 kW at PF 0.80 through a
+on S_T, secondary at 1 pu. Two worked cases, rounded by hand: 800 kW at PF 0.80 through a
 1,000 kVA, 6 %, i₀ 1.5 % transformer to 0.95 at the primary: ≈ 393 kvar, and 337 kvar leaves
 ≈ 0.928 at the meter; 440 V measured on a 480 V bank of 193 kvar at 600 A, PF 0.78: ≈ 162 kvar
 and PF ≈ 0.944.
@@ -58,10 +58,10 @@ def test_reactive_power_formula_matches_the_circuit():
     assert transformer.reactive_kvar(0, ST, UK, I0) == pytest.approx(primary_power(0, 0).imag)
 
 
-def test_issue_case_asks_about_393_kvar():
+def test_worked_case_asks_about_393_kvar():
     got = transformer.kvar_for_primary_target(P, Q, PF2, ST, UK, I0)
     exact = circuit_kvar_for_target(P, Q, PF2)
-    assert got == pytest.approx(393, abs=1.0)  # issue 15
+    assert got == pytest.approx(393, abs=1.0)  # worked case (rounded by hand)
     assert got == pytest.approx(exact, abs=1.5)  # the equivalent circuit solved directly
     # at the meter, the bank found gives the target (circuit), and the secondary-only answer does not
     s1 = primary_power(P, Q - got)
@@ -69,7 +69,7 @@ def test_issue_case_asks_about_393_kvar():
     secondary_only = P * (math.tan(math.acos(0.8)) - math.tan(math.acos(PF2)))
     assert secondary_only == pytest.approx(337, abs=0.5)
     s1 = primary_power(P, Q - secondary_only)
-    assert s1.real / abs(s1) == pytest.approx(0.928, abs=0.001)  # issue 15
+    assert s1.real / abs(s1) == pytest.approx(0.928, abs=0.001)  # worked case (rounded by hand)
 
 
 def test_closed_form_equals_iterating_on_the_load_after_correction():
@@ -105,7 +105,7 @@ def test_typical_no_load_current_is_a_table_lookup():
     assert all(0.5 <= v <= 3 for v in vals)
 
 
-def test_bank_at_measured_voltage_issue_case():
+def test_bank_at_measured_voltage_worked_case():
     s = math.sqrt(3) * 440 * 600 / 1000
     p, q = s * 0.78, s * math.sqrt(1 - 0.78**2)
     got = bankoutput.with_bank_at(p, q, 193, 440, 480, 60, 60)
@@ -114,9 +114,9 @@ def test_bank_at_measured_voltage_issue_case():
     c = 193e3 / (3 * w * 480**2)
     q_440 = 3 * w * c * 440**2 / 1e3
     assert got.q_kvar == pytest.approx(q_440, rel=1e-12)
-    assert got.q_kvar == pytest.approx(162, abs=0.5)  # issue 15
+    assert got.q_kvar == pytest.approx(162, abs=0.5)  # worked case (rounded by hand)
     assert got.pf == pytest.approx(p / abs(complex(p, q - q_440)), rel=1e-12)
-    assert got.pf == pytest.approx(0.944, abs=0.001)  # issue 15
+    assert got.pf == pytest.approx(0.944, abs=0.001)  # worked case (rounded by hand)
     assert got.sense == "lagging" and got.v == 440
 
 

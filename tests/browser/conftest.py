@@ -8,7 +8,6 @@ occurs (see ``guard``).
 from __future__ import annotations
 
 import contextlib
-import json
 import os
 import shutil
 import sys
@@ -20,6 +19,7 @@ import pytest
 ROOT = os.path.dirname(os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 sys.path.insert(0, ROOT)
 import build  # noqa: E402
+from helpers import run  # noqa: E402
 
 CHROMIUM = "/usr/bin/chromium"
 ARGS = [
@@ -50,16 +50,7 @@ def pytest_collection_modifyitems(items):
 
 
 @pytest.fixture(scope="session")
-def dist():
-    if not os.path.exists(CHROMIUM):
-        pytest.skip("Debian's chromium is not installed (apt-get install chromium)")
-    if not (os.environ.get("FIELDPHASOR_DIST_BUILT") and os.path.exists(os.path.join(build.DIST, "sw.js"))):
-        build.build(quiet=True)
-    return build.DIST
-
-
-@pytest.fixture(scope="session")
-def site(dist):
+def site(dist):  # dist: the shared fixture in tests/conftest.py
     srv, url = build.serve_in_thread(dist)
     yield url
     srv.shutdown()
@@ -75,6 +66,8 @@ def pw():
 
 @pytest.fixture(scope="session")
 def browser(pw):
+    if not os.path.exists(CHROMIUM):
+        pytest.skip("Debian's chromium is not installed (apt-get install chromium)")
     b = pw.chromium.launch(executable_path=CHROMIUM, args=ARGS)
     yield b
     b.close()
@@ -172,9 +165,8 @@ def open_sheet(page, sheet_id: str):
 
 
 def cpython_compute(sheet_id: str, inputs: dict) -> dict:
-    from app import bridge
-
-    return json.loads(bridge.compute(sheet_id, json.dumps(inputs)))
+    """The same worksheet computed in CPython (the reference for what Pyodide showed)."""
+    return run(sheet_id, inputs)
 
 
 def shot(page, name: str):

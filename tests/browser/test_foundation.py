@@ -1,4 +1,4 @@
-"""The app loads, computes in Pyodide, installs, and keeps working offline (issue: foundation)."""
+"""The app loads, computes in Pyodide, installs, and keeps working offline."""
 
 from __future__ import annotations
 
@@ -201,10 +201,23 @@ def test_opening_form_is_usable_before_the_shell_runs_and_keeps_typing(browser, 
     ctx = browser.new_context(viewport=PHONE)
     try:
         page = ctx.new_page()
-        # hold the shell's modules back so the static form can be typed into first
-        page.route("**/app.js", lambda route: (page.wait_for_timeout(1500), route.continue_()))
-        page.goto(site)
-        page.fill("#in-p_kw", "777")
+        # hold the shell (app.js) back until the static form has been typed into: goto returns at
+        # "commit", before the page has loaded, and app.js is answered only after the typing
+        held, released = [], []
+
+        def hold_shell(route):
+            if released:
+                route.continue_()
+            else:
+                held.append(route)
+
+        page.route("**/app.js", hold_shell)
+        page.goto(site, wait_until="commit")
+        page.fill("#in-p_kw", "777")  # waits for the static form in index.html, nothing else
+        assert page.evaluate("() => window.fieldphasor === undefined"), "the shell ran before the typing"
+        released.append(True)
+        for route in held:
+            route.continue_()
         wait_ready(page)
         settle(page)
         assert page.input_value("#in-p_kw") == "777"

@@ -1,4 +1,4 @@
-"""A light first visit (issue 18): the default start fetches the trimmed standard library and
+"""A light first visit: the default start fetches the trimmed standard library and
 neither micropip, the whole standard library nor pyodide-lock.json; the service worker precaches
 the build once (revalidating what the page has just downloaded) and afterwards every worksheet
 and every report format runs offline from the trimmed archive, answering as CPython does."""

@@ -1,4 +1,4 @@
-"""Later starts restore this build's interpreter memory snapshot (issue: start-up speed), and a
+"""Later starts restore this build's interpreter memory snapshot, and a
 restored engine answers exactly as CPython does; a snapshot that fails its check is refused."""
 
 from __future__ import annotations

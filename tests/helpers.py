@@ -1,0 +1,65 @@
+"""Helpers shared by the tests: run a worksheet, look a result up by name, type a table field,
+and check that an outcome is an answer.
+
+Worksheet tests run worksheets through :func:`app.registry.run` (the bridge's JSON door is
+tested where the JSON contract itself is under test). :func:`run` still writes the outcome as
+the bridge does (JSON without NaN or infinity) and reads it back, so a test sees exactly what
+the browser receives, lists where Python held tuples.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+
+from app import registry
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))  # the repository
+
+
+def run(sheet_id: str, inputs: dict | None = None, /, **more) -> dict:
+    """Compute worksheet ``sheet_id`` from field name → typed text: ``inputs`` and the keyword
+    fields together (a keyword wins). The outcome dict of the bridge contract, as JSON gives it.
+
+    Fails the test on an internal error (the registry's ``"internal": true``, an unexpected
+    exception inside the computation) and on an outcome the bridge could not write as JSON."""
+    out = registry.run(sheet_id, {**(inputs or {}), **more})
+    assert not out.get("internal"), f"internal error in {sheet_id}: {out.get('error')} (inputs {inputs or {}} {more})"
+    try:
+        text = json.dumps(out, ensure_ascii=False, allow_nan=False)
+    except ValueError as exc:  # the bridge would turn this into an internal error
+        raise AssertionError(f"{sheet_id}: the outcome is not valid JSON ({exc})") from exc
+    return json.loads(text)
+
+
+def res(out: dict, name: str) -> dict:
+    """The result called ``name`` in an outcome."""
+    for r in out["results"]:
+        if r["name"] == name:
+            return r
+    raise KeyError(f"{name} (results: {[r['name'] for r in out['results']]})")
+
+
+def val(out: dict, name: str):
+    """The value of the result called ``name``."""
+    return res(out, name)["value"]
+
+
+def table(*rows) -> str:
+    """A table field's text: rows of cells as JSON, each cell as typed text."""
+    return json.dumps([[str(c) for c in r] for r in rows])
+
+
+def assert_answered(out: dict) -> None:
+    """The outcome is an answer, whatever the inputs: not an internal error (by the registry's
+    ``"internal"`` key, not by wording), and either ok with results and no messages, or refused
+    with a non-empty message at a field or a general one and nothing computed shown."""
+    assert not out.get("internal"), out.get("error")
+    if out["ok"]:
+        assert out["results"], "ok without any result"
+        assert out["field_errors"] == {} and "error" not in out
+    else:
+        messages = list(out["field_errors"].values()) + ([out["error"]] if "error" in out else [])
+        assert messages, "refused without a message"
+        assert all(isinstance(m, str) and m.strip() for m in messages), messages
+        assert out["results"] == [] and out["figures"] == []
