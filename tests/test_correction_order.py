@@ -86,7 +86,10 @@ def test_order_list_per_step_and_for_the_bank():
     r = run()
     assert r["ok"]
     t = table(r, "What to order")
-    assert t["columns"] == ["Section", "Item", "Qty", "Specification", "Basis"]
+    assert t["columns"] == ["Section", "Item", "Qty", "Specification"]
+    why = table(r, "Why each part of the order")  # each reason once, with the steps it covers
+    assert len({(row[0], row[2]) for row in why["rows"]}) == len(why["rows"])
+    assert any(row[0] == "Fuses, gG" and "NEC" in row[2] for row in why["rows"])
     items = {row[1] for row in t["rows"]}
     assert {"Capacitor unit", "Contactor", "Fuses, gG", "Cable", "Power-factor controller", "Main fuses, gG", "Main cable"} <= items
     # what to buy adds up to the bank ordered: 5 × 40 + 1 × 20 kvar on the defaults

@@ -173,9 +173,15 @@ def order_list(out, cx):
     cx.bank_design = bd
     rows = orderlist.merge_alike_steps(orderlist.order_rows(bd))
     cols, cells = orderlist.as_table(rows)
-    out.table("What to order", list(cols), [[str(c) for c in r] for r in cells],
+    # the list to buy from, and (once per distinct reason) why each part is what it is
+    out.table("What to order", list(cols[:4]), [[str(c) for c in r[:4]] for r in cells],
               note="A purchase request to hand on: per step, then for the bank. Ratings are starting points: "
-                   + protection.CONFIRM, text=orderlist.as_text(rows))
+                   + protection.CONFIRM + " Why each part: the next table.", text=orderlist.as_text(rows))
+    why: dict = {}
+    for r in rows:
+        why.setdefault((r.item, r.basis), []).append(r.section)
+    out.table("Why each part of the order", ["Item", "For", "Basis"],
+              [[item, ", ".join(dict.fromkeys(secs)), basis] for (item, basis), secs in why.items()])
 
     # --- per step: inrush and discharge
     srows = []

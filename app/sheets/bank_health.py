@@ -315,8 +315,8 @@ def compute(ins, out):
     for k, (n, ck, p, pv, q) in enumerate(zip(names, c, pct, pvs, q_ph), 1):
         dev = p - 100.0
         out.result(f"verdict_{k}", f"Phase {n}", p, "%", key=True, status=_STATUS[pv.state], group=g,
-                   display=f"{_verdict_display(pv)}: {fmt.si(ck, 'F', 4)}, {fmt.sig(p, 4)} % of expected "
-                           f"({'+' if dev >= 0 else '−'}{fmt.sig(abs(dev), 3)} % ± {fmt.sig(pv.uncertainty, 2)})",
+                   display=f"{_verdict_display(pv)}: {'+' if dev >= 0 else '−'}{fmt.sig(abs(dev), 2)} % "
+                           f"± {fmt.sig(pv.uncertainty, 2)} %",
                    method=f"Criterion: {pv.criterion}. % = 100·C/C_expected; C {how}",
                    source=_verdict_source(pv, band, limit))
         out.result(f"c_{k}", f"C of phase {n}", ck, "F", si=True, group=g, method=how, source=SRC_CIRCUIT)
@@ -368,7 +368,7 @@ def compute(ins, out):
         out.warn("One phase reads open: the bank is running on two elements.")
 
     # --- tables
-    rows = [[n, fmt.si(ck, "F", 4), f"{fmt.sig(p, 4)} % ± {fmt.sig(pv.uncertainty, 2)}",
+    rows = [[n, fmt.si(ck, "F", 4), f"{fmt.sig(p, 4)} % ± {fmt.sig(pv.uncertainty, 2)} %",
              "—" if open_wye else f"{fmt.sig(q, 4)} kvar", _verdict_display(pv)]
             for n, ck, p, q, pv in zip(names, c, pct, q_ph, pvs)]
     out.table("Each phase", ["Phase", "Capacitance", "% of expected", f"kvar at {fmt.sig(v_sys)} V", "Verdict"], rows,
