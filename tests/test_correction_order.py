@@ -141,3 +141,27 @@ def test_order_list_in_every_report_and_first_in_the_shared_text():
     assert "What to order row 1" in csv and "Power-factor controller" in csv
     html = report.render(JOB, "html", **kw)
     assert "What to order" in html and "Power-factor controller" in html
+
+
+def test_light_load_key_result_is_what_the_controller_holds():
+    # defaults: 90 kW at 0.70 lagging; brute force over the step combinations (common practice)
+    r = run()
+    q = 90 * math.tan(math.acos(0.70))
+    steps = [20.0, 40, 40, 40, 40, 40]
+    kv = _held_by_brute_force(90.0, q, steps)
+    held = res(r, "pf_light_held")
+    assert held["key"] and "leading" not in held["display"]
+    assert held["value"] == pytest.approx(90 / np.hypot(90, q - kv), rel=1e-9)
+    assert not res(r, "pf_light").get("key")  # the whole bank in stays as a check, not the answer
+
+
+def test_detuned_bank_order_list(monkeypatch):
+    # until the bank-type field lands, p comes through detuning_p: a 7 % bank (industry convention)
+    from app.sheets import _correction_order as order
+
+    monkeypatch.setattr(order, "detuning_p", lambda ins: 0.07)
+    r = run()
+    assert r["ok"], r
+    items = [row[1] for row in table(r, "What to order")["rows"]]
+    assert "Detuning reactor" in items and not any(i.startswith("Inrush-limiting") for i in items)
+    assert any("own reactor limits its inrush" in n for n in r["notes"])

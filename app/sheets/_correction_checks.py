@@ -78,7 +78,7 @@ def light_load(out, cx):
         light_check = banksteps.light_load_check(light_net, steps_sys, combos=combos)
         full_light = light_net.corrected(delivered)
         out.result("pf_light", f"Power factor at the lightest load ({fmt.sig(light_p)} kW), whole bank in", full_light.pf, "",
-                   display=_pf_text(full_light.pf, full_light.sense), key=True,
+                   display=_pf_text(full_light.pf, full_light.sense), key=bank == "fixed",
                    status="warn" if full_light.sense == "leading" else "ok", group="",
                    method="PF = P_min/√(P_min² + (Q_min − Q_C)²)", source=SRC_TRIANGLE)
         if light_check.leading:

@@ -118,6 +118,14 @@ def plans(out, cx):
     cx.plans = []
     if cx.bank != "auto":
         return
+    if cx.light_net is not None:
+        held = stepplans.controller_holds(cx.light_net, cx.steps_sys, cx.pf2, getattr(cx, "combos", None))
+        on = "none" if held.combo is None else "+".join(str(i) for i in held.combo.on)
+        out.result("pf_light_held", f"Power factor the controller holds at the lightest load ({fmt.sig(cx.light_p)} kW)",
+                   held.pf, "", display=f"{_pf_text(held.pf, held.sense)} (steps {on} in, {fmt.sig(held.kvar_in)} kvar)",
+                   key=True, status="ok" if held.sense != "leading" else "warn",
+                   method="The smallest step combination reaching the target without leading, else the largest that "
+                          "does not lead", source=cite("practice_controller", "circuits_ac_power"))
     try:
         offered = stepplans.three_plans(cx.need_rated, cx.ratings, cx.factor, cx.net, cx.pf2, cx.light_net)
     except InputError as e:

@@ -74,7 +74,7 @@ FIELDS = [
           help="Deviation from rated capacitance, e.g. −8 for a maker's replacement limit of 8 % loss."),
     Field("band_hi", "Highest acceptable", unit="%", default="10", min=-99, max=200,
           show_when={"field": "band", "in": ["custom"]}),
-    Field("meter_acc", "Meter accuracy", unit="± % of reading", default=fmt.sig(hv.DEFAULT_METER_ACCURACY_PERCENT),
+    Field("meter_acc", "Meter accuracy (± % of reading)", unit="%", default=fmt.sig(hv.DEFAULT_METER_ACCURACY_PERCENT),
           min=0, max=19,
           help="From the meter's data sheet (capacitance meters are typically within 1–2 %; for line currents, the clamp's "
                "accuracy). A reading that could be inside the band given the meter is not condemned."),
