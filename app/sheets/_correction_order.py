@@ -112,6 +112,18 @@ def _held_text(h) -> str:
     return f"{fmt.sig(h.kvar_in)} kvar in, PF {_pf_text(h.pf, h.sense)}"
 
 
+def _steps_text(steps, units) -> str:
+    """'10, 10 steps of 20' — runs of equal steps said once; a step of several units as '100 (2 × 50)'."""
+    runs: list = []
+    for s, u in zip(steps, units):
+        one = fmt.sig(s) + (f" ({_units_text(u)})" if len(u) > 1 else "")
+        if runs and runs[-1][0] == one:
+            runs[-1][1] += 1
+        else:
+            runs.append([one, 1])
+    return ", ".join(one if n == 1 else f"{n} steps of {one}" for one, n in runs)
+
+
 def plans(out, cx):
     """The three step plans (least excess, fewest steps, finest resolution) as a table, and a
     hint at the closest one when the chosen pattern orders too much."""
@@ -133,11 +145,11 @@ def plans(out, cx):
     cx.plans = offered
     rows = []
     for pl in offered:
-        steps_txt = ", ".join(fmt.sig(s) + (f" ({_units_text(u)})" if len(u) > 1 else "") for s, u in zip(pl.plan.steps, pl.plan.units))
+        steps_txt = _steps_text(pl.plan.steps, pl.plan.units)
         rows.append([stepplans.KIND_WORDS[pl.kind], steps_txt, str(sum(len(u) for u in pl.plan.units)),
                      f"{fmt.sig(pl.plan.total)} (+{fmt.sig(100 * pl.excess_fraction, 2)} %)",
                      _held_text(pl.full), _held_text(pl.light)])
-    cols = ["Plan", "Steps, kvar rated", "Units", "Total kvar rated (excess)", "Full load: controller holds",
+    cols = ["Plan", "Steps, kvar rated (first step first)", "Units", "Total kvar rated (excess)", "Full load: controller holds",
             "Lightest load: controller holds"]
     out.table("Step plans", cols, rows,
               note=f"Searched over equal, 1:2:2… and binary patterns of {stepplans.MIN_AUTO_STEPS} steps and more, from "
