@@ -17,6 +17,10 @@ SCREENING = (
     "Resonance and harmonic checks here are screening estimates; a harmonic study of the real "
     "installation settles the design. Resonance can overheat and destroy capacitors, fuses and transformers."
 )
+RECLOSING = (
+    "A step that drops out stays charged: the controller must wait the reconnection delay before switching "
+    "it in again; do not shorten it unless fast-discharge devices are fitted."
+)
 TEST_DEENERGISED = (
     "Measure capacitance only on units that are de-energised, isolated, discharged and shorted, then "
     "unshorted for the test; follow the maker's instructions for the meter and the capacitor."

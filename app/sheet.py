@@ -453,8 +453,13 @@ class Outcome:
             r["group"] = group
         self.results.append(r)
 
-    def table(self, title: str, columns: list[str], rows: list[list[str]], note: str = "") -> None:
-        self.tables.append({"title": title, "columns": columns, "rows": rows, "note": note})
+    def table(self, title: str, columns: list[str], rows: list[list[str]], note: str = "", text: str = "") -> None:
+        """Add a table. ``text``, when given, is the same table as plain lines for the text
+        report and the shared summary (e.g. an order list that reads as a purchase request)."""
+        t = {"title": title, "columns": columns, "rows": rows, "note": note}
+        if text:
+            t["text"] = text
+        self.tables.append(t)
 
     def warn(self, text: str) -> None:
         if text not in self.warnings:

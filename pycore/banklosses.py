@@ -12,6 +12,7 @@ import math
 from dataclasses import dataclass
 
 from .errors import InputError, guarded
+from .references import ref
 
 CAPACITOR_W_PER_KVAR = 0.5
 """Losses of LV capacitor units with their discharge resistors [W/kvar] (from memory; makers quote 0.2–0.5)."""
@@ -19,8 +20,7 @@ CAPACITOR_W_PER_KVAR = 0.5
 REACTOR_W_PER_KVAR = 6.0
 """Losses of a detuning reactor per kvar of its step [W/kvar] (from memory; makers quote about 4–8)."""
 
-SOURCE = ("Typical losses from makers' datasheets: capacitors about 0.2–0.5 W/kvar, detuning reactors about "
-          "4–8 W/kvar (from memory); enter the maker's figures when known")
+SOURCE = ref("practice_bank_losses")
 
 
 def _nonneg(v, what: str) -> float:

@@ -14,6 +14,7 @@ import math
 from dataclasses import dataclass
 
 from .errors import InputError, guarded
+from .references import ref
 
 MAX_PARALLEL = 6
 """Most parallel runs offered before the lookup asks for a busbar or a split bank (common practice)."""
@@ -40,8 +41,8 @@ class CableTable:
     parallel_from: str | None
 
 
-_NEC = "NEC Table 310.16, copper, 75 °C column (from memory)"
-_IEC = "IEC 60364-5-52 Table B.52.4, reference method C, copper, PVC, 3 loaded conductors (from memory)"
+_NEC = ref("nec310_16")
+_IEC = ref("iec60364_c")
 
 NEC_CU_75 = CableTable(
     "nec_cu75", "Copper, 75 °C (NEC Table 310.16)",

@@ -27,6 +27,7 @@ import math
 from dataclasses import dataclass
 
 from .errors import InputError, guarded
+from .references import ref
 
 TWO_PI = 2.0 * math.pi
 SQRT2 = math.sqrt(2.0)
@@ -44,8 +45,8 @@ class Rule:
 
 
 RULES = {
-    "nec": Rule("nec", 50.0, 60.0, "NFPA 70 (NEC) 460.6: 50 V or less within 1 min, capacitors rated 1000 V or less"),
-    "iec": Rule("iec", 75.0, 180.0, "IEC 60831-1: 75 V or less within 3 min from √2 × rated voltage (from memory)"),
+    "nec": Rule("nec", 50.0, 60.0, ref("nec460_6")),
+    "iec": Rule("iec", 75.0, 180.0, ref("iec60831_discharge")),
 }
 
 RECLOSE_FRACTION = 0.10

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 from .bankhealth import (IEC_RATIO_LIMIT, OPEN_FRACTION, Band, between_from_delta, between_from_wye, element_voltages,
                          per_phase_from_between, per_phase_from_currents)
 from .errors import InputError, guarded
+from .references import ref
 
 SQRT3 = math.sqrt(3.0)
 
@@ -40,14 +41,16 @@ DEFAULT_METER_ACCURACY_PERCENT = 2.0
 """± % of reading assumed for a capacitance meter when none is entered (upper end of the 1–2 %
 typical of such meters, common practice)."""
 
+DERIVED_ACCURACY_MAX = 50.0
+"""Above this ± % the error carried into a derived phase value says nothing (a phase near open):
+use the meter's own figure instead (this app's choice)."""
+
 REPLACE_LOSS_PERCENT = 10.0
 """Loss of capacitance [% of rated] beyond which a low-voltage unit is replaced when the maker
 gives no limit (common practice; makers quote 5–10 %, their figure governs)."""
 
-SOURCE_REPLACE_PRACTICE = (f"Common practice: replace a unit that has lost more than {REPLACE_LOSS_PERCENT:g} % "
-                           "of its capacitance (makers quote 5–10 %; the maker's limit governs)")
-SOURCE_RATIO = ("IEC 60831-1: ratio of largest to smallest capacitance measured between the line terminals "
-                f"of a three-phase unit ≤ {IEC_RATIO_LIMIT} (from memory)")
+SOURCE_REPLACE_PRACTICE = ref("practice_replace")
+SOURCE_RATIO = ref("iec60831_ratio")
 
 STATE_WORDS = {
     "tolerance": "Within the factory tolerance",
@@ -93,9 +96,9 @@ def phase_verdict(percent_of_expected: float, band: Band,
         if not (isinstance(maker_replace_percent, (int, float)) and math.isfinite(maker_replace_percent)) \
                 or not -100 < maker_replace_percent < 0:
             raise InputError("The maker's replacement limit is a loss: between −100 % and 0 %, e.g. −5.")
-        limit, crit = float(maker_replace_percent), f"Maker's replacement limit {maker_replace_percent:+g} %"
+        limit, crit = float(maker_replace_percent), f"Maker's (or your own) replacement limit {maker_replace_percent:+g} %".replace("-", "−")
     else:
-        limit, crit = -REPLACE_LOSS_PERCENT, SOURCE_REPLACE_PRACTICE
+        limit, crit = -REPLACE_LOSS_PERCENT, f"Replacement limit −{REPLACE_LOSS_PERCENT:g} % ({SOURCE_REPLACE_PRACTICE})"
     how = f"the meter's ±{acc:g} %"
     if derived_accuracy_percent is not None:
         d = derived_accuracy_percent

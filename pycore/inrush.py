@@ -33,6 +33,7 @@ from dataclasses import dataclass
 
 from .detuning import design_branch
 from .errors import InputError, guarded
+from .references import ref
 
 TWO_PI = 2.0 * math.pi
 SQRT_2_3 = math.sqrt(2.0 / 3.0)
@@ -46,8 +47,8 @@ CAPACITOR_INRUSH_MULTIPLE = 100.0
 """Peak inrush a capacitor tolerates, as a multiple of its rated rms current I_N [-]
 (IEC 60831-1, from memory; makers may state their own limit, which governs)."""
 
-SOURCE_INRUSH = "IEEE Std 1036 (switching transients of shunt capacitors), I_pk = V_LL·√(2/3)·√(C_eq/L_eq) (from memory)"
-SOURCE_LIMIT = "IEC 60831-1: peak inrush ≤ 100 × I_N (from memory); the capacitor and contactor makers' limits govern"
+SOURCE_INRUSH = ref("ieee1036_inrush")
+SOURCE_LIMIT = ref("iec60831_inrush")
 
 
 def _pos(v, what: str) -> float:

@@ -163,7 +163,12 @@ def parse_quantity(text: str, unit: str = "", *, allow_prefix_only: bool = True)
     value, rest = split_number(text)
     if rest == "":
         return value
-    fam_field, scale_field = unit_scale(unit) if unit else ("", 1.0)
+    if unit and rest == unit.replace(" ", ""):  # the field's own unit as shown beside it (also m, W/kvar)
+        return value
+    try:
+        fam_field, scale_field = unit_scale(unit) if unit else ("", 1.0)
+    except InputError:  # a unit outside the families above: only its own spelling is read
+        raise InputError(f"Enter the value in {unit}, or a plain number.") from None
     if allow_prefix_only and rest in PREFIXES:
         base = 1.0 if not unit else scale_field
         return value * PREFIXES[rest] / base

@@ -250,6 +250,38 @@ def order_rows(bank: BankDesign) -> list:
     return rows
 
 
+@guarded
+def merge_alike_steps(rows) -> list:
+    """The rows of :func:`order_rows` with runs of consecutive steps that need the same parts
+    (same items and specifications) merged into one section, 'Steps 2–6 (5 alike)', with the
+    quantities multiplied: what to buy, not what to read five times. Bank rows unchanged."""
+    blocks: list[tuple[list[int], list]] = []
+    for r in rows:
+        if r.section.startswith("Step "):
+            n = int(r.section.split()[1])
+            if blocks and blocks[-1][0][-1] == n:
+                blocks[-1][1].append(r)
+            else:
+                blocks.append(([n], [r]))
+        else:
+            blocks.append(([], [r]))
+    merged: list[tuple[list[int], list]] = []
+    for nums, rs in blocks:
+        if nums and merged and merged[-1][0] and merged[-1][0][-1] == nums[0] - 1 and \
+                [(x.item, x.quantity, x.spec) for x in merged[-1][1]] == [(x.item, x.quantity, x.spec) for x in rs]:
+            merged[-1][0].append(nums[0])
+        else:
+            merged.append((list(nums), list(rs)))
+    out = []
+    for nums, rs in merged:
+        if len(nums) <= 1:
+            out += rs
+            continue
+        sec = f"Steps {nums[0]}–{nums[-1]} ({len(nums)} alike)"
+        out += [OrderRow(sec, r.item, r.quantity * len(nums), r.spec, r.basis) for r in rs]
+    return out
+
+
 COLUMNS = ("Section", "Item", "Qty", "Specification", "Basis")
 
 

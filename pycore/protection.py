@@ -14,6 +14,7 @@ from dataclasses import dataclass
 
 from .capacitor import PROTECTION_RANGE, conductor_basis
 from .errors import InputError, guarded
+from .references import cite, ref
 
 CONFIRM = "Confirm with the capacitor and device makers' instructions."
 
@@ -28,9 +29,9 @@ BREAKER_MAGNETIC_MIN = 10.0
 """Short-circuit (magnetic) setting of a breaker feeding capacitors, at least × I_N, so that it
 rides through the inrush (common practice)."""
 
-SOURCE_FUSE = ("gG fuses 1.43–1.65 × I_N (common practice); NEC 460.8(B): overcurrent device "
-               "rated or set as low as practicable")
-SOURCE_BREAKER = "Breaker thermal setting 1.35–1.65 × I_N, magnetic ≥ 10 × I_N (common practice); NEC 460.8(B)"
+SOURCE_FUSE = cite("practice_fuse", "nec460_8")
+SOURCE_BREAKER = cite("practice_fuse", "nec460_8")
+SOURCE_RATINGS = {"iec": ref("iec60269"), "nec": ref("nec240_6")}
 
 IEC_FUSE_RATINGS = (2, 4, 6, 10, 16, 20, 25, 32, 40, 50, 63, 80, 100, 125, 160, 200, 250, 315, 400, 500,
                     630, 800, 1000, 1250)
@@ -122,8 +123,7 @@ class Contactor:
 
 CAPACITOR_DUTY = "capacitor-duty contactor with damping (pre-insertion) resistors, AC-6b"
 STANDARD_DUTY = "standard contactor (AC-3 / AC-6b)"
-SOURCE_CONTACTOR = ("Utilization category AC-6b (switching capacitor banks), IEC 60947-4-1 (from memory); "
-                    "capacitor-duty contactors for back-to-back steps, standard ones behind a detuning reactor (common practice)")
+SOURCE_CONTACTOR = cite("iec60947_ac6b", "practice_contactor")
 
 
 @guarded

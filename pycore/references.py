@@ -19,7 +19,11 @@ _IEEE519 = "IEEE Std 519-2014, harmonic control in electric power systems"
 _IEEE1036 = "IEEE Std 1036, guide for the application of shunt power capacitors"
 _IEC60831 = "IEC 60831-1, shunt power capacitors of the self-healing type for AC systems up to 1000 V"
 _IEC61642 = "IEC 61642, industrial AC networks affected by harmonics: filters and shunt capacitors"
-_NEC = "NFPA 70 (NEC), Article 460"
+_NFPA70 = "NFPA 70 (NEC)"
+_NEC = f"{_NFPA70}, Article 460"
+_IEC60269 = "IEC 60269-1, low-voltage fuses"
+_IEC60364 = "IEC 60364-5-52, low-voltage installations: wiring systems"
+_IEC60947 = "IEC 60947-4-1, contactors and motor-starters"
 _NEMA_MG1 = "NEMA MG 1, motors and generators"
 
 REFERENCES: dict[str, str] = {
@@ -44,6 +48,34 @@ REFERENCES: dict[str, str] = {
     "nec460_8": f"{_NEC}, 460.8 (conductors, disconnect, overcurrent protection)",
     "nec460_9": f"{_NEC}, 460.9 (overload setting with the improved power factor)",
     "nema_mg1": f"{_NEMA_MG1} (from memory)",
+    # switching, discharge, protection and cable (the bank's order list)
+    "ieee1036_inrush": f"{_IEEE1036}, switching transients: I_pk = V_LL·√(2/3)·√(C_eq/L_eq), "
+                       "f = 1/(2π·√(L_eq·C_eq)) (from memory)",
+    "iec60831_inrush": f"{_IEC60831}: peak inrush at most 100 × I_N (from memory), unless the capacitor or contactor maker gives a lower limit",
+    "iec60831_discharge": f"{_IEC60831}: 75 V or less within 3 min from √2 × rated voltage (from memory)",
+    "iec60831_ratio": f"{_IEC60831}: a limit on the largest ÷ smallest capacitance measured between the line "
+                      "terminals of a three-phase unit (from memory)",
+    "nec460_6": f"{_NEC}, 460.6 (discharge: 50 V or less within 1 min, capacitors rated 1000 V or less)",
+    "nec240_6": f"{_NFPA70}, 240.6(A) standard ampere ratings of fuses and breakers (from memory)",
+    "nec310_16": f"{_NFPA70}, Table 310.16, copper, 75 °C column (from memory)",
+    "iec60364_c": f"{_IEC60364}, Table B.52.4, reference method C, copper, PVC, 3 loaded conductors (from memory)",
+    "iec60269": f"{_IEC60269}, preferred rated currents (from memory)",
+    "iec60947_ac6b": f"{_IEC60947}, utilization category AC-6b, switching capacitor banks (from memory)",
+    "practice_fuse": "Common practice: gG fuses 1.43–1.65 × I_N, breakers 1.35–1.65 × I_N with magnetic release at least "
+                     "10 × I_N, rated or set as low as practicable (NEC 460.8(B)), confirmed with the capacitor and device makers",
+    "practice_contactor": "Common practice: capacitor-duty contactors with damping resistors for steps switched back to back, "
+                          "standard ones behind a detuning reactor",
+    "practice_reclose": "Common practice: a step is switched in again only below about 10 % of its peak voltage, "
+                        "unless the controller maker says otherwise",
+    "practice_ck": "Common practice for step controllers: response C/k = the smallest step's current on the CT secondary",
+    "practice_uh_per_m": "Common practice: about 0.3–0.8 µH per metre of run for single-core cables or panel busbars",
+    "practice_bank_losses": "Makers' datasheets, typical: capacitors about 0.2–0.5 W/kvar, detuning reactors about "
+                            "4–8 W/kvar (from memory), unless the maker of the units bought gives its own",
+    "practice_replace": "Common practice: replace a unit that has lost more capacitance than makers allow "
+                        "(they quote 5–10 %, and the maker's own limit comes first)",
+    "practice_meter": "Common practice: capacitance meters are typically within 1–2 % of reading",
+    "practice_controller": "Common practice: a step controller stops adding steps at the target and never holds a "
+                           "combination that leads",
     # practice and this app
     "practice": "Common practice (no single published source)",
     "practice_makers": "Common practice (makers' catalogues and trade tables, not a standard)",

@@ -24,7 +24,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .banksteps import MAX_STEPS, Combination, StepPlan, combinations, plan_steps, step_weights
+from .banksteps import MANY_UNITS_PER_STEP, MAX_STEPS, Combination, StepPlan, combinations, plan_steps, step_weights
 from .correction import Load, tan_phi
 from .errors import InputError, guarded
 
@@ -32,7 +32,7 @@ ACCEPTABLE_EXCESS = 0.15
 """A plan more than this fraction above the need is offered only when nothing closer exists
 (common practice: the bank is sized to the need, not to the next large pattern)."""
 
-UNITS_PER_STEP_LIMIT = 6
+UNITS_PER_STEP_LIMIT = MANY_UNITS_PER_STEP
 """More units than this in parallel in one step is unusual (common practice: one to a few)."""
 
 MIN_AUTO_STEPS = 2

@@ -267,6 +267,16 @@ BAD = [
     ("load_profile", "share", "30", {}, "at least 50"),
     ("load_profile", "steps", "25, -5", {}, "item 2"),
     ("load_profile", "fixed_kvar", "0", {"bank": "fixed"}, "above 0"),
+    # issue 16: switching and order list, bank health verdicts, the bank's own losses
+    ("correction", "run_m", "-2", {}, "at least"),
+    ("correction", "run_m", "2 km", {}, "in m"),
+    ("correction", "contactor_peak", "0", {}, "above 0"),
+    ("correction", "ct_primary", "1000/5", {}, ""),
+    ("correction", "fast_s", "0", {}, "above 0"),
+    ("bank_health", "meter_acc", "25", {}, "at most"),
+    ("bank_health", "maker_limit", "5", {}, ""),
+    ("savings", "cap_w", "-0.5", {}, "at least"),
+    ("savings", "bank_detuned", "300", {"bank_kvar": "200"}, "cannot exceed"),
 ]
 
 # Words a message for a person never contains (Python internals leaking through).

@@ -66,7 +66,7 @@ def test_kvar_needed_and_power_factor_reached_against_numpy():
     q2 = p * np.tan(np.arccos(0.95))
     assert val(r, "q_need") == pytest.approx(q1 - q2, rel=1e-9)
     qd = val(r, "q_delivered")
-    assert val(r, "pf_after") == pytest.approx(p / np.hypot(p, q1 - qd), rel=1e-9)
+    assert val(r, "pf_all_in") == pytest.approx(p / np.hypot(p, q1 - qd), rel=1e-9)
     assert qd >= q1 - q2
 
 

@@ -58,8 +58,10 @@ def test_between_readings_resolved_like_numpy():
     assert out["ok"], out
     for k, ck in enumerate(c, 1):
         assert res(out, f"c_{k}")["value"] == pytest.approx(ck, rel=1e-6)
-    # expected C = Q/(3ωV²) = 331.573 µF (first principles); 290/331.573 = 87.46 % → below −5 %
-    assert res(out, "verdict_3")["status"] == "fail"
+    # expected C = Q/(3ωV²) = 331.573 µF (first principles); 290/331.573 = 87.46 % → below −5 % even with the
+    # meter's ±2 % carried through (about ±5 %), yet not surely past the 10 % replacement limit (common
+    # practice): drifted, a warning (the factory tolerance is not a replace criterion)
+    assert res(out, "verdict_3")["status"] == "warn"
     assert res(out, "verdict_1")["status"] == "ok"
     # real kvar: Σ ωCV² at 400 V = 2π·50·(329 + 327 + 290) µF·400² / 1000 = 47.55 kvar
     assert res(out, "q_total")["value"] == pytest.approx(W50 * sum(c) * 400**2 / 1000, rel=1e-6)

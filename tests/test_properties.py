@@ -710,12 +710,13 @@ CASES.update({
     "orderlist.order_rows": A(BANK),
     "orderlist.as_table": A(ROWS),
     "orderlist.as_text": A(ROWS),
+    "orderlist.merge_alike_steps": A(ROWS),
 })
 
 # The dynamic-programming searches are the slow ones: fewer examples keep the file quick.
 SLOW = {"banksteps.best_step_count": 40, "banksteps.plan_steps": 100, "busscan.scan": 60, "busscan.find_peak": 100,
         "busscan.supply_scan": 40, "stepplans.three_plans": 30, "orderlist.design_bank": 60, "orderlist.order_rows": 20,
-        "orderlist.as_table": 10, "orderlist.as_text": 10, "inrush.limiting_inductance_h": 80,
+        "orderlist.as_table": 10, "orderlist.as_text": 10, "orderlist.merge_alike_steps": 10, "inrush.limiting_inductance_h": 80,
         "harmonicstudy.demo_six_step": 3, "harmonicstudy.recommend": 30,
         "harmonicstudy.run_study": 80, "harmonicbus.impedance_curve": 60,
         "profile_demo.read_and_analyse": 40, "profile_read.read_profile": 100}

@@ -3,6 +3,7 @@
 import { h, fromTree, svgNode, clear } from "./dom.js";
 
 const unitText = (u) => (u ? ` (${u})` : "");
+const STACK_ABOVE_COLUMNS = 3; // a results table with more columns is drawn as cards on a narrow screen
 
 function defaultOf(f) {
   return f.default ?? "";
@@ -204,9 +205,11 @@ export function renderResults(el, res, { onLink } = {}) {
   }
   for (const t of res.tables || []) {
     el.append(h("h3", { text: t.title }));
-    el.append(h("div", { class: "tbl-scroll", tabindex: "0", role: "region", "aria-label": t.title },
+    // wide tables become one card per row on a narrow screen (app.css), each cell named by its column
+    const wide = t.columns.length > STACK_ABOVE_COLUMNS;
+    el.append(h("div", { class: `tbl-scroll${wide ? " stack" : ""}`, tabindex: "0", role: "region", "aria-label": t.title },
       h("table", {}, h("thead", {}, h("tr", {}, t.columns.map((c) => h("th", { scope: "col", text: c })))),
-        h("tbody", {}, t.rows.map((r) => h("tr", {}, r.map((c) => h("td", { text: c }))))))));
+        h("tbody", {}, t.rows.map((r) => h("tr", {}, r.map((c, i) => h("td", { text: c, "data-label": t.columns[i] || "" }))))))));
     if (t.note) el.append(h("p", { class: "muted", text: t.note }));
   }
   for (const fig of res.figures || []) {

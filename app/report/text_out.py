@@ -32,6 +32,11 @@ def render(job, recs, app_version, date, full, one_entry) -> str:
         L.append(f"   Worksheet: {one(r['title'] or r['worksheet'])}" + (f" ({one(r['worksheet'])})" if r["title"] else ""))
         if r["problem"]:
             L.append(f"   ! {one(r['problem'])}")
+        worded = [t for t in (out.get("tables") or []) if t.get("text")] if out.get("ok") else []
+        if not full:  # the short summary (shared, e-mailed) leads with what to buy
+            for t in worded:
+                L.append(f"   {one(t.get('title', ''))}:")
+                L += _indent(t["text"], "       ")
         L.append("   Inputs:")
         if r["inputs"]:
             for it in r["inputs"]:
@@ -65,6 +70,11 @@ def render(job, recs, app_version, date, full, one_entry) -> str:
                     L.append(f"       method: {one(res.get('method', ''))}")
                     L.append(f"       source: {one(res.get('source', ''))}")
             for t in out.get("tables") or []:
+                if t.get("text"):  # a table with its own plain wording (e.g. an order list)
+                    if full:
+                        L.append(f"   {one(t.get('title', ''))}:")
+                        L += _indent(t["text"], "       ")
+                    continue
                 L.append(f"   Table: {one(t.get('title', ''))}")
                 L.append("       " + " | ".join(one(c) for c in t.get("columns") or []))
                 for row in t.get("rows") or []:

@@ -8,6 +8,7 @@ import math
 
 from pycore import banksteps, capacitor, correction, supply
 from pycore.errors import InputError
+from pycore.stepplans import UNITS_PER_STEP_LIMIT
 
 from .. import cautions, fmt
 from ..sheet import FieldError
@@ -45,20 +46,17 @@ def rating_and_selection_checks(out, cx):
 
     # --- selection checks at full load
     if after.sense == "leading":
-        out.warn(f"The bank leads at full load (PF {_pf_text(pf_after, 'leading')}): the units you can buy are too coarse "
-                 "for this load. Add smaller ratings to the list" + (" or use fewer steps." if bank == "auto" else "."))
-    if need_rated > 0 and (total_rated - need_rated) > banksteps.EXCESS_WARN_FRACTION * need_rated and total_rated - need_rated > min(ratings):
-        hint = "Fewer steps, another pattern or more unit ratings would fit closer."
-        if bank == "auto" and pattern != "custom":
-            found = banksteps.best_step_count(need_rated, ratings, pattern)
-            if found and found[0] != len(steps_rated) and found[1].total < total_rated - 1e-9:
-                n_best, p_best = found
-                hint = (f"With {n_best} step{'s' if n_best > 1 else ''} in the same pattern the bank would be "
-                        f"{', '.join(fmt.sig(x) for x in p_best.steps)} kvar ({fmt.sig(p_best.total)} kvar rated).")
-        out.warn(f"The step plan orders {fmt.sig(100 * (total_rated - need_rated) / need_rated, 3)} % more than needed. " + hint)
+        if bank == "fixed":
+            out.warn(f"The bank leads at full load (PF {_pf_text(pf_after, 'leading')}): the units you can buy are too coarse "
+                     "for this load. Add smaller ratings to the list.")
+    if bank == "fixed" and need_rated > 0 and (total_rated - need_rated) > banksteps.EXCESS_WARN_FRACTION * need_rated \
+            and total_rated - need_rated > min(ratings):
+        out.warn(f"The fixed bank orders {fmt.sig(100 * (total_rated - need_rated) / need_rated, 3)} % more than needed: "
+                 "more unit ratings would fit closer.")
+    # an automatic bank's excess is weighed against the three step plans (_correction_order.plans)
 
     most = max((len(u) for u in step_units), default=0)
-    if most > banksteps.MANY_UNITS_PER_STEP:
+    if most > UNITS_PER_STEP_LIMIT:
         out.warn(f"One step of this plan is {most} units in parallel. A step is usually one to a few units: add a larger "
                  "unit rating to the list, or leave out the smallest, for fewer units, connections and fuses.")
 
@@ -80,7 +78,7 @@ def light_load(out, cx):
         light_check = banksteps.light_load_check(light_net, steps_sys, combos=combos)
         full_light = light_net.corrected(delivered)
         out.result("pf_light", f"Power factor at the lightest load ({fmt.sig(light_p)} kW), whole bank in", full_light.pf, "",
-                   display=_pf_text(full_light.pf, full_light.sense), key=True,
+                   display=_pf_text(full_light.pf, full_light.sense), key=bank == "fixed",
                    status="warn" if full_light.sense == "leading" else "ok", group="",
                    method="PF = P_min/√(P_min² + (Q_min − Q_C)²)", source=SRC_TRIANGLE)
         if light_check.leading:

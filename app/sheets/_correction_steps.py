@@ -220,8 +220,9 @@ def _load_method(basis: str) -> str:
     }[basis]
 
 
-def read_inputs(ins):
-    """Read every field the sizing uses; None when a field is bad (its message is recorded)."""
+def read_inputs(ins, *more):
+    """Read every field the sizing uses; None when a field is bad (its message is recorded).
+    Each of ``more`` (a helper module's reader, ``fn(ins, cx)``) reads its own fields too."""
     v = ins.num("v_ll")
     f = ins.num("f")
     phases = 3 if ins.choice("phases") == "3" else 1
@@ -246,6 +247,9 @@ def read_inputs(ins):
     tx_kva = ins.num("tx_kva")
     tx_z = ins.num("tx_z")
     fault_mva = ins.num("fault_mva")
+    cx = SimpleNamespace()
+    for read in more:
+        read(ins, cx)
     if ins.errors:
         return
     existing = existing or 0.0
@@ -256,7 +260,6 @@ def read_inputs(ins):
         raise FieldError(missing, "Enter both the transformer rating and its impedance, or leave both blank.")
     if fault_mva is not None and tx_kva is None:
         raise FieldError("tx_kva", "Enter the transformer rating and impedance to use the utility fault level.")
-    cx = SimpleNamespace()
     cx.bank, cx.basis, cx.cap_f, cx.cap_v, cx.conn, cx.custom_text = bank, basis, cap_f, cap_v, conn, custom_text
     cx.existing, cx.existing_in, cx.f, cx.fault_mva, cx.light_p, cx.light_pf = existing, existing_in, f, fault_mva, light_p, light_pf
     cx.n_steps, cx.pattern, cx.pf2, cx.phases, cx.profile, cx.ratings = n_steps, pattern, pf2, phases, profile, ratings

@@ -6,9 +6,10 @@ from __future__ import annotations
 import math
 
 from pycore import bankhealth as bh
+from pycore import healthverdict as hv
 from pycore.capacitor import IEEE18_VOLTAGE
 from pycore.errors import InputError
-from pycore.references import cite, ref
+from pycore.references import SEPARATOR, cite, ref
 
 from .. import cautions, fmt
 from .. import quantities as Q
@@ -73,7 +74,35 @@ FIELDS = [
           help="Deviation from rated capacitance, e.g. −8 for a maker's replacement limit of 8 % loss."),
     Field("band_hi", "Highest acceptable", unit="%", default="10", min=-99, max=200,
           show_when={"field": "band", "in": ["custom"]}),
+    Field("meter_acc", "Meter accuracy (± % of reading)", unit="%", default=fmt.sig(hv.DEFAULT_METER_ACCURACY_PERCENT),
+          min=0, max=19,
+          help="From the meter's data sheet (capacitance meters are typically within 1–2 %; for line currents, the clamp's "
+               "accuracy). A reading that could be inside the band given the meter is not condemned."),
+    Field("maker_limit", "Maker's replacement limit (optional)", unit="%", default="", required=False,
+          min=-99, max=0, max_open=True,
+          help=f"The capacitance loss at which the capacitor maker says to replace the unit, e.g. −5. Blank: "
+               f"{fmt.sig(hv.REPLACE_LOSS_PERCENT)} % loss (common practice)."),
 ]
+
+_STATUS = {"tolerance": "ok", "drifted": "warn", "replace": "fail"}
+
+
+def _verdict_source(pv, band, maker) -> str:
+    """The references behind a phase verdict: the band, the maker's limit or common practice, the meter."""
+    if pv.direction == "open":
+        return ref("practice")
+    if pv.state == "tolerance":
+        return SEPARATOR.join([band.source, ref("practice_meter")])
+    limit = ref("input") if maker is not None else ref("practice_replace")
+    return SEPARATOR.join([band.source, limit, ref("practice_meter")]) if pv.state == "drifted" else \
+        SEPARATOR.join([limit, ref("practice_meter")])
+
+
+def _verdict_display(pv) -> str:
+    if pv.direction == "open":
+        return f"{bh.VERDICT_WORDS['open']}: {hv.STATE_WORDS['replace'].lower()}"
+    word = hv.STATE_WORDS[pv.state]
+    return word + {"low": " (low)", "high": " (high)"}.get(pv.direction, "")
 
 
 def _reading(ins, name: str, what: str):
@@ -117,7 +146,7 @@ def _bars(names, percents, verdicts, band):
     def px(v):
         return left + (min(max(v, x_min), x_max) - x_min) / (x_max - x_min) * pw
 
-    desc = "; ".join(f"{n}: {fmt.sig(p, 3)} % of expected, {bh.VERDICT_WORDS[v].lower()}" for n, p, v in zip(names, percents, verdicts))
+    desc = "; ".join(f"{n}: {fmt.sig(p, 3)} % of expected, {hv.STATE_WORDS[v].lower()}" for n, p, v in zip(names, percents, verdicts))
     svg = Svg(w, h, "Each phase as % of expected", desc + f". Band {fmt.sig(lo_pct, 3)} % to {fmt.sig(hi_pct, 3)} %.")
     svg.rect(0, 0, w, h, "fp-bg")
     svg.text(left, 20, "Capacitance, % of expected", size=13, weight="600")
@@ -125,7 +154,7 @@ def _bars(names, percents, verdicts, band):
     for i, (n, p, v) in enumerate(zip(names, percents, verdicts)):
         y = top + i * row
         svg.text(left - 8, y + 22, n, anchor="end", size=13)
-        svg.rect(left, y + 8, max(1.0, px(p) - left), 20, "fp-s1-fill" if v == "ok" else "fp-s3-fill")
+        svg.rect(left, y + 8, max(1.0, px(p) - left), 20, "fp-s1-fill" if v == "tolerance" else "fp-s3-fill")
         svg.text(px(p) + 6, y + 22, f"{fmt.sig(p, 3)} %", size=12)
     y_axis = top + row * len(names)
     svg.line(left, y_axis, left + pw, y_axis, "fp-axis")
@@ -156,6 +185,8 @@ def compute(ins, out):
     v_sys_in = ins.num("v_sys")
     f_sys_in = ins.num("f_sys")
     band_key = ins.choice("band")
+    meter_acc = ins.num("meter_acc")
+    maker = ins.num("maker_limit")
     lo = hi = None
     if band_key == "custom":
         lo, hi = ins.num("band_lo"), ins.num("band_hi")
@@ -229,6 +260,19 @@ def compute(ins, out):
 
     pct = [100.0 * ck / exp.c_phase for ck in c]
     verdicts = [bh.verdict(p, band) for p in pct]
+    derived = [None, None, None]
+    try:
+        if mode == "between" and min(c) > 0:
+            derived = list(hv.uncertainty_between(raw, conn, meter_acc))
+        elif mode == "current" and min(c) > 0:
+            derived = list(hv.uncertainty_currents(raw, v_meas, f_sys, conn, meter_acc))
+        # near an open phase the propagated error runs away: the meter's own figure stands there
+        derived = [d if d is not None and math.isfinite(d) and d < hv.DERIVED_ACCURACY_MAX else None for d in derived]
+        # an own band's lower edge is the user's own replacement limit unless the maker's is entered
+        limit = maker if maker is not None or band_key != "custom" or band.lo >= 0 else band.lo
+        pvs = [hv.phase_verdict(p, band, meter_acc, limit, d) for p, d in zip(pct, derived)]
+    except InputError as e:
+        raise FieldError("meter_acc", str(e)) from None
     open_wye = conn == "wye" and min(c) <= 0.0
     first = {"between": "m12", "phase": "c1", "current": "i1"}[mode]
     if max(c) <= 0.0:
@@ -264,13 +308,17 @@ def compute(ins, out):
     g = "Each phase"
     out.result("band", "Tolerance band", None, "%", display=band.label, group=g,
                method="deviation of measured from expected capacitance, edges inside the band", source=band.source)
-    for k, (n, ck, p, v, q) in enumerate(zip(names, c, pct, verdicts, q_ph), 1):
-        status = {"ok": "ok", "high": "warn"}.get(v, "fail")
+    out.result("bank_state", "The bank", None, "", key=True, group=g, status=_STATUS[hv.bank_state(pvs)],
+               display=hv.STATE_WORDS[hv.bank_state(pvs)],
+               method="The worst phase: replace, then drifted, then within the factory tolerance",
+               source=cite("practice_replace", "practice_meter"))
+    for k, (n, ck, p, pv, q) in enumerate(zip(names, c, pct, pvs, q_ph), 1):
         dev = p - 100.0
-        out.result(f"verdict_{k}", f"Phase {n}", p, "%", key=True, status=status, group=g,
-                   display=f"{bh.VERDICT_WORDS[v]}: {fmt.si(ck, 'F', 4)}, {fmt.sig(p, 4)} % of expected "
-                           f"({'+' if dev >= 0 else '−'}{fmt.sig(abs(dev), 3)} %)",
-                   method=f"% = 100·C/C_expected; C {how}", source=band.source if v != "open" else SRC_PRACTICE)
+        out.result(f"verdict_{k}", f"Phase {n}", p, "%", key=True, status=_STATUS[pv.state], group=g,
+                   display=f"{_verdict_display(pv)}: {'+' if dev >= 0 else '−'}{fmt.sig(abs(dev), 2)} % "
+                           f"± {fmt.sig(pv.uncertainty, 2)} %",
+                   method=f"Criterion: {pv.criterion}. % = 100·C/C_expected; C {how}",
+                   source=_verdict_source(pv, band, limit))
         out.result(f"c_{k}", f"C of phase {n}", ck, "F", si=True, group=g, method=how, source=SRC_CIRCUIT)
         if not open_wye:
             out.result(f"q_{k}", f"Output of phase {n} at {fmt.sig(v_sys)} V", q, "kvar", group=g,
@@ -283,29 +331,51 @@ def compute(ins, out):
                  "and the bank delivers little. Replace the failed phase.")
     share = 100.0 * q_tot / q_exp_sys
     out.result("q_total", f"Bank output at {fmt.sig(v_sys)} V", q_tot, "kvar", key=True, group=g,
-               status="ok" if all(v == "ok" for v in verdicts) else "warn",
+               status="ok" if all(pv.state == "tolerance" for pv in pvs) else "warn",
                display=f"{fmt.sig(q_tot, 4)} kvar ({fmt.sig(share, 3)} % of the nameplate's {fmt.sig(q_exp_sys, 4)} kvar there)",
                method="Σ 2πf·C·V_element² over the three phases", source=SRC_CIRCUIT)
     if min(c) > 0:
         imb = bh.imbalance_percent(c)
-        ratio = bh.max_min_ratio(c)
         out.result("imbalance", "Imbalance between phases", imb, "%", group=g, digits=3,
                    method="largest deviation from the mean ÷ mean", source=cite("practice", "nema_mg1"))
-        out.result("ratio", "Largest ÷ smallest phase", ratio, "", group=g, digits=4,
-                   status="ok" if ratio <= bh.IEC_RATIO_LIMIT else "warn",
-                   method=f"C_max/C_min; a three-phase unit is made to ≤ {bh.IEC_RATIO_LIMIT}",
-                   source=ref("iec60831"))
-        if ratio > bh.IEC_RATIO_LIMIT:
-            out.warn(f"The phases differ by more than the {bh.IEC_RATIO_LIMIT} ratio a new three-phase unit is made to: "
-                     "the bank draws unequal line currents.")
+        rc = hv.ratio_of_readings(raw, meter_acc) if mode == "between" else hv.terminal_ratio(c, conn, meter_acc)
+        measured = "as measured" if mode == "between" else "worked out from the per-phase values"
+        out.result("ratio", "Largest ÷ smallest capacitance between terminals", rc.ratio, "", group=g, digits=4,
+                   status="ok" if rc.passes else "warn",
+                   display=f"{fmt.sig(rc.ratio, 4)} (limit {rc.limit}{'' if rc.sure else '; close to it given the meter accuracy'})",
+                   method=f"C_max/C_min of the three between-terminal readings ({measured}); a three-phase unit is made "
+                          f"to ≤ {rc.limit}", source=cite("iec60831_ratio", "practice_meter"))
+        if not rc.passes:
+            out.warn(f"The capacitances between terminals differ by more than the {rc.limit} ratio a new three-phase unit is "
+                     "made to: the bank draws unequal line currents.")
+        if conn == "wye":
+            sp = hv.star_point(c, v_sys, f_sys)
+            over = sp.highest_percent > 100.0 * IEEE18_VOLTAGE
+            out.result("star_shift", "Star-point shift (floating wye)", sp.shift_percent, "% of V/√3", group=g, digits=3,
+                       display=f"{fmt.sig(sp.shift_v, 3)} V ({fmt.sig(sp.shift_percent, 3)} % of the phase voltage)",
+                       method="V_N = ΣC_k·V_k/ΣC_k (nodal analysis)", source=SRC_CIRCUIT)
+            out.result("healthy_over", "Highest voltage on a phase's units", sp.highest_percent, "% of V/√3", group=g,
+                       digits=4, status="warn" if over else "ok",
+                       display=", ".join(f"{n} {fmt.sig(pc, 4)} %" for n, pc in zip(names, sp.element_percent))
+                               + f" of {fmt.sig(v_sys / math.sqrt(3.0), 4)} V",
+                       method="|V_k − V_N| for each phase; the phase with the least capacitance sees the most",
+                       source=cite("circuits_three_phase", "ieee18"))
+            if over:
+                out.warn(f"With the star point shifted, the units of one phase see {fmt.sig(sp.highest_percent, 3)} % of "
+                         f"their voltage, above the {fmt.sig(100.0 * IEEE18_VOLTAGE)} % continuous limit (IEEE Std 18): "
+                         "replace the failed units before the healthy ones fail too.")
     else:
         out.warn("One phase reads open: the bank is running on two elements.")
 
     # --- tables
-    rows = [[n, fmt.si(ck, "F", 4), f"{fmt.sig(p, 4)} %", "—" if open_wye else f"{fmt.sig(q, 4)} kvar", bh.VERDICT_WORDS[v]]
-            for n, ck, p, q, v in zip(names, c, pct, q_ph, verdicts)]
+    rows = [[n, fmt.si(ck, "F", 4), f"{fmt.sig(p, 4)} % ± {fmt.sig(pv.uncertainty, 2)} %",
+             "—" if open_wye else f"{fmt.sig(q, 4)} kvar", _verdict_display(pv)]
+            for n, ck, p, q, pv in zip(names, c, pct, q_ph, pvs)]
     out.table("Each phase", ["Phase", "Capacitance", "% of expected", f"kvar at {fmt.sig(v_sys)} V", "Verdict"], rows,
-              note=f"Band: {band.label}. Source: {band.source}.")
+              note=f"Band: {band.label}, widened by the meter's ±{fmt.sig(meter_acc)} % (carried through the calculation "
+                   "when the phase values are worked out from several readings). Replace: "
+                   + (f"the maker's limit {fmt.sig(maker)} %." if maker is not None else
+                      f"{fmt.sig(hv.REPLACE_LOSS_PERCENT)} % loss (common practice)."))
     if mode == "between":
         elem_of_pair = ("L1–L2", "L2–L3", "L3–L1") if conn == "delta" else ("L1", "L2", "L3")
         out.table("Between-terminal readings → per phase",
@@ -327,10 +397,15 @@ def compute(ins, out):
 
     # --- plain words
     for v in ("open", "low", "high"):
-        if v in verdicts:
-            phases = ", ".join(n for n, vv in zip(names, verdicts) if vv == v)
-            out.notes.append(f"{bh.VERDICT_WORDS[v]} ({phases}) — what it usually means (common practice): {bh.MEANINGS[v]}")
-    if all(v == "ok" for v in verdicts):
+        hit = [n for n, pv in zip(names, pvs) if pv.direction == v and (pv.state == "replace" or v == "high")]
+        if hit:
+            out.notes.append(f"{bh.VERDICT_WORDS[v]} ({', '.join(hit)}) — what it usually means (common practice): {bh.MEANINGS[v]}")
+    drifted = [n for n, pv in zip(names, pvs) if pv.state == "drifted" and pv.direction == "low"]
+    if drifted:
+        out.notes.append(f"{hv.STATE_WORDS['drifted']} ({', '.join(drifted)}): outside the factory band by more than the "
+                         "meter's accuracy, but not surely past the replacement limit. Measure again at the same temperature "
+                         "with the same meter and compare; a falling trend means elements are being lost.")
+    if all(pv.state == "tolerance" for pv in pvs):
         out.notes.append(bh.MEANINGS["ok"])
     if mode == "phase" and conn == "delta" and all(bh.DELTA_BETWEEN_AS_PHASE[0] < p / 100 < bh.DELTA_BETWEEN_AS_PHASE[1] for p in pct):
         out.warn("Every phase reads about 150 % of expected: these look like between-terminal readings of a delta. "
@@ -351,7 +426,7 @@ def compute(ins, out):
                  f"{fmt.sig(100 * IEEE18_VOLTAGE)} % "
                  "continuous limit of IEEE Std 18 (IEC 60831-1 allows 1.10·U_N only 8 h in 24 h, from memory).")
 
-    out.figure("Each phase against the band", _bars(list(names), pct, verdicts, band))
+    out.figure("Each phase against the band", _bars(list(names), pct, [pv.state for pv in pvs], band))
 
 
 SHEET = Worksheet(

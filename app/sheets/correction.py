@@ -20,6 +20,7 @@ from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Field, Worksheet
 from . import _correction_checks as checks
+from . import _correction_order as order
 from . import _correction_steps as steps
 from ._correction_steps import (BASES, SRC_141, SRC_CAP, SRC_IEC, SRC_NEC, SRC_STEPS, SRC_TRIANGLE, _PF_SETS, _SENSE_SETS,
                                 _is_hp, _load_method, _pf_text, _q_text, _triangle_figure, _units_text)
@@ -108,10 +109,11 @@ FIELDS = [
     Q.TRANSFORMER_Z.field("tx_z", default="5.75", required=False),
     Q.FAULT_MVA.field("fault_mva", "Utility fault level at the transformer primary", default="", required=False,
                       note="Blank treats the utility as infinitely strong (transformer impedance only)."),
+    *order.FIELDS,
 ]
 
 def compute(ins, out):
-    cx = steps.read_inputs(ins)
+    cx = steps.read_inputs(ins, order.read_fields)
     if cx is None:
         return
     steps.the_need(ins, cx)
@@ -124,6 +126,8 @@ def compute(ins, out):
     checks.light_load(out, cx)
     checks.supply_checks(out, cx)
     checks.combinations_table(out, cx)
+    order.plans(out, cx)
+    order.order_list(out, cx)
     _link(out, cx)
 
 
@@ -151,9 +155,7 @@ def _key_results(out, cx):
                method=f"Q_r = Q·(V_r/V)²·(f_r/f) = Q ÷ {factor:.4f}", source=SRC_CAP)
     out.result("q_delivered", f"kvar the bank gives at {fmt.sig(v)} V, {fmt.sig(f)} Hz", delivered, "kvar", key=True,
                method=f"Q = Q_r·(V/V_r)²·(f/f_r) = {fmt.sig(total_rated)} kvar × {factor:.4f}", source=SRC_CAP)
-    out.result("pf_after", "Power factor reached at full load", pf_after, "", display=_pf_text(pf_after, after.sense), key=True,
-               status="ok" if after.sense != "leading" else "warn",
-               method="PF = P/√(P² + (Q − Q_C)²)", source=SRC_TRIANGLE)
+    order.pf_result(out, cx)
     cable_label = "Conductor ampacity at least"
     out.result("cable", cable_label, basis_cable["conductor"], "A", key=True,
                method=(f"{basis_cable['factor']} × I_N" if profile == "nec" else f"{fmt.sig(capacitor.IEC_CURRENT_TOL)} × I_N ({fmt.sig(capacitor.IEC_CURRENT)} × I_N × "
@@ -239,10 +241,7 @@ def _detail_results(out, cx):
                    method=f"{k:.2f} × I_N", source=SRC_IEC)
         out.result("iec_143", f"With capacitance tolerance ({fmt.sig(k_tol)} × I_N): cable and switchgear at least", k_tol * i_basis,
                    "A", group=G4, method=f"{k:.2f} × {k_tol / k:.2f} × I_N", source=SRC_IEC)
-    out.result("protection", "Protective device range (common practice)", None, "A", group=G4,
-               display=f"{fmt.sig(prot_lo, 3)} to {fmt.sig(prot_hi, 3)} A: confirm against the capacitor and device makers' instructions",
-               method=f"{fmt.sig(capacitor.PROTECTION_RANGE[0])} to {fmt.sig(capacitor.PROTECTION_RANGE[1])} × I_N; "
-                      "NEC 460.8(B) asks for a rating as low as practicable", source=cite("practice", "nec460_8"))
+    order.protection_result(out, cx, G4)
 
     # --- benefits
     G5 = "Benefits at full load"

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 
-from pycore import correction, savings
+from pycore import banklosses, correction, savings
 from pycore.references import cite, ref
 from pycore.survey import PF_AGREEMENT
 
@@ -16,6 +16,7 @@ SRC_KVA = cite("circuits_ac_power", "ieee141_pf")
 SRC_TARIFF = ref("practice_tariff")
 SRC_LOSS = cite("circuits_ac_power", "ieee141_pf")
 SRC_PAYBACK = ref("practice")
+SRC_BANK_LOSS = ref("practice_bank_losses")
 
 def _when(field, *values):
     return {"field": field, "in": list(values)}
@@ -69,8 +70,19 @@ FIELDS = [
           help="Series (I²R) losses at the typical load, from a study, a meter or a cable and transformer estimate."),
     Field("hours_month", "Hours per month at that load", unit="h", default="400", min=0, min_open=True, max=744,
           show_when=_when("add_losses", "yes")),
-    Field("energy_price", "Energy price per kWh", default="0.14", min=0, show_when=_when("add_losses", "yes"),
-          help="In your currency."),
+    Field("energy_price", "Energy price per kWh", default="0.14", min=0,
+          help="In your currency. Prices the reduced losses and the bank's own losses."),
+    # the bank's own losses (demo figures: the invented plant's bank of about 200 kvar)
+    Field("bank_kvar", "kvar of capacitors switched in, typically", unit="kvar", default="200", required=False,
+          min=0, max=1e6, group="The bank's own losses",
+          help="The kvar the bank has in service at the typical load. Blank: the bank's own losses are not counted."),
+    Field("bank_detuned", "Of which in detuned steps (with reactors)", unit="kvar", default="0", required=False,
+          min=0, max=1e6),
+    Field("cap_w", "Capacitor losses", unit="W/kvar", default=fmt.sig(banklosses.CAPACITOR_W_PER_KVAR), min=0, max=50,
+          help="Including discharge resistors. Typical 0.2–0.5 W/kvar (from memory); enter the maker's figure."),
+    Field("reactor_w", "Detuning reactor losses", unit="W/kvar", default=fmt.sig(banklosses.REACTOR_W_PER_KVAR),
+          min=0, max=100, help="Per kvar of the detuned step. Typical 4–8 W/kvar (from memory); enter the maker's figure."),
+    Field("bank_hours", "Hours per month the bank is in", unit="h", default="400", min=0, max=744),
     Field("cost", "Installed cost of the correction", default="14500", min=0, min_open=True, group="Cost",
           help="Capacitors, switching, protection, enclosure and installation, in your currency."),
     Field("currency", "Currency", kind="text", default="USD", required=False,
@@ -83,6 +95,31 @@ def _money(v: float, cur: str) -> str:
     return f"{text} {cur}".strip()
 
 
+def _bank_losses(out, vals, gross: float, cur: str):
+    """The bank's own losses (capacitors, and reactors of detuned steps) and the net monthly
+    saving; None when no bank kvar is entered."""
+    q = vals.get("bank_kvar")
+    if q is None:
+        return None
+    qd = vals.get("bank_detuned") or 0.0
+    if qd > q:
+        raise FieldError("bank_detuned", f"The detuned kvar cannot exceed the {fmt.sig(q)} kvar switched in.")
+    bl = banklosses.bank_losses(q, qd, vals["cap_w"], vals["reactor_w"])
+    kwh, cost, net = savings.net_of_bank_losses(gross, bl.total_kw, vals["bank_hours"], vals["energy_price"])
+    g = "The bank's own losses"
+    out.result("bank_loss_kw", "Losses of the bank while in", bl.total_kw, "kW", group=g,
+               display=f"{fmt.sig(bl.total_kw, 3)} kW (capacitors {fmt.sig(bl.capacitors_kw, 3)} kW"
+                       + (f", reactors {fmt.sig(bl.reactors_kw, 3)} kW)" if qd > 0 else ")"),
+               method="capacitors W/kvar × kvar in + reactors W/kvar × detuned kvar", source=SRC_BANK_LOSS)
+    out.result("bank_kwh", "Energy the bank uses per month", kwh, "kWh", group=g,
+               method="losses × hours per month the bank is in", source=SRC_BANK_LOSS)
+    out.result("bank_cost", "Cost of the bank's losses per month", cost, cur, display=_money(cost, cur), group=g,
+               method="energy × price per kWh", source=SRC_BANK_LOSS)
+    if gross > 0 and cost > gross:
+        out.warn("The bank's own losses cost more than the saving it brings under these inputs.")
+    return net
+
+
 def compute(ins, out):
     pf1 = ins.num("pf1")
     pf2 = ins.num("pf2")
@@ -93,7 +130,8 @@ def compute(ins, out):
         ins.fail("currency", "Use at most 12 characters for the currency.")
     vals = {}
     for name in ("p_kw", "kva_price", "threshold", "penalty_pct", "bill", "penalty_amount", "kwh_month",
-                 "kvarh_month", "kvarh_price", "loss_kw", "hours_month", "energy_price"):
+                 "kvarh_month", "kvarh_price", "loss_kw", "hours_month", "energy_price", "bank_kvar", "bank_detuned",
+                 "cap_w", "reactor_w", "bank_hours"):
         if ins.visible(name):
             vals[name] = ins.num(name)
     losses = ins.choice("add_losses") == "yes"
@@ -184,7 +222,8 @@ def compute(ins, out):
         parts.append(("save_losses", "Loss saving per month", m, "energy saved × price per kWh", SRC_LOSS))
 
     monthly = math.fsum(p[2] for p in parts)
-    year = savings.yearly(monthly)
+    net = _bank_losses(out, vals, monthly, cur)
+    year = savings.yearly(monthly if net is None else net)
     payback = savings.simple_payback_years(cost, year)
     gs = "Saving and payback (estimate)"
     for name, label, m, how, src in parts:
@@ -193,8 +232,13 @@ def compute(ins, out):
     out.result("monthly", "Saving per month", monthly, cur, display=_money(monthly, cur), key=True, group=gs,
                method="sum of the savings above" if len(parts) > 1 else parts[0][3],
                source=parts[0][4] if len(parts) == 1 else SRC_TARIFF)
-    out.result("yearly", "Saving per year", year, cur, display=_money(year, cur), key=True, group=gs,
-               method="12 × monthly saving", source=SRC_PAYBACK)
+    if net is not None:
+        out.result("net_monthly", "Net saving per month, after the bank's own losses", net, cur, display=_money(net, cur),
+                   key=True, group=gs, status="warn" if net <= 0 else "", method="saving per month − cost of the bank's own losses",
+                   source=cite("practice_bank_losses", "practice"))
+    out.result("yearly", "Net saving per year" if net is not None else "Saving per year", year, cur,
+               display=_money(year, cur), key=True, group=gs,
+               method="12 × net monthly saving" if net is not None else "12 × monthly saving", source=SRC_PAYBACK)
     if math.isfinite(payback):
         out.result("payback", "Simple payback", payback, "years",
                    display=f"{fmt.sig(payback, 3)} years ({fmt.sig(payback * 12, 3)} months)",
@@ -202,7 +246,8 @@ def compute(ins, out):
     else:
         out.result("payback", "Simple payback", None, "years", display="none: no saving under these inputs",
                    key=True, group=gs, status="warn", method="installed cost / yearly saving", source=SRC_PAYBACK)
-    out.notes.append("Simple payback leaves out interest, maintenance, the capacitors' own losses and tariff changes.")
+    out.notes.append("Simple payback leaves out interest, maintenance and tariff changes"
+                     + (", and the bank's own losses (no kvar entered)." if net is None else "."))
     out.caution(cautions.ESTIMATE)
 
 
@@ -215,6 +260,6 @@ SHEET = Worksheet(
     cautions=[cautions.ESTIMATE],
     order=60,
     references=[
-        ref("ieee141_pf"),
+        ref("ieee141_pf"), ref("practice_bank_losses"),
     ],
 )

@@ -57,7 +57,8 @@ def test_bank_health_verdicts_on_a_phone(phone):
     phone.fill("#in-c3", f"{c_exp * 0.80:.1f}")  # a phase that lost a fifth of its capacitance
     settle(phone)
     v1, v3 = display(phone, "verdict_1"), display(phone, "verdict_3")
-    assert v1.startswith("Within") and v3.startswith("Low")
+    # a fifth lost is past the 10 % replacement limit (common practice) even with the meter's ±2 %
+    assert v1.startswith("Within") and v3.startswith("Replace")
     assert "fail" in phone.get_attribute("[data-result='verdict_3']", "class")
     shot(phone, "flow-bank-health-phone")
 
