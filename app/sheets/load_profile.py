@@ -11,21 +11,23 @@ from __future__ import annotations
 from pycore import capacitor, profile_columns, profile_stats as ps
 from pycore.errors import InputError
 from pycore.pfparse import parse_lagging_pf
-from pycore.profile_control import Bank, simulate
+from pycore.profile_control import LEAD_SHARE_WARN, Bank, simulate
 from pycore.profile_demo import demo_text
 from pycore.profile_read import INTERVALS_MIN, MAX_CHARS, read_profile
 from pycore.profile_time import DateOrderError, stamp_text
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 
-SRC_BILL = "Billing-average PF = ΣkWh/√(ΣkWh² + Σkvarh²) (utility billing practice)"
-SRC_NEED = "kvar needed per interval max(0, Q − P·tan φ₂) (power triangle; IEEE Std 141, Red Book, power-factor chapter)"
-SRC_SHARE = SRC_NEED + "; lower empirical quantile of the intervals (numpy 'inverted_cdf' definition)"
-SRC_ENERGY = "Energy = Σ P·h over the intervals (definition of average demand)"
-SRC_SIM = "Controller modelled interval by interval, whole steps only (this app; common practice for PF controllers)"
-SRC_CAP = "Capacitor output Q = Q_r·(V/V_r)² (circuit theory: X_C = 1/(2πfC))"
+SRC_BILL = ref("practice_billing")
+SRC_NEED = cite("circuits_ac_power", "ieee141_pf")
+SRC_SHARE = cite("circuits_ac_power", "ieee141_pf", "quantile_lower")
+SRC_ENERGY = ref("def_energy")
+SRC_SIM = ref("practice_controller")
+SRC_CAP = ref("circuits_phasors")
+SRC_FILE = ref("input_file")
 LIST_MAX = 200  # rows listed in the skipped/flagged table; the rest are counted
 DEMO = demo_text(days=7, interval_min=60)
 
@@ -152,17 +154,17 @@ def compute(ins, out):
     out.result("period", "Period", (u.last - u.first) / 86400 + h / 24, "days", group=g,
                display=f"{stamp_text(u.first)} to {stamp_text(u.last + prof.interval_s)} "
                        f"({fmt.sig((u.last - u.first + prof.interval_s) / 86400, 4)} days)",
-               method="first interval's start to last interval's end", source="The file")
+               method="first interval's start to last interval's end", source=SRC_FILE)
     out.result("interval", "Interval", u.interval_min, "min", group=g,
-               method="most common step between time stamps", source="The file")
+               method="most common step between time stamps", source=SRC_FILE)
     out.result("rows", "Intervals used", u.rows_used, "", group=g,
                display=f"{u.rows_used:,} of {u.rows_read:,} rows read", method="rows read less rows skipped",
-               source="The file", status="warn" if prof.skipped else "ok")
+               source=SRC_FILE, status="warn" if prof.skipped else "ok")
     missing = sum(gap[2] for gap in prof.gaps)
     if missing:
         out.result("missing", "Intervals missing", missing, "", group=g, status="warn",
                    display=f"{missing:,} in {sum(1 for gp in prof.gaps if gp[2])} gap(s)",
-                   method="steps longer than the interval", source="The file")
+                   method="steps longer than the interval", source=SRC_FILE)
 
     # -- energy and peaks
     tot = ps.totals(p, q, h)
@@ -186,7 +188,7 @@ def compute(ins, out):
                method="largest interval kW (time as stamped)", source=SRC_ENERGY)
     out.result("peak_kva", "Peak apparent demand", tot.peak_kva, "kVA", group=g,
                display=f"{fmt.sig(tot.peak_kva)} kVA at {_stamp(prof, prof.t[tot.peak_kva_at])}",
-               method="largest √(P² + Q²) of an interval", source="Power triangle (circuit theory)")
+               method="largest √(P² + Q²) of an interval", source=ref("circuits_ac_power"))
 
     # -- bank size
     g = "Bank size"
@@ -200,7 +202,7 @@ def compute(ins, out):
                source=SRC_BILL)
     out.result("largest_step", "Largest step that keeps light load lagging", step_max, "kvar", key=True, group=g,
                method=f"the reactive power the load draws in at least {fmt.sig(100 * share)} % of intervals: a step or fixed "
-                      "part no larger leaves those intervals lagging", source="Power triangle (circuit theory); lower quantile")
+                      "part no larger leaves those intervals lagging", source=cite("circuits_ac_power", "quantile_lower"))
     dp, dq = p[design], q[design]
     out.notes.append(f"Design point: the interval at {_stamp(prof, prof.t[design])}, {fmt.sig(dp)} kW and {fmt.sig(dq)} kvar.")
 
@@ -214,7 +216,7 @@ def compute(ins, out):
         out.result("bank_size", "Bank", size, "kvar", group=g,
                    display=f"{fmt.sig(size)} kvar" + (f" ({bank_note})" if bank_note else ""),
                    method="fixed part + steps" + (", scaled to the bus voltage" if bank_note else ""),
-                   source=SRC_CAP if bank_note else "As entered")
+                   source=SRC_CAP if bank_note else ref("input"))
         out.result("pf_after", "Billing-average PF with the bank", w.pf_after, "", display=_pf(w.pf_after, w.sense_after),
                    key=True, group=g, method="ΣkWh/√(ΣkWh² + Σkvarh²) after the bank, whole profile", source=SRC_BILL,
                    status="ok" if w.pf_after >= target - 1e-12 and w.sense_after == "lagging" else "warn")
@@ -236,7 +238,7 @@ def compute(ins, out):
         if bank.fixed_kvar > step_max + 1e-9:
             out.warn(f"The fixed part ({fmt.sig(bank.fixed_kvar)} kvar) is more than the light-load reactive power "
                      f"({fmt.sig(step_max)} kvar): it makes light-load intervals lead.")
-        if w.lead > 0.05:
+        if w.lead > LEAD_SHARE_WARN:
             out.warn(f"{_pct(w.lead)} of the intervals lead with this bank: a leading power factor raises the voltage and may be billed.")
 
     _understood(out, prof)
@@ -336,5 +338,5 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=25,
-    references=["IEEE Std 141 (Red Book), Recommended Practice for Electric Power Distribution for Industrial Plants, chapter on power factor"],
+    references=[ref("ieee141_pf"), ref("practice_billing")],
 )
