@@ -3,7 +3,8 @@
 The user pastes (or opens) a logger export or a utility interval download; the worksheet says
 what it understood, gives the energy, the billing-average power factor, peaks, duration curves
 and a daily profile, the kvar by three measures, and runs a chosen bank against every interval.
-Links carry the design point into the correction worksheet and the worst month into savings.
+Links carry the design point into the correction worksheet and the month with the largest
+power-factor charge into savings (the bill: _profile_tariff.py).
 """
 
 from __future__ import annotations
@@ -20,6 +21,7 @@ from pycore.references import cite, ref
 from .. import cautions, fmt
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
+from . import _profile_tariff as tariff
 
 SRC_BILL = ref("practice_billing")
 SRC_NEED = cite("circuits_ac_power", "ieee141_pf")
@@ -71,7 +73,7 @@ FIELDS = [
           help="With the bus voltage, the kvar above are taken at the rating and scaled by (V/V_r)². Blank: at the bus."),
     Field("v_bus", "Bus voltage (measured if you have it)", unit="V", default="", required=False, min=50, max=100000,
           show_when={"field": "bank", "in": ["auto", "fixed"]}),
-]
+] + tariff.FIELDS
 
 
 def _pct(x: float) -> str:
@@ -140,6 +142,7 @@ def compute(ins, out):
         ins.fail("target_pf", str(e))
         target = None
     share = ins.num("share")
+    bill = tariff.read(ins)
     bank, bank_note = _bank(ins) if prof is not None else (None, "")
     if ins.errors or prof is None or target is None:
         return
@@ -243,7 +246,8 @@ def compute(ins, out):
 
     _understood(out, prof)
     _figures(out, prof, target, sim, q_share)
-    _links(out, prof, target, design, sim, basis)
+    _links(out, prof, target, design)
+    tariff.monthly(out, *bill, prof, sim)
     if prof.skipped:
         out.warn(f"{len(prof.skipped):,} row(s) were left out: see the rows listed below.")
     if prof.gaps and missing:
@@ -313,7 +317,7 @@ def _figures(out, prof, target, sim, q_share):
         desc="Mean kW and kvar for each time of day over the whole period."))
 
 
-def _links(out, prof, target, design, sim, basis):
+def _links(out, prof, target, design):
     p, q = prof.p, prof.q
     inputs = {"basis": "p_q", "p_kw": f"{p[design]:.1f}", "q_kvar": f"{q[design]:.1f}", "pf2": f"{target:g}"}
     imp = sorted((a, i) for i, a in enumerate(p) if a > 0)
@@ -322,12 +326,6 @@ def _links(out, prof, target, design, sim, basis):
         inputs["light_p"] = f"{light_p:.1f}"
         inputs["light_pf"] = f"{light_p / abs(complex(light_p, q[li])):.3f}"
     out.link("Size the bank for the design point in Correction", "correction", inputs)
-    if sim is not None and sim.months:
-        worst = min(sim.months, key=lambda m: m.pf_before if m.sense_before == "lagging" else 2.0)
-        if worst.kwh > 0 and worst.kvarh_before > 0 and worst.pf_after > worst.pf_before and worst.sense_after == "lagging":
-            out.link(f"Savings for {worst.label} (the lowest month) in Savings", "savings", {
-                "tariff": "kvarh", "pf1": f"{worst.pf_before:.3f}", "pf2": f"{min(worst.pf_after, 1.0):.3f}",
-                "kwh_month": f"{worst.kwh:.0f}", "kvarh_month": f"{worst.kvarh_before:.0f}"})
 
 
 SHEET = Worksheet(
