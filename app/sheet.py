@@ -15,6 +15,7 @@ from typing import Any, Callable, Optional
 from pycore.complexparse import parse_complex
 from pycore.errors import InputError
 from pycore.numparse import parse_quantity
+from pycore.pfparse import PowerFactor, parse_pf
 
 from . import fmt
 from .reading import INVALID, UNUSED, USED, Reading
@@ -256,6 +257,34 @@ class Inputs:
 
     def cplx(self, name: str) -> Optional[complex]:
         return self._record(name, self._cplx(name))
+
+    def pf(self, name: str, *, lagging: bool = False) -> Optional[PowerFactor]:
+        """A power-factor field, read by the one shared reader :func:`pycore.pfparse.parse_pf`
+        ("0.78", "78 %", "0.78 lag", "0.95 lead"); None if empty-and-optional or bad. With
+        ``lagging`` a leading value is refused at the field (a target for shunt capacitors)."""
+        f = self._field(name)
+        text = self.text_of(name).strip()
+        got = None
+        if not text:
+            if f.required:
+                self.fail(name, f"Enter {f.label.lower()}.")
+        else:
+            try:
+                got = parse_pf(text)
+            except InputError as e:
+                self.fail(name, str(e))
+            else:
+                if lagging and got.leading and got.value < 1.0:
+                    self.fail(name, f"{f.label} is taken as lagging here: capacitors aim at a lagging power factor "
+                                    "(e.g. 0.95).")
+                    got = None
+        self._record(name, None if got is None else got.value)
+        return got
+
+    def pf_value(self, name: str) -> Optional[float]:
+        """A lagging power-factor field's value [dimensionless] (see :meth:`pf`)."""
+        got = self.pf(name, lagging=True)
+        return None if got is None else got.value
 
     def numbers(self, name: str) -> Optional[list[float]]:
         """A ``list`` field's numbers (see :meth:`_numbers`)."""

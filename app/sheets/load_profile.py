@@ -11,7 +11,6 @@ from __future__ import annotations
 
 from pycore import capacitor, profile_columns, profile_stats as ps
 from pycore.errors import InputError
-from pycore.pfparse import parse_lagging_pf
 from pycore.profile_control import LEAD_SHARE_WARN, Bank, simulate
 from pycore.profile_demo import demo_text
 from pycore.profile_read import INTERVALS_MIN, MAX_CHARS, read_profile
@@ -19,6 +18,7 @@ from pycore.profile_time import DateOrderError, stamp_text
 from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
 from . import _profile_tariff as tariff
@@ -49,9 +49,7 @@ FIELDS = [
           placeholder="e.g. time, kW, kvar",
           help=("Leave blank to read them from the header. Otherwise one word per column, in order: time (or date "
                 "and time), kW, kWh, kvar, kvarh, kvar lag, kvar lead, kvarh lag, kvarh lead, kVA, kVAh, PF, skip.")),
-    Field("target_pf", "Target power factor (lagging)", default="0.95", suggest=["0.9", "0.92", "0.95", "0.98"],
-          group="Target",
-          help="The utility's threshold or your own goal, e.g. 0.95 or 95 %."),
+    Q.TARGET_POWER_FACTOR.field("target_pf", default="0.95", group="Target"),
     Field("share", "Share of intervals to bring to the target", unit="%", default="95", min=50, max=100,
           suggest=["90", "95", "99", "100"],
           help="The bank is sized so that this share of the intervals meets the target; 100 % sizes for the worst interval."),
@@ -60,19 +58,18 @@ FIELDS = [
           help="Tariffs differ; the billing-average power factor and the monthly figures follow this choice."),
     Field("bank", "Bank to try against the profile", kind="choice", default="auto", group="Bank to try",
           options=[("auto", "Automatic bank in steps"), ("fixed", "Fixed bank"), ("none", "None")]),
-    Field("fixed_kvar", "Fixed bank", unit="kvar", default="150", min=0, min_open=True, max=1e6,
-          show_when={"field": "bank", "in": ["fixed"]}),
-    Field("steps", "Steps", kind="list", unit="kvar", default="25, 50, 50, 50, 50, 50", min=0, min_open=True, max=1e6,
-          show_when={"field": "bank", "in": ["auto"]},
-          help="The controller's steps in kvar, separated by commas (at most 12). It switches whole steps only."),
-    Field("fixed_part", "Fixed part always in", unit="kvar", default="0", required=False, min=0, max=1e6,
-          show_when={"field": "bank", "in": ["auto"]},
-          help="A fixed capacitor beside the steps, e.g. for a transformer's no-load kvar. Blank or 0 if none."),
-    Field("cap_v", "Capacitor rated voltage", unit="V", default="", required=False, min=50, max=100000,
-          show_when={"field": "bank", "in": ["auto", "fixed"]},
-          help="With the bus voltage, the kvar above are taken at the rating and scaled by (V/V_r)². Blank: at the bus."),
-    Field("v_bus", "Bus voltage (measured if you have it)", unit="V", default="", required=False, min=50, max=100000,
-          show_when={"field": "bank", "in": ["auto", "fixed"]}),
+    Q.BANK_KVAR.field("fixed_kvar", "Fixed bank", default="150", show_when={"field": "bank", "in": ["fixed"]}),
+    Q.BANK_KVAR.field("steps", "Steps", kind="list", default="25, 50, 50, 50, 50, 50",
+                      show_when={"field": "bank", "in": ["auto"]},
+                      note="The controller's steps, separated by commas (at most 12). It switches whole steps only."),
+    Q.EXISTING_KVAR.field("fixed_part", "Fixed part always in", default="0", required=False,
+                          show_when={"field": "bank", "in": ["auto"]},
+                          note="Here: a fixed capacitor beside the steps, e.g. for a transformer's no-load kvar."),
+    Q.CAPACITOR_VOLTAGE.field("cap_v", default="", required=False, show_when={"field": "bank", "in": ["auto", "fixed"]},
+                              note="With the bus voltage, the kvar above are taken at the rating and scaled by (V/V_r)². "
+                                   "Blank: at the bus."),
+    Q.MEASURED_VOLTAGE.field("v_bus", "Bus voltage (measured if you have it)", default="", required=False,
+                             show_when={"field": "bank", "in": ["auto", "fixed"]}),
 ] + tariff.FIELDS
 
 
@@ -136,11 +133,7 @@ def _stamp(prof, t: int) -> str:
 
 def compute(ins, out):
     prof = _read(ins)
-    try:
-        target = parse_lagging_pf(ins.text("target_pf"))
-    except InputError as e:
-        ins.fail("target_pf", str(e))
-        target = None
+    target = ins.pf_value("target_pf")
     share = ins.num("share")
     bill = tariff.read(ins)
     bank, bank_note = _bank(ins) if prof is not None else (None, "")
@@ -319,6 +312,8 @@ def _figures(out, prof, target, sim, q_share):
 
 def _links(out, prof, target, design):
     p, q = prof.p, prof.q
+    if not ps.needs([p[design]], [q[design]], target)[0] > 0:
+        return  # the design interval already meets the target: Correction would size nothing
     inputs = {"basis": "p_q", "p_kw": f"{p[design]:.1f}", "q_kvar": f"{q[design]:.1f}", "pf2": f"{target:g}"}
     imp = sorted((a, i) for i, a in enumerate(p) if a > 0)
     light_p, li = imp[max(0, -(-len(imp) * 5 // 100) - 1)]  # the 5th-percentile kW interval
