@@ -287,7 +287,7 @@ def the_need(ins, cx):
     v_i = vals.get("v_meas") or v  # voltage for line currents: measured when given
     i1 = net.current(v_i, phases)
     need = net.p_kw * correction.kvar_per_kw(pf1, pf2)
-    factor = capacitor.output_factor(v, cap_v, f, cap_f)
+    factor = capacitor.output_factor(cx.v_cap, cap_v, f, cap_f)  # at the measured voltage when entered
     need_rated = need / factor
     cx.factor, cx.i1, cx.need, cx.need_rated, cx.net, cx.pf1 = factor, i1, need, need_rated, net, pf1
     cx.v_i = v_i
@@ -350,7 +350,7 @@ def currents(ins, cx):
     """Rated and system-voltage currents of the bank, the conductor basis and the protective-device range."""
     cap_v, delivered, phases, profile, total_rated, v = cx.cap_v, cx.delivered, cx.phases, cx.profile, cx.total_rated, cx.v
     i_rated = capacitor.line_current(total_rated, cap_v, phases)
-    i_sys = capacitor.line_current(delivered, v, phases)
+    i_sys = capacitor.line_current(delivered, cx.v_cap, phases)
     i_basis = max(i_rated, i_sys)
     basis_cable = capacitor.conductor_basis(i_basis, profile)
     prot_lo, prot_hi = capacitor.protection_range(i_rated)
