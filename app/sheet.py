@@ -25,7 +25,9 @@ KINDS = ("number", "complex", "choice", "table", "text", "list")
 # How a field is drawn (app/formview.py), by kind: the first widget of each list is the default,
 # except that a choice of at most BUTTON_CHOICES options defaults to a row of buttons.
 WIDGETS = {"choice": ("select", "buttons"), "table": ("table",), "number": ("input",), "complex": ("input",),
-           "text": ("input", "textarea"), "list": ("input", "textarea")}
+           "text": ("input", "textarea", "file"), "list": ("input", "textarea")}
+# A "file" widget is a multi-line text area the user may also fill from a file on the device; its
+# field states the longest text it keeps (``max_chars``), which the jobs file allows for it.
 BUTTON_CHOICES = 4
 
 # No quantity of this trade lies outside this band of magnitudes in its field's own unit
@@ -90,6 +92,7 @@ class Field:
     max_rows: int = 500
     placeholder: str = ""
     widget: str = ""
+    max_chars: Optional[int] = None  # longest text kept (a "file" widget): the reader's own limit
 
     def __post_init__(self):
         if self.kind not in KINDS:
@@ -128,6 +131,8 @@ class Field:
             d["max_rows"] = self.max_rows
         if self.placeholder:
             d["placeholder"] = self.placeholder
+        if self.max_chars:
+            d["max_chars"] = self.max_chars
         return d
 
 

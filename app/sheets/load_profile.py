@@ -35,6 +35,7 @@ DEMO = demo_text(days=7, interval_min=60)
 
 FIELDS = [
     Field("profile", "Load profile (paste or open a file)", kind="text", default=DEMO, group="Profile",
+          widget="file", max_chars=MAX_CHARS,
           help=("Paste the rows of a logger export or the utility's interval download, or open the CSV or text "
                 f"file. Comma, semicolon or tab between columns; decimal point or comma; with or without a header; "
                 f"intervals of {', '.join(str(m) for m in INTERVALS_MIN)} minutes; at most {MAX_CHARS // 1_000_000} MB. "
