@@ -193,6 +193,21 @@ function renderTable(f, value, set, box) {
   redraw();
 }
 
+/**
+ * Mark the results as being worked out (a compute slower than the shell's threshold) or done:
+ * a "Working…" status line at the top of the results and the previous answer dimmed. Generic.
+ */
+export function showWorking(section, on) {
+  let note = section.querySelector(":scope > .working");
+  if (on && !note) {
+    note = h("p", { class: "working", role: "status", text: "Working…" });
+    section.querySelector("h2")?.after(note);
+  } else if (!on && note) {
+    note.remove();
+  }
+  section.toggleAttribute("aria-busy", on);
+}
+
 const STATUS_WORD = { ok: "OK", warn: "Check", fail: "Fails" };
 
 /** Render a compute result (the bridge's JSON) into the results container. */
