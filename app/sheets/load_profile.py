@@ -13,7 +13,7 @@ from pycore import capacitor, profile_columns, profile_stats as ps
 from pycore.errors import InputError
 from pycore.profile_control import LEAD_SHARE_WARN, Bank, simulate
 from pycore.profile_demo import demo_text
-from pycore.profile_read import INTERVALS_MIN, MAX_CHARS, read_profile
+from pycore.profile_read import INTERVALS_MIN, MAX_CHARS, PREAMBLE, read_profile
 from pycore.profile_time import DateOrderError, stamp_text
 from pycore.references import cite, ref
 
@@ -60,12 +60,12 @@ FIELDS = [
     Field("bank", "Bank to try against the profile", kind="choice", default="auto", group="Bank to try",
           options=[("auto", "Automatic bank in steps"), ("fixed", "Fixed bank"), ("none", "None")]),
     Q.BANK_KVAR.field("fixed_kvar", "Fixed bank", default="150", show_when={"field": "bank", "in": ["fixed"]}),
-    Q.BANK_KVAR.field("steps", "Steps", kind="list", default="25, 50, 50, 50, 50, 50",
-                      show_when={"field": "bank", "in": ["auto"]},
-                      note="The controller's steps, separated by commas (at most 12). It switches whole steps only."),
-    Q.EXISTING_KVAR.field("fixed_part", "Fixed part always in", default="0", required=False,
-                          show_when={"field": "bank", "in": ["auto"]},
-                          note="Here: a fixed capacitor beside the steps, e.g. for a transformer's no-load kvar."),
+    Q.BANK_KVAR.but(help="The controller's steps, separated by commas (at most 12), at the bus voltage unless the "
+                         "capacitor's rating is given below. It switches whole steps only.").field(
+        "steps", "Steps", kind="list", default="25, 50, 50, 50, 50, 50", show_when={"field": "bank", "in": ["auto"]}),
+    Q.EXISTING_KVAR.but(help="A fixed capacitor beside the steps, always in (e.g. for a transformer's no-load kvar). "
+                             "Blank or 0 if none.").field(
+        "fixed_part", "Fixed part always in", default="0", required=False, show_when={"field": "bank", "in": ["auto"]}),
     Q.CAPACITOR_VOLTAGE.field("cap_v", default="", required=False, show_when={"field": "bank", "in": ["auto", "fixed"]},
                               note="With the bus voltage, the kvar above are taken at the rating and scaled by (V/V_r)². "
                                    "Blank: at the bus."),
@@ -127,6 +127,11 @@ def _bank(ins):
     return Bank(fixed, tuple(steps)), note
 
 
+def _lost(prof) -> int:
+    """Rows left out that looked like data (a title or note line above the header is not one)."""
+    return sum(1 for _, why in prof.skipped if why != PREAMBLE)
+
+
 def _stamp(prof, t: int) -> str:
     """A time as written in the file (the end of the interval when stamps mark the end)."""
     return stamp_text(t + (prof.interval_s if prof.understood.stamps == "end" else 0))
@@ -156,7 +161,7 @@ def compute(ins, out):
                method="most common step between time stamps", source=SRC_FILE)
     out.result("rows", "Intervals used", u.rows_used, "", group=g,
                display=f"{u.rows_used:,} of {u.rows_read:,} rows read", method="rows read less rows skipped",
-               source=SRC_FILE, status="warn" if prof.skipped else "ok")
+               source=SRC_FILE, status="warn" if _lost(prof) else "ok")
     missing = sum(gap[2] for gap in prof.gaps)
     if missing:
         out.result("missing", "Intervals missing", missing, "", group=g, status="warn",
@@ -242,8 +247,8 @@ def compute(ins, out):
     _figures(out, prof, target, sim, q_share)
     _links(out, prof, target, design)
     tariff.monthly(out, *bill, prof, sim)
-    if prof.skipped:
-        out.warn(f"{len(prof.skipped):,} row(s) were left out: see the rows listed below.")
+    if _lost(prof):
+        out.warn(f"{_lost(prof):,} row(s) of data were left out: see the rows listed below.")
     if prof.gaps and missing:
         out.warn(f"{missing:,} interval(s) are missing from the period: totals cover only the intervals read.")
     n_exp = sum(1 for x in p if x < 0)
