@@ -119,3 +119,29 @@ def test_tablet_screenshot(browser, site, tmp_path):
         open_profile(page, path)
         assert page.locator("figcaption", has_text="kvar duration").count() == 1
         shot(page, "load-profile-tablet")
+
+
+def test_a_long_compute_shows_working_and_the_page_responds(browser, site, tmp_path):
+    # a year of 15-minute data (35,040 rows, invented) takes the engine longer than 300 ms
+    path = tmp_path / "year-15min.csv"
+    path.write_text(demo_text(days=365, interval_min=15), encoding="utf-8")
+    with guarded_page(browser, site, viewport=PHONE, is_mobile=True, has_touch=True) as page:
+        page.goto(site + "#/sheet/load_profile")
+        wait_ready(page)
+        settle(page)
+        page.set_input_files("#file-profile", str(path))
+        page.wait_for_selector("#results > .working", state="attached", timeout=10_000)
+        box = page.evaluate("(() => { const r = document.querySelector('#results > .working').getBoundingClientRect(); "
+                            "return [r.width, r.height]; })()")
+        assert box[0] > 0 and box[1] > 0  # drawn, not only in the DOM
+        assert page.text_content("#results > .working") == "Working…"
+        # the page still answers a tap while the engine works: the theme changes at once
+        before = page.evaluate("document.documentElement.dataset.theme")
+        t0 = page.evaluate("performance.now()")
+        page.click("#theme-btn")
+        assert page.evaluate("document.documentElement.dataset.theme") != before
+        assert page.evaluate("performance.now()") - t0 < 1000
+        assert page.locator("#results > .working").count() == 1  # still working after the tap
+        settle(page, timeout=60_000)
+        assert page.locator("#results > .working").count() == 0
+        assert page.inner_text("[data-result='rows'] .r-value").startswith("35,040")
