@@ -84,7 +84,9 @@ def read(ins) -> tuple[str, dict]:
     vals: dict = {}
     if kind == "none":
         return kind, vals
-    for name in ("kva_price", "threshold", "penalty_amount", "kvarh_price"):
+    if ins.visible("threshold"):
+        vals["threshold"] = ins.pf_value("threshold")  # the shared power-factor reader
+    for name in ("kva_price", "penalty_amount", "kvarh_price"):
         if ins.visible(name):
             vals[name] = ins.num(name)
     cur = ins.text("currency").strip()
