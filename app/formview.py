@@ -91,8 +91,8 @@ def field_node(f: Field, value: str) -> list:
         attrs = {"id": fid, "aria-describedby": described, "spellcheck": "false", "autocapitalize": "off"}
         if f.placeholder:
             attrs["placeholder"] = f.placeholder
-        if f.widget == "textarea":
-            control = ["textarea", {**attrs, "rows": "3"}, value]
+        if f.widget in ("textarea", "file"):
+            control = ["textarea", {**attrs, "rows": "6" if f.widget == "file" else "3"}, value]
         else:
             attrs.update({"type": "text", "value": value, "enterkeyhint": "next"})
             if f.kind == "number":
@@ -106,11 +106,25 @@ def field_node(f: Field, value: str) -> list:
         spoken = f" {f.unit}" if f.unit else ""
         shown = f" {f.unit}" if f.unit and f.unit != "%" else f.unit
         chips.append(["button", {"type": "button", "class": "chip", "aria-label": f"Set {f.label} to {s}{spoken}", "data-set": s}, f"{s}{shown}"])
-    wrap += [["label", {"for": fid}, f.label, _unit_span(f.unit)], *help_, control]
+    wrap += [["label", {"for": fid}, f.label, _unit_span(f.unit)], *help_]
+    if f.widget == "file":
+        wrap.append(file_node(f))
+    wrap.append(control)
     if chips:
         wrap.append(["div", {"class": "chips"}, *chips])
     wrap.append(err)
     return wrap
+
+
+def file_node(f: Field) -> list:
+    """The "Open file…" control of a ``file`` widget: a file input (kept in the focus order, drawn
+    as its label button) and a line for the chosen file's name and size, filled by the shell."""
+    fid = f"file-{f.name}"
+    return ["div", {"class": "file-open"},
+            ["input", {"type": "file", "id": fid, "class": "file-input", "data-file": True,
+                       "accept": ".csv,.txt,.tsv,.dat,.prn,text/csv,text/plain,text/tab-separated-values"}],
+            ["label", {"for": fid, "class": "btn file-btn"}, "Open file…"],
+            ["span", {"class": "muted file-info", "data-file-info": True, "aria-live": "polite"}]]
 
 
 def html(nodes: list) -> str:

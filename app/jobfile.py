@@ -194,19 +194,26 @@ def _check_entry(where: str, entry: Any, known: dict) -> None:
         raise _Bad(f"{where}: 'inputs' must be an object of field name → text, not {_json_type(inputs)}.")
     if len(inputs) > MAX_INPUTS:
         raise _Bad(f"{where}: 'inputs' has {len(inputs)} fields; at most {MAX_INPUTS} are allowed.")
-    fields = {f.name for f in known[ws].fields}
+    fields = {f.name: f for f in known[ws].fields}
     for name, value in inputs.items():
         if name not in fields and (len(name) > 64 or not _FIELD_NAME.match(name)):
             raise _Bad(f"{where}: input name {_quote(name)} is not a valid field name.")
         if not isinstance(value, str):
             raise _Bad(f"{where}: input '{name}' must be text, not {_json_type(value)}.")
-        if len(value) > MAX_INPUT_VALUE:
-            raise _Bad(
-                f"{where}: input '{name}' is {len(value)} characters long; at most {MAX_INPUT_VALUE} are allowed."
-            )
+        limit = input_limit(fields.get(name))
+        if len(value) > limit:
+            raise _Bad(f"{where}: input '{name}' is {len(value)} characters long; at most {limit} are allowed.")
         if not _utf8_ok(value):
             raise _Bad(f"{where}: input '{name}' holds a broken character (an unpaired surrogate).")
     _stamp(where, "updated", entry["updated"])
+
+
+def input_limit(field) -> int:
+    """Longest text kept for one input [characters]: :data:`MAX_INPUT_VALUE`, or for a field drawn as
+    a file (a load profile opened from the device) the limit its reader states (``max_chars``)."""
+    if field is not None and field.widget == "file" and field.max_chars:
+        return max(MAX_INPUT_VALUE, field.max_chars)
+    return MAX_INPUT_VALUE
 
 
 def check_job(job: Any, index: int = 1, known: Optional[dict] = None) -> Optional[str]:

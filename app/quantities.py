@@ -137,7 +137,7 @@ EXISTING_KVAR = Quantity(
 # --- loads
 POWER_FACTOR = Quantity(
     "", 0, 1, min_open=True, default="0.95", label="Power factor",
-    help="As a number from 0 to 1, e.g. 0.78 (not 78 %).", typical=("0.7", "0.95"),
+    help="e.g. 0.78, 78 %, 0.78 lag or 0.95 lead (a bare number is lagging).", typical=("0.7", "0.95"),
 )
 TARGET_POWER_FACTOR = POWER_FACTOR.but(
     suggest=("0.9", "0.92", "0.95", "0.98"), label="Target power factor (lagging)",

@@ -55,11 +55,25 @@ class Reading:
             value = [value.real, value.imag]
         elif f.kind == "table":
             value = None
-        d = {"name": f.name, "label": f.label, "unit": f.unit, "kind": f.kind, "text": self.text,
+        text = file_summary(self.text) if getattr(f, "widget", "") == "file" else self.text
+        d = {"name": f.name, "label": f.label, "unit": f.unit, "kind": f.kind, "text": text,
              "status": status, "value": value, "shown": self.shown if status == USED else shown_for(status, self.text)}
         if f.kind == "table":
             d["rows"] = self.cells
         return d
+
+
+FIRST_LINE = 80  # characters of a file's first line a report shows
+
+
+def file_summary(text: str) -> str:
+    """A file kept in a field, for a report: its size and first line, never the whole text."""
+    lines = text.splitlines()
+    first = next((ln.strip() for ln in lines if ln.strip()), "")
+    if len(first) > FIRST_LINE:
+        first = first[: FIRST_LINE - 1] + "…"
+    return (f"{len(text):,} characters ({len(text.encode('utf-8', 'replace')):,} bytes), {len(lines):,} lines; "
+            f"first line: {first}" if text.strip() else "(empty)")
 
 
 def shown_for(status: str, text: str) -> str:
@@ -74,8 +88,8 @@ def shown_for(status: str, text: str) -> str:
 def describe(field, value: Any, text: str, cells: Optional[list] = None) -> str:
     """The value as the computation uses it, for people: '480 V' for '0.48 kV' in a V field."""
     kind, unit = field.kind, field.unit
-    if isinstance(value, str) and kind != "choice":  # read as plain text (e.g. to test for a blank)
-        return value
+    if isinstance(value, str) and kind != "choice" and getattr(field, "widget", "") != "file":
+        return value  # read as plain text (e.g. to test for a blank)
     if kind == "number":
         if value is None:
             return "(blank)"
@@ -91,4 +105,6 @@ def describe(field, value: Any, text: str, cells: Optional[list] = None) -> str:
     if kind == "table":
         n = len(cells or [])
         return f"{n} row{'s' if n != 1 else ''}"
+    if getattr(field, "widget", "") == "file":
+        return file_summary(text)
     return text

@@ -15,6 +15,7 @@ from typing import Any, Callable, Optional
 from pycore.complexparse import parse_complex
 from pycore.errors import InputError
 from pycore.numparse import parse_quantity
+from pycore.pfparse import PowerFactor, parse_pf
 
 from . import fmt
 from .reading import INVALID, UNUSED, USED, Reading
@@ -24,7 +25,9 @@ KINDS = ("number", "complex", "choice", "table", "text", "list")
 # How a field is drawn (app/formview.py), by kind: the first widget of each list is the default,
 # except that a choice of at most BUTTON_CHOICES options defaults to a row of buttons.
 WIDGETS = {"choice": ("select", "buttons"), "table": ("table",), "number": ("input",), "complex": ("input",),
-           "text": ("input", "textarea"), "list": ("input", "textarea")}
+           "text": ("input", "textarea", "file"), "list": ("input", "textarea")}
+# A "file" widget is a multi-line text area the user may also fill from a file on the device; its
+# field states the longest text it keeps (``max_chars``), which the jobs file allows for it.
 BUTTON_CHOICES = 4
 
 # No quantity of this trade lies outside this band of magnitudes in its field's own unit
@@ -89,6 +92,7 @@ class Field:
     max_rows: int = 500
     placeholder: str = ""
     widget: str = ""
+    max_chars: Optional[int] = None  # longest text kept (a "file" widget): the reader's own limit
 
     def __post_init__(self):
         if self.kind not in KINDS:
@@ -127,6 +131,8 @@ class Field:
             d["max_rows"] = self.max_rows
         if self.placeholder:
             d["placeholder"] = self.placeholder
+        if self.max_chars:
+            d["max_chars"] = self.max_chars
         return d
 
 
@@ -256,6 +262,34 @@ class Inputs:
 
     def cplx(self, name: str) -> Optional[complex]:
         return self._record(name, self._cplx(name))
+
+    def pf(self, name: str, *, lagging: bool = False) -> Optional[PowerFactor]:
+        """A power-factor field, read by the one shared reader :func:`pycore.pfparse.parse_pf`
+        ("0.78", "78 %", "0.78 lag", "0.95 lead"); None if empty-and-optional or bad. With
+        ``lagging`` a leading value is refused at the field (a target for shunt capacitors)."""
+        f = self._field(name)
+        text = self.text_of(name).strip()
+        got = None
+        if not text:
+            if f.required:
+                self.fail(name, f"Enter {f.label.lower()}.")
+        else:
+            try:
+                got = parse_pf(text)
+            except InputError as e:
+                self.fail(name, str(e))
+            else:
+                if lagging and got.leading and got.value < 1.0:
+                    self.fail(name, f"{f.label} is taken as lagging here: capacitors aim at a lagging power factor "
+                                    "(e.g. 0.95).")
+                    got = None
+        self._record(name, None if got is None else got.value)
+        return got
+
+    def pf_value(self, name: str) -> Optional[float]:
+        """A lagging power-factor field's value [dimensionless] (see :meth:`pf`)."""
+        got = self.pf(name, lagging=True)
+        return None if got is None else got.value
 
     def numbers(self, name: str) -> Optional[list[float]]:
         """A ``list`` field's numbers (see :meth:`_numbers`)."""

@@ -58,8 +58,8 @@ def parse_pf(text: str) -> PowerFactor:
         raise InputError("Enter a power factor, " + EXAMPLES + ".")
     try:
         value, rest = split_number(text)
-    except InputError:
-        raise InputError(f"'{_short(text)}' is not a power factor; write it as a number, {EXAMPLES}.") from None
+    except InputError as e:  # keep the number reader's reason (decimal mark, not finite ...)
+        raise InputError(f"'{_short(text)}' is not a power factor: {e} Write it as a number, {EXAMPLES}.") from None
     rest = rest.lower()
     percent = rest.startswith("%")
     if percent:
@@ -72,8 +72,8 @@ def parse_pf(text: str) -> PowerFactor:
         raise InputError(f"'{_short(text)}' is not a power factor; write {EXAMPLES}.")
     if value < 0.0:
         raise InputError(
-            "A negative power factor means leading on some meters and exported power on others: "
-            "write 'lead' or 'lag' after the number instead (e.g. 0.95 lead)."
+            "A power factor is not negative (it lies above 0 and at most 1). A minus sign means leading on some "
+            "meters and exported power on others: write 'lead' or 'lag' after the number instead (e.g. 0.95 lead)."
         )
     if value == 0.0:
         raise InputError("A power factor of 0 means no real power: enter a value above 0.")

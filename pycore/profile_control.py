@@ -24,6 +24,10 @@ from .profile_time import month_of
 
 DAY_S = 86_400
 _TOL = 1e-9
+LEAD_SHARE_WARN = 0.05
+"""Share of importing intervals over-corrected (leading) above which a bank is flagged [fraction]:
+a few leading intervals at light load are usual, more than one in twenty is a bank or step too
+large for the light load (this app's screening choice, common practice)."""
 
 
 @dataclass(frozen=True)

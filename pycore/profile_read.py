@@ -35,6 +35,8 @@ MIXED_SHARE = 0.10
 """Above this share of steps at a second interval length (or rows off the interval grid) a file
 is refused as mixed; below it those rows are listed and left out (our own choice)."""
 _SAMPLE = 60
+PREAMBLE = "above the header: not a reading"
+"""Why a title or note line above the header is left out (listed, but not a lost reading)."""
 
 
 @dataclass
@@ -193,7 +195,7 @@ def read_profile(text: str, *, date_order: str = "auto", roles: str = "", stamps
         header = [c.strip() for c in rows[first - 1]]
         und.header = nums[first - 1]
         for i in range(first - 1):
-            skipped.append((nums[i], "above the header: not a reading"))
+            skipped.append((nums[i], PREAMBLE))
     data = rows[first:]
     dnums = nums[first:]
     if len(data) < 2:

@@ -18,11 +18,9 @@ from typing import Iterable, Optional
 
 from .correction import tan_phi
 from .errors import InputError, guarded
-from .numparse import split_number
+from . import pfparse
 from .phasor import power_factor
 
-_LAG_WORDS = {"lag", "lagging", "lg", "ind", "inductive"}
-_LEAD_WORDS = {"lead", "leading", "ld", "cap", "capacitive"}
 
 # Two power factors given for one row (PF and P, Q) may differ by this much before the row is
 # refused as contradictory (meter rounding; our own choice).
@@ -38,23 +36,8 @@ def parse_pf(text: str) -> tuple[float, bool]:
     and most plant loads (common practice). Raises :class:`InputError` for text that is not
     a power factor, for PF ≤ 0 or PF > 1 (impossible).
     """
-    value, rest = split_number(text)
-    rest = rest.lower()
-    if rest.startswith("%"):
-        value /= 100.0
-        rest = rest[1:]
-    leading = False
-    if rest in _LEAD_WORDS:
-        leading = True
-    elif rest and rest not in _LAG_WORDS:
-        raise InputError(f"'{str(text).strip()[:24]}' is not a power factor; write e.g. 0.85, 0.85 lag or 0.95 lead.")
-    if value > 1.0:
-        raise InputError(f"PF {value:g} is impossible: a power factor lies between 0 and 1.")
-    if value < 0.0:
-        raise InputError("A power factor is not negative; write 'lead' after it for a leading load (e.g. 0.95 lead).")
-    if value == 0.0:
-        raise InputError("PF 0 means no real power; enter Q (kvar) instead.")
-    return value, leading
+    got = pfparse.parse_pf(text)  # the one shared reader
+    return got.value, got.leading
 
 
 @guarded

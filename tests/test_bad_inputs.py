@@ -99,7 +99,9 @@ BAD = [
     ("correction", "p_kw", "inf", {}, "finite"),
     ("correction", "p_kw", "5e-324", {}, "out of range"),
     ("correction", "pf2", "1.01", {}, "at most 1"),
-    ("correction", "pf2", "95%", {}, "plain number"),
+    ("correction", "pf2", "0.95 lead", {}, "lagging"),  # "95%" is read now (the shared PF reader)
+    ("correction", "tx_kva", "", {"metering": "primary", "tx_z": ""}, "primary"),
+    ("correction", "tx_i0", "25", {"metering": "primary"}, "at most 20"),
     ("correction", "ratings", "5, 10, abc", {}, "item 3"),
     ("correction", "ratings", "5 kvra, 10", {}, "unknown unit"),
     ("correction", "ratings", "10 Gvar", {}, "at most"),

@@ -267,7 +267,6 @@ BAD = [
     ({"pf2": "0.7"}, "pf2"),  # target below the present 0.78
     ({"pf2": "0.78"}, "pf2"),  # target equal to present
     ({"pf2": "1.01"}, "pf2"),
-    ({"pf1_sense": "leading"}, "pf1_sense"),
     ({"p_kw": "-5"}, "p_kw"),
     ({"p_kw": "0"}, "p_kw"),
     ({"p_kw": ""}, "p_kw"),

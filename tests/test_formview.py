@@ -75,7 +75,7 @@ def test_tree_has_every_field_once_in_order_with_its_hooks(sheet_id):
         assert ("hidden" in w[1]) == (not ins.visible(f.name)), f.name
         assert ["p", {"class": "err", "id": f"err-{f.name}", "hidden": True}] in w[2:]
         kinds = {n[0] for n in walk(w[2:])}
-        expect = {"buttons": "fieldset", "select": "select", "input": "input", "textarea": "textarea", "table": "div"}[f.widget]
+        expect = {"buttons": "fieldset", "select": "select", "input": "input", "textarea": "textarea", "table": "div", "file": "textarea"}[f.widget]
         assert expect in kinds, f.name
         if f.widget == "buttons":
             radios = [n for n in walk(w[2:]) if n[0] == "input"]

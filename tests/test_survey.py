@@ -37,7 +37,7 @@ def test_parse_pf_accepts_field_spellings(text, pf, leading):
 @pytest.mark.parametrize("text, words", [
     ("1.2", "impossible"),
     ("120%", "impossible"),
-    ("0", "enter Q"),
+    ("0", "no real power"),  # the shared reader (pycore.pfparse) words it
     ("-0.9", "lead"),
     ("0.9 sideways", "not a power factor"),
     ("fast", "number"),

@@ -101,10 +101,37 @@ function bindField(f, w, value, set) {
   if (!control) return;
   control.defaultValue = text;
   control.addEventListener("input", () => set(control.value));
+  const file = w.querySelector("input[type=file][data-file]");
+  if (file) file.addEventListener("change", () => openFile(f, file, control, w.querySelector("[data-file-info]"), set));
   for (const b of w.querySelectorAll("button[data-insert]")) b.addEventListener("click", () => insertAtCursor(control, b.dataset.insert, set));
   for (const b of w.querySelectorAll("button[data-set]")) {
     b.addEventListener("click", () => { control.value = b.dataset.set; set(b.dataset.set); control.focus(); });
   }
+}
+
+const sizeText = (n) => (n >= 1e6 ? `${(n / 1e6).toFixed(1)} MB` : n >= 1e3 ? `${(n / 1e3).toFixed(0)} kB` : `${n} bytes`);
+
+/** A file chosen in a "file" widget, read as text into its text area (Python judges the text). */
+async function openFile(f, input, control, info, set) {
+  const chosen = input.files && input.files[0];
+  if (!chosen) return;
+  const what = `${chosen.name}, ${sizeText(chosen.size)}`;
+  // a file 4 bytes per character over the field's limit cannot fit: not read into memory at all
+  if (f.max_chars && chosen.size > 4 * f.max_chars) {
+    info.textContent = `${what}: too large to open here (at most ${sizeText(f.max_chars)} of text).`;
+    input.value = "";
+    return;
+  }
+  info.textContent = `${what}: reading…`;
+  try {
+    const text = await chosen.text();
+    control.value = text;
+    info.textContent = what;
+    set(text);
+  } catch {
+    info.textContent = `${what}: the file could not be read.`;
+  }
+  input.value = ""; // the same file may be chosen again after an edit
 }
 
 function insertAtCursor(input, text, set) {
@@ -165,6 +192,21 @@ function renderTable(f, value, set, box) {
     if (inputs.length) inputs[0].focus();
   });
   redraw();
+}
+
+/**
+ * Mark the results as being worked out (a compute slower than the shell's threshold) or done:
+ * a "Working…" status line at the top of the results and the previous answer dimmed. Generic.
+ */
+export function showWorking(section, on) {
+  let note = section.querySelector(":scope > .working");
+  if (on && !note) {
+    note = h("p", { class: "working", role: "status", text: "Working…" });
+    section.querySelector("h2")?.after(note);
+  } else if (!on && note) {
+    note.remove();
+  }
+  section.toggleAttribute("aria-busy", on);
 }
 
 const STATUS_WORD = { ok: "OK", warn: "Check", fail: "Fails" };

@@ -104,7 +104,11 @@ def _read_load(ins) -> dict:
         if vis(name) and t[:1] in ("-", "\u2212"):
             ins.fail(name, "Enter the power factor without a sign, from 0 to 1, and say lagging or leading.")
     vals = {}
-    for name in ("v_meas", "i_meas", "p_kw", "s_kva", "q_kvar", "pf1", "bill_kwh", "bill_kvarh", "bill_kw",
+    if vis("pf1"):
+        got = ins.pf("pf1")  # the shared reader: "0.78", "78 %", "0.78 lag", "0.95 lead"
+        vals["pf1"] = got.value if got else None
+        vals["pf1_lead"] = bool(got and got.leading and got.value < 1.0)
+    for name in ("v_meas", "i_meas", "p_kw", "s_kva", "q_kvar", "bill_kwh", "bill_kvarh", "bill_kw",
                  "bill_hours", "peak_kw", "peak_kva"):
         if vis(name):
             vals[name] = ins.num(name)
@@ -112,7 +116,7 @@ def _read_load(ins) -> dict:
 
 
 def _build_load(ins, basis: str, vals: dict, phases: int) -> Load:
-    lagging = ins.choice("pf1_sense") != "leading"
+    lagging = ins.choice("pf1_sense") != "leading" and not vals.get("pf1_lead")
     if basis in _SENSE_SETS and not lagging:
         raise FieldError("pf1_sense", "A leading power factor means the load already has more capacitance than it needs: "
                                       "adding capacitors would make it worse. Check the reading; if it is right, remove correction instead.")
@@ -228,7 +232,7 @@ def read_inputs(ins, *more):
     phases = 3 if ins.choice("phases") == "3" else 1
     basis = ins.choice("basis")
     vals = _read_load(ins)
-    pf2 = ins.num("pf2")
+    pf2 = ins.pf_value("pf2")
     existing = ins.num("existing_kvar")
     existing_in = ins.choice("existing_in") == "yes"
     cap_v = ins.num("cap_v")
@@ -241,7 +245,7 @@ def read_inputs(ins, *more):
     custom_text = ins.text("custom_steps") if ins.visible("custom_steps") else ""
     profile = ins.choice("profile")
     light_p = ins.num("light_p")
-    light_pf = ins.num("light_pf") if light_p is not None else None
+    light_pf = ins.pf_value("light_pf") if light_p is not None else None
     if light_p is not None and light_pf is None and "light_pf" not in ins.errors:
         ins.fail("light_pf", "Enter the power factor at the lightest load (or clear the lightest load).")
     tx_kva = ins.num("tx_kva")
@@ -286,7 +290,7 @@ def the_need(ins, cx):
     v_i = vals.get("v_meas") or v  # voltage for line currents: measured when given
     i1 = net.current(v_i, phases)
     need = net.p_kw * correction.kvar_per_kw(pf1, pf2)
-    factor = capacitor.output_factor(v, cap_v, f, cap_f)
+    factor = capacitor.output_factor(cx.v_cap, cap_v, f, cap_f)  # at the measured voltage when entered
     need_rated = need / factor
     cx.factor, cx.i1, cx.need, cx.need_rated, cx.net, cx.pf1 = factor, i1, need, need_rated, net, pf1
     cx.v_i = v_i
@@ -349,7 +353,7 @@ def currents(ins, cx):
     """Rated and system-voltage currents of the bank, the conductor basis and the protective-device range."""
     cap_v, delivered, phases, profile, total_rated, v = cx.cap_v, cx.delivered, cx.phases, cx.profile, cx.total_rated, cx.v
     i_rated = capacitor.line_current(total_rated, cap_v, phases)
-    i_sys = capacitor.line_current(delivered, v, phases)
+    i_sys = capacitor.line_current(delivered, cx.v_cap, phases)
     i_basis = max(i_rated, i_sys)
     basis_cable = capacitor.conductor_basis(i_basis, profile)
     prot_lo, prot_hi = capacitor.protection_range(i_rated)

@@ -21,6 +21,7 @@ from .. import quantities as Q
 from ..sheet import Field, Worksheet
 from . import _correction_checks as checks
 from . import _correction_order as order
+from . import _correction_metering as metering
 from . import _correction_steps as steps
 from ._correction_steps import (BASES, SRC_141, SRC_CAP, SRC_IEC, SRC_NEC, SRC_STEPS, SRC_TRIANGLE, _PF_SETS, _SENSE_SETS,
                                 _is_hp, _load_method, _pf_text, _q_text, _triangle_figure, _units_text)
@@ -70,6 +71,7 @@ FIELDS = [
     Field("existing_in", "Were they in service when the load figures were taken?", kind="choice", default="yes",
           options=[("yes", "Yes: the figures above include them"), ("no", "No: the figures are for the load alone")],
           help="A meter or bill reading taken with the capacitors on already includes them."),
+    *metering.FIELDS,
     # --- the capacitor
     Q.CAPACITOR_VOLTAGE.field("cap_v", default="480", group="Capacitor",
                               note="A higher-rated unit gives less kvar at system voltage: Q scales with V²."),
@@ -116,7 +118,11 @@ def compute(ins, out):
     cx = steps.read_inputs(ins, order.read_fields)
     if cx is None:
         return
+    metering.read(ins, cx)
+    if metering.answer_leading(ins, out, cx):
+        return
     steps.the_need(ins, cx)
+    metering.primary_need(cx)
     steps.plan_bank(ins, cx)
     steps.currents(ins, cx)
     _key_results(out, cx)
@@ -128,6 +134,7 @@ def compute(ins, out):
     checks.combinations_table(out, cx)
     order.plans(out, cx)
     order.order_list(out, cx)
+    metering.report(out, cx)
     _link(out, cx)
 
 
@@ -148,12 +155,13 @@ def _key_results(out, cx):
                    method="Step i = w_i × base; pattern " + ":".join(str(w) for w in weights) + f"; base {fmt.sig(plan.base)} kvar",
                    source=SRC_STEPS)
     out.result("q_need", "kvar needed at system voltage", need, "kvar", key=True,
-               method=f"Q = P·(tan φ₁ − tan φ₂) = {fmt.sig(net.p_kw)} kW × {correction.kvar_per_kw(pf1, pf2):.3f}", source=SRC_141)
+               method=getattr(cx, "need_method", "") or f"Q = P·(tan φ₁ − tan φ₂) = {fmt.sig(net.p_kw)} kW × {correction.kvar_per_kw(pf1, pf2):.3f}",
+               source=metering.SRC_TX if cx.metering == "primary" else SRC_141)
     off_rating = abs(factor - 1) > 1e-9
     out.result("q_need_rated", f"kvar needed at {fmt.sig(cap_v)} V, {fmt.sig(cap_f)} Hz (the rating to order)", need_rated, "kvar",
                key=off_rating, group="" if off_rating else "Sizing",
                method=f"Q_r = Q·(V_r/V)²·(f_r/f) = Q ÷ {factor:.4f}", source=SRC_CAP)
-    out.result("q_delivered", f"kvar the bank gives at {fmt.sig(v)} V, {fmt.sig(f)} Hz", delivered, "kvar", key=True,
+    out.result("q_delivered", f"kvar the bank gives at {fmt.sig(cx.v_cap)} V, {fmt.sig(f)} Hz", delivered, "kvar", key=True,
                method=f"Q = Q_r·(V/V_r)²·(f/f_r) = {fmt.sig(total_rated)} kvar × {factor:.4f}", source=SRC_CAP)
     order.pf_result(out, cx)
     cable_label = "Conductor ampacity at least"
@@ -200,8 +208,8 @@ def _detail_results(out, cx):
     G2 = "Sizing"
     out.result("k", "Multiplier (kvar per kW)", correction.kvar_per_kw(pf1, pf2), "kvar/kW", digits=4, group=G2,
                method="k = tan(acos PF₁) − tan(acos PF₂)", source=SRC_141)
-    out.result("factor", "Capacitor output at system voltage ÷ rated", factor, "", group=G2,
-               method=f"(V/V_r)²·(f/f_r) = ({fmt.sig(v)}/{fmt.sig(cap_v)})² × ({fmt.sig(f)}/{fmt.sig(cap_f)})", source=SRC_CAP)
+    out.result("factor", f"Capacitor output at {fmt.sig(cx.v_cap)} V ÷ rated", factor, "", group=G2,
+               method=f"(V/V_r)²·(f/f_r) = ({fmt.sig(cx.v_cap)}/{fmt.sig(cap_v)})² × ({fmt.sig(f)}/{fmt.sig(cap_f)})", source=SRC_CAP)
     out.result("excess", "Ordered above the need (rated)", total_rated - need_rated, "kvar", group=G2,
                display=f"{fmt.sig(total_rated - need_rated)} kvar ({fmt.sig(100 * (total_rated - need_rated) / need_rated, 3)} %)",
                method="Σ units − Q_r needed", source=SRC_STEPS)
@@ -224,7 +232,7 @@ def _detail_results(out, cx):
         out.result("c_1ph", "Capacitance", c_d, "µF", group=G3, method="C = Q_r/(2πf_r·V_r²)", source=SRC_CAP)
     out.result("i_rated", f"Rated current (at {fmt.sig(cap_v)} V, {fmt.sig(cap_f)} Hz)", i_rated, "A", group=G3,
                method="I_N = Q_r/(√3·V_r)" if phases == 3 else "I_N = Q_r/V_r", source=SRC_CAP)
-    out.result("i_sys", f"Current at {fmt.sig(v)} V, {fmt.sig(f)} Hz", i_sys, "A", group=G3,
+    out.result("i_sys", f"Current at {fmt.sig(cx.v_cap)} V, {fmt.sig(f)} Hz", i_sys, "A", group=G3,
                method="I = Q/(√3·V)" if phases == 3 else "I = Q/V", source=SRC_CAP)
     if phases == 3 and conn == "delta":
         out.result("i_branch", "Current in each delta branch (system voltage)", i_sys / math.sqrt(3), "A", group=G3,

@@ -3,34 +3,39 @@
 The user pastes (or opens) a logger export or a utility interval download; the worksheet says
 what it understood, gives the energy, the billing-average power factor, peaks, duration curves
 and a daily profile, the kvar by three measures, and runs a chosen bank against every interval.
-Links carry the design point into the correction worksheet and the worst month into savings.
+Links carry the design point into the correction worksheet and the month with the largest
+power-factor charge into savings (the bill: _profile_tariff.py).
 """
 
 from __future__ import annotations
 
 from pycore import capacitor, profile_columns, profile_stats as ps
 from pycore.errors import InputError
-from pycore.pfparse import parse_lagging_pf
-from pycore.profile_control import Bank, simulate
+from pycore.profile_control import LEAD_SHARE_WARN, Bank, simulate
 from pycore.profile_demo import demo_text
-from pycore.profile_read import INTERVALS_MIN, MAX_CHARS, read_profile
+from pycore.profile_read import INTERVALS_MIN, MAX_CHARS, PREAMBLE, read_profile
 from pycore.profile_time import DateOrderError, stamp_text
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
+from . import _profile_tariff as tariff
 
-SRC_BILL = "Billing-average PF = ΣkWh/√(ΣkWh² + Σkvarh²) (utility billing practice)"
-SRC_NEED = "kvar needed per interval max(0, Q − P·tan φ₂) (power triangle; IEEE Std 141, Red Book, power-factor chapter)"
-SRC_SHARE = SRC_NEED + "; lower empirical quantile of the intervals (numpy 'inverted_cdf' definition)"
-SRC_ENERGY = "Energy = Σ P·h over the intervals (definition of average demand)"
-SRC_SIM = "Controller modelled interval by interval, whole steps only (this app; common practice for PF controllers)"
-SRC_CAP = "Capacitor output Q = Q_r·(V/V_r)² (circuit theory: X_C = 1/(2πfC))"
+SRC_BILL = ref("practice_billing")
+SRC_NEED = cite("circuits_ac_power", "ieee141_pf")
+SRC_SHARE = cite("circuits_ac_power", "ieee141_pf", "quantile_lower")
+SRC_ENERGY = ref("def_energy")
+SRC_SIM = ref("practice_controller")
+SRC_CAP = ref("circuits_phasors")
+SRC_FILE = ref("input_file")
 LIST_MAX = 200  # rows listed in the skipped/flagged table; the rest are counted
 DEMO = demo_text(days=7, interval_min=60)
 
 FIELDS = [
     Field("profile", "Load profile (paste or open a file)", kind="text", default=DEMO, group="Profile",
+          widget="file", max_chars=MAX_CHARS,
           help=("Paste the rows of a logger export or the utility's interval download, or open the CSV or text "
                 f"file. Comma, semicolon or tab between columns; decimal point or comma; with or without a header; "
                 f"intervals of {', '.join(str(m) for m in INTERVALS_MIN)} minutes; at most {MAX_CHARS // 1_000_000} MB. "
@@ -45,9 +50,7 @@ FIELDS = [
           placeholder="e.g. time, kW, kvar",
           help=("Leave blank to read them from the header. Otherwise one word per column, in order: time (or date "
                 "and time), kW, kWh, kvar, kvarh, kvar lag, kvar lead, kvarh lag, kvarh lead, kVA, kVAh, PF, skip.")),
-    Field("target_pf", "Target power factor (lagging)", default="0.95", suggest=["0.9", "0.92", "0.95", "0.98"],
-          group="Target",
-          help="The utility's threshold or your own goal, e.g. 0.95 or 95 %."),
+    Q.TARGET_POWER_FACTOR.field("target_pf", default="0.95", group="Target"),
     Field("share", "Share of intervals to bring to the target", unit="%", default="95", min=50, max=100,
           suggest=["90", "95", "99", "100"],
           help="The bank is sized so that this share of the intervals meets the target; 100 % sizes for the worst interval."),
@@ -56,20 +59,19 @@ FIELDS = [
           help="Tariffs differ; the billing-average power factor and the monthly figures follow this choice."),
     Field("bank", "Bank to try against the profile", kind="choice", default="auto", group="Bank to try",
           options=[("auto", "Automatic bank in steps"), ("fixed", "Fixed bank"), ("none", "None")]),
-    Field("fixed_kvar", "Fixed bank", unit="kvar", default="150", min=0, min_open=True, max=1e6,
-          show_when={"field": "bank", "in": ["fixed"]}),
-    Field("steps", "Steps", kind="list", unit="kvar", default="25, 50, 50, 50, 50, 50", min=0, min_open=True, max=1e6,
-          show_when={"field": "bank", "in": ["auto"]},
-          help="The controller's steps in kvar, separated by commas (at most 12). It switches whole steps only."),
-    Field("fixed_part", "Fixed part always in", unit="kvar", default="0", required=False, min=0, max=1e6,
-          show_when={"field": "bank", "in": ["auto"]},
-          help="A fixed capacitor beside the steps, e.g. for a transformer's no-load kvar. Blank or 0 if none."),
-    Field("cap_v", "Capacitor rated voltage", unit="V", default="", required=False, min=50, max=100000,
-          show_when={"field": "bank", "in": ["auto", "fixed"]},
-          help="With the bus voltage, the kvar above are taken at the rating and scaled by (V/V_r)². Blank: at the bus."),
-    Field("v_bus", "Bus voltage (measured if you have it)", unit="V", default="", required=False, min=50, max=100000,
-          show_when={"field": "bank", "in": ["auto", "fixed"]}),
-]
+    Q.BANK_KVAR.field("fixed_kvar", "Fixed bank", default="150", show_when={"field": "bank", "in": ["fixed"]}),
+    Q.BANK_KVAR.but(help="The controller's steps, separated by commas (at most 12), at the bus voltage unless the "
+                         "capacitor's rating is given below. It switches whole steps only.").field(
+        "steps", "Steps", kind="list", default="25, 50, 50, 50, 50, 50", show_when={"field": "bank", "in": ["auto"]}),
+    Q.EXISTING_KVAR.but(help="A fixed capacitor beside the steps, always in (e.g. for a transformer's no-load kvar). "
+                             "Blank or 0 if none.").field(
+        "fixed_part", "Fixed part always in", default="0", required=False, show_when={"field": "bank", "in": ["auto"]}),
+    Q.CAPACITOR_VOLTAGE.field("cap_v", default="", required=False, show_when={"field": "bank", "in": ["auto", "fixed"]},
+                              note="With the bus voltage, the kvar above are taken at the rating and scaled by (V/V_r)². "
+                                   "Blank: at the bus."),
+    Q.MEASURED_VOLTAGE.field("v_bus", "Bus voltage (measured if you have it)", default="", required=False,
+                             show_when={"field": "bank", "in": ["auto", "fixed"]}),
+] + tariff.FIELDS
 
 
 def _pct(x: float) -> str:
@@ -125,6 +127,11 @@ def _bank(ins):
     return Bank(fixed, tuple(steps)), note
 
 
+def _lost(prof) -> int:
+    """Rows left out that looked like data (a title or note line above the header is not one)."""
+    return sum(1 for _, why in prof.skipped if why != PREAMBLE)
+
+
 def _stamp(prof, t: int) -> str:
     """A time as written in the file (the end of the interval when stamps mark the end)."""
     return stamp_text(t + (prof.interval_s if prof.understood.stamps == "end" else 0))
@@ -132,12 +139,9 @@ def _stamp(prof, t: int) -> str:
 
 def compute(ins, out):
     prof = _read(ins)
-    try:
-        target = parse_lagging_pf(ins.text("target_pf"))
-    except InputError as e:
-        ins.fail("target_pf", str(e))
-        target = None
+    target = ins.pf_value("target_pf")
     share = ins.num("share")
+    bill = tariff.read(ins)
     bank, bank_note = _bank(ins) if prof is not None else (None, "")
     if ins.errors or prof is None or target is None:
         return
@@ -152,17 +156,17 @@ def compute(ins, out):
     out.result("period", "Period", (u.last - u.first) / 86400 + h / 24, "days", group=g,
                display=f"{stamp_text(u.first)} to {stamp_text(u.last + prof.interval_s)} "
                        f"({fmt.sig((u.last - u.first + prof.interval_s) / 86400, 4)} days)",
-               method="first interval's start to last interval's end", source="The file")
+               method="first interval's start to last interval's end", source=SRC_FILE)
     out.result("interval", "Interval", u.interval_min, "min", group=g,
-               method="most common step between time stamps", source="The file")
+               method="most common step between time stamps", source=SRC_FILE)
     out.result("rows", "Intervals used", u.rows_used, "", group=g,
                display=f"{u.rows_used:,} of {u.rows_read:,} rows read", method="rows read less rows skipped",
-               source="The file", status="warn" if prof.skipped else "ok")
+               source=SRC_FILE, status="warn" if _lost(prof) else "ok")
     missing = sum(gap[2] for gap in prof.gaps)
     if missing:
         out.result("missing", "Intervals missing", missing, "", group=g, status="warn",
                    display=f"{missing:,} in {sum(1 for gp in prof.gaps if gp[2])} gap(s)",
-                   method="steps longer than the interval", source="The file")
+                   method="steps longer than the interval", source=SRC_FILE)
 
     # -- energy and peaks
     tot = ps.totals(p, q, h)
@@ -186,7 +190,7 @@ def compute(ins, out):
                method="largest interval kW (time as stamped)", source=SRC_ENERGY)
     out.result("peak_kva", "Peak apparent demand", tot.peak_kva, "kVA", group=g,
                display=f"{fmt.sig(tot.peak_kva)} kVA at {_stamp(prof, prof.t[tot.peak_kva_at])}",
-               method="largest √(P² + Q²) of an interval", source="Power triangle (circuit theory)")
+               method="largest √(P² + Q²) of an interval", source=ref("circuits_ac_power"))
 
     # -- bank size
     g = "Bank size"
@@ -200,7 +204,7 @@ def compute(ins, out):
                source=SRC_BILL)
     out.result("largest_step", "Largest step that keeps light load lagging", step_max, "kvar", key=True, group=g,
                method=f"the reactive power the load draws in at least {fmt.sig(100 * share)} % of intervals: a step or fixed "
-                      "part no larger leaves those intervals lagging", source="Power triangle (circuit theory); lower quantile")
+                      "part no larger leaves those intervals lagging", source=cite("circuits_ac_power", "quantile_lower"))
     dp, dq = p[design], q[design]
     out.notes.append(f"Design point: the interval at {_stamp(prof, prof.t[design])}, {fmt.sig(dp)} kW and {fmt.sig(dq)} kvar.")
 
@@ -214,7 +218,7 @@ def compute(ins, out):
         out.result("bank_size", "Bank", size, "kvar", group=g,
                    display=f"{fmt.sig(size)} kvar" + (f" ({bank_note})" if bank_note else ""),
                    method="fixed part + steps" + (", scaled to the bus voltage" if bank_note else ""),
-                   source=SRC_CAP if bank_note else "As entered")
+                   source=SRC_CAP if bank_note else ref("input"))
         out.result("pf_after", "Billing-average PF with the bank", w.pf_after, "", display=_pf(w.pf_after, w.sense_after),
                    key=True, group=g, method="ΣkWh/√(ΣkWh² + Σkvarh²) after the bank, whole profile", source=SRC_BILL,
                    status="ok" if w.pf_after >= target - 1e-12 and w.sense_after == "lagging" else "warn")
@@ -236,14 +240,15 @@ def compute(ins, out):
         if bank.fixed_kvar > step_max + 1e-9:
             out.warn(f"The fixed part ({fmt.sig(bank.fixed_kvar)} kvar) is more than the light-load reactive power "
                      f"({fmt.sig(step_max)} kvar): it makes light-load intervals lead.")
-        if w.lead > 0.05:
+        if w.lead > LEAD_SHARE_WARN:
             out.warn(f"{_pct(w.lead)} of the intervals lead with this bank: a leading power factor raises the voltage and may be billed.")
 
     _understood(out, prof)
     _figures(out, prof, target, sim, q_share)
-    _links(out, prof, target, design, sim, basis)
-    if prof.skipped:
-        out.warn(f"{len(prof.skipped):,} row(s) were left out: see the rows listed below.")
+    _links(out, prof, target, design)
+    tariff.monthly(out, *bill, prof, sim)
+    if _lost(prof):
+        out.warn(f"{_lost(prof):,} row(s) of data were left out: see the rows listed below.")
     if prof.gaps and missing:
         out.warn(f"{missing:,} interval(s) are missing from the period: totals cover only the intervals read.")
     n_exp = sum(1 for x in p if x < 0)
@@ -311,8 +316,10 @@ def _figures(out, prof, target, sim, q_share):
         desc="Mean kW and kvar for each time of day over the whole period."))
 
 
-def _links(out, prof, target, design, sim, basis):
+def _links(out, prof, target, design):
     p, q = prof.p, prof.q
+    if not ps.needs([p[design]], [q[design]], target)[0] > 0:
+        return  # the design interval already meets the target: Correction would size nothing
     inputs = {"basis": "p_q", "p_kw": f"{p[design]:.1f}", "q_kvar": f"{q[design]:.1f}", "pf2": f"{target:g}"}
     imp = sorted((a, i) for i, a in enumerate(p) if a > 0)
     light_p, li = imp[max(0, -(-len(imp) * 5 // 100) - 1)]  # the 5th-percentile kW interval
@@ -320,12 +327,6 @@ def _links(out, prof, target, design, sim, basis):
         inputs["light_p"] = f"{light_p:.1f}"
         inputs["light_pf"] = f"{light_p / abs(complex(light_p, q[li])):.3f}"
     out.link("Size the bank for the design point in Correction", "correction", inputs)
-    if sim is not None and sim.months:
-        worst = min(sim.months, key=lambda m: m.pf_before if m.sense_before == "lagging" else 2.0)
-        if worst.kwh > 0 and worst.kvarh_before > 0 and worst.pf_after > worst.pf_before and worst.sense_after == "lagging":
-            out.link(f"Savings for {worst.label} (the lowest month) in Savings", "savings", {
-                "tariff": "kvarh", "pf1": f"{worst.pf_before:.3f}", "pf2": f"{min(worst.pf_after, 1.0):.3f}",
-                "kwh_month": f"{worst.kwh:.0f}", "kvarh_month": f"{worst.kvarh_before:.0f}"})
 
 
 SHEET = Worksheet(
@@ -336,5 +337,5 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=25,
-    references=["IEEE Std 141 (Red Book), Recommended Practice for Electric Power Distribution for Industrial Plants, chapter on power factor"],
+    references=[ref("ieee141_pf"), ref("practice_billing")],
 )

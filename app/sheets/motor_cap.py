@@ -55,7 +55,7 @@ def compute(ins, out):
     v = ins.num("v")
     f = ins.num("f")
     i_full = ins.num("i_full")
-    pf_full = ins.num("pf_full")
+    pf_full = ins.pf_value("pf_full")
     basis = ins.choice("basis")
     i0 = ins.num("i0") if basis == "i0" else None
     lr = ins.num("lr_ratio") if basis == "rated" else None

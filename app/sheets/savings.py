@@ -121,15 +121,17 @@ def _bank_losses(out, vals, gross: float, cur: str):
 
 
 def compute(ins, out):
-    pf1 = ins.num("pf1")
-    pf2 = ins.num("pf2")
+    pf1 = ins.pf_value("pf1")
+    pf2 = ins.pf_value("pf2")
     tariff = ins.choice("tariff")
     cost = ins.num("cost")
     cur = ins.text("currency").strip()
     if len(cur) > 12:
         ins.fail("currency", "Use at most 12 characters for the currency.")
     vals = {}
-    for name in ("p_kw", "kva_price", "threshold", "penalty_pct", "bill", "penalty_amount", "kwh_month",
+    if ins.visible("threshold"):
+        vals["threshold"] = ins.pf_value("threshold")
+    for name in ("p_kw", "kva_price", "penalty_pct", "bill", "penalty_amount", "kwh_month",
                  "kvarh_month", "kvarh_price", "loss_kw", "hours_month", "energy_price", "bank_kvar", "bank_detuned",
                  "cap_w", "reactor_w", "bank_hours"):
         if ins.visible(name):

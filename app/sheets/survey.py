@@ -136,7 +136,7 @@ def _triangle(t) -> str:
 
 
 def compute(ins, out):
-    target = ins.num("target_pf")
+    target = ins.pf_value("target_pf")
     loads = _loads(ins)
     if ins.errors or loads is None or target is None:
         return

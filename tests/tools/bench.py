@@ -446,6 +446,58 @@ def report(r: dict) -> str:
     return "\n".join(lines)
 
 
+# Issue 15: a year of interval data read and analysed by the load-profile worksheet in the browser
+# engine (Pyodide in the worker), through the shell's own compute message. (name, interval [min],
+# target [ms]); printed beside the figures, never asserted.
+PROFILE_CASES = (("profile_15min_year_ms", 15, 1000), ("profile_5min_year_ms", 5, 3000))
+PROFILE_RUNS = 3
+
+
+def measure_profile(args) -> dict:
+    """Median time [ms] of the compute message for the load-profile worksheet with a generated year
+    of 15- and 5-minute data (pycore.profile_demo, invented), measured in the page around
+    ``engine.json('compute', ...)`` with the network off, after the engine is ready."""
+    from playwright.sync_api import sync_playwright
+
+    from pycore.profile_demo import demo_text
+
+    srv, url = build.serve_in_thread(args.dist)
+    out: dict = {}
+    with sync_playwright() as p:
+        browser = p.chromium.launch(executable_path=build.CHROMIUM, args=ARGS)
+        ctx = browser.new_context(viewport={"width": 390, "height": 844})
+        page = ctx.new_page()
+        page.goto(url + "#/sheet/load_profile")
+        page.wait_for_selector("#engine[data-state=ready]", timeout=120_000)
+        ctx.set_offline(True)
+        for name, minutes, _ in PROFILE_CASES:
+            text = demo_text(days=365, interval_min=minutes)
+            times = page.evaluate("""async ([text, n]) => {
+                const out = [];
+                for (let i = 0; i < n; i++) {
+                    const t0 = performance.now();
+                    const res = await window.fieldphasor.engine.json('compute', {worksheet: 'load_profile', inputs: {profile: text}});
+                    if (!res.ok) throw new Error(JSON.stringify(res.field_errors));
+                    out.push(performance.now() - t0);
+                }
+                return out;
+            }""", [text, PROFILE_RUNS])
+            out[name] = median(times)
+            out[name.replace("_ms", "_rows")] = 365 * 1440 // minutes
+        browser.close()
+    srv.shutdown()
+    return out
+
+
+def report_profile(r: dict) -> str:
+    lines = [f"{'load profile (read + analyse, network off)':46} {'value':>10}  {'target':12} met"]
+    for name, _, target in PROFILE_CASES:
+        v = r[name]
+        lines.append(f"{name + ' (' + format(r[name.replace('_ms', '_rows')], ',') + ' rows)':46} {v:8.1f} ms  "
+                     f"≤ {target} ms{'':4} {'yes' if v <= target else 'NO'}")
+    return "\n".join(lines)
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--dist", default=build.DIST)
@@ -459,6 +511,7 @@ def main():
     ap.add_argument("--only-visit", action="store_true",
                     help="measure only the first visits on the emulated links (slow: about a minute on 1.6 Mbit/s)")
     ap.add_argument("--no-visit", dest="visit", action="store_false", help="skip the first visits")
+    ap.add_argument("--no-profile", dest="profile", action="store_false", help="skip the load-profile year figures")
     args = ap.parse_args()
     if args.installer == "micropip":
         args.snapshot = False  # the worker makes and uses snapshots on its default install path only
@@ -469,6 +522,9 @@ def main():
         print(report(r))
     if args.visit:
         print(report_visits(r))
+    if args.profile and not args.only_visit:
+        r.update(measure_profile(args))
+        print(report_profile(r))
     path = args.out or os.path.join(args.dist, "bench.json")
     with open(path, "w") as fh:
         json.dump(r, fh, indent=2)

@@ -1,0 +1,147 @@
+"""The load-profile flow on a phone with the network off: open an invented logger export through the
+file control, see the duration curve and the recommended kvar, carry the design point into
+correction and the bill into savings, save it with the job and reopen it. A binary file gets a
+message at the file field. Screenshots at phone and tablet size go to test-artifacts/.
+
+The figures in the page are checked against the same worksheet computed in CPython (the engine is
+the same code; the reference for the figures themselves is numpy, in tests/test_load_profile_sheet.py).
+"""
+
+from __future__ import annotations
+
+from pycore.profile_demo import demo_text
+
+from .conftest import PHONE, TABLET, cpython_compute, guarded_page, settle, shot, wait_ready
+from .test_jobs import add_entry, back_to_job, new_job, wait_saved
+
+
+def logger_export(days: int = 28) -> str:
+    """An invented logger export: a title line, semicolons, decimal commas, 15-minute kW and kvar."""
+    rows = demo_text(days=days, interval_min=15).splitlines()
+    body = [r.replace(",", ";").replace(".", ",") for r in rows[1:]]
+    return "Logger LX-12 feeder 3 (invented)\nEnd of interval;kW;kvar\n" + "\n".join(body) + "\n"
+
+
+def key_value(page, name: str) -> str:
+    return page.inner_text(f"[data-result='{name}'] .a-value").strip()
+
+
+def open_profile(page, path):
+    page.set_input_files("#file-profile", str(path))
+    page.wait_for_function("(n) => document.querySelector('[data-file-info]').textContent.startsWith(n)", arg=path.name)
+    page.wait_for_function("(len) => document.getElementById('in-profile').value.length === len",
+                           arg=len(path.read_text(encoding="utf-8")))
+    settle(page)
+
+
+def test_open_a_logger_export_offline_carry_it_save_and_reopen(browser, site, tmp_path):
+    text = logger_export()
+    path = tmp_path / "feeder3-logger.csv"
+    path.write_text(text, encoding="utf-8")
+    expect = cpython_compute("load_profile", {"profile": text})
+    assert expect["ok"], expect["field_errors"]
+    want = {r["name"]: r["display"] for r in expect["results"]}
+
+    with guarded_page(browser, site, viewport=PHONE, device_scale_factor=2, is_mobile=True, has_touch=True) as page:
+        ctx = page.context
+        page.goto(site)
+        wait_ready(page)
+        page.evaluate("async () => { await navigator.serviceWorker.ready; }")
+        page.wait_for_function("() => !!navigator.serviceWorker.controller", timeout=30_000)
+        ctx.set_offline(True)
+
+        new_job(page, "Invented Dairy, feeder 3", "")
+        add_entry(page, "load_profile")
+        open_profile(page, path)
+        info = page.inner_text("[data-file-info]")
+        assert "feeder3-logger.csv" in info and "kB" in info  # the name and size shown
+        assert key_value(page, "kvar_share") == want["kvar_share"]
+        assert page.locator("figcaption", has_text="kvar duration").count() == 1
+        assert page.locator("figure.fig svg").first.is_visible()
+        shot(page, "load-profile-phone")
+        wait_saved(page)
+
+        # saved with the job: reload offline and reopen the entry
+        back_to_job(page)
+        page.reload()
+        wait_ready(page)
+        page.wait_for_selector("#jobs-title")
+        page.click(".entry-card >> nth=0 >> text=Open")
+        settle(page)
+        assert page.input_value("#in-profile") == text
+        assert key_value(page, "kvar_share") == want["kvar_share"]
+
+        # into correction
+        page.click("button:has-text('Size the bank for the design point in Correction')")
+        page.wait_for_function("() => window.fieldphasor.state.sheet.id === 'correction'")
+        settle(page)
+        assert page.locator("[data-result='q_need']").count() == 1
+        corr_link = next(lk for lk in expect["links"] if lk["worksheet"] == "correction")
+        assert page.input_value("#in-p_kw") == corr_link["inputs"]["p_kw"]
+
+        # into savings, from the reopened entry
+        page.click("#jobs-btn")  # back to the job's entry
+        page.wait_for_selector("#jobs-title")
+        if page.locator(".entry-card").count() == 0:
+            page.click(".job-card >> text=Open")
+        page.click(".entry-card >> nth=0 >> text=Open")
+        page.wait_for_function("() => window.fieldphasor.state.sheet.id === 'load_profile'")
+        settle(page)
+        sav_link = next(lk for lk in expect["links"] if lk["worksheet"] == "savings")
+        page.click(f"button:has-text({sav_link['label']!r})")
+        page.wait_for_function("() => window.fieldphasor.state.sheet.id === 'savings'")
+        settle(page)
+        assert page.input_value("#in-pf1") == sav_link["inputs"]["pf1"]
+        saved = cpython_compute("savings", sav_link["inputs"])
+        assert key_value(page, "monthly") == next(r["display"] for r in saved["results"] if r["name"] == "monthly")
+
+
+def test_a_binary_file_gets_a_message_at_the_field(browser, site, tmp_path):
+    path = tmp_path / "workbook.xlsx"
+    path.write_bytes(b"PK\x03\x04" + bytes(range(256)) * 8)  # a zip header and binary bytes (invented)
+    with guarded_page(browser, site, viewport=PHONE, is_mobile=True, has_touch=True) as page:
+        page.goto(site + "#/sheet/load_profile")
+        wait_ready(page)
+        settle(page)
+        page.set_input_files("#file-profile", str(path))
+        page.wait_for_selector("#err-profile:not([hidden])")
+        assert "not text" in page.inner_text("#err-profile")
+        assert "workbook.xlsx" in page.inner_text("[data-file-info]")
+
+
+def test_tablet_screenshot(browser, site, tmp_path):
+    path = tmp_path / "feeder3-logger.csv"
+    path.write_text(logger_export(), encoding="utf-8")
+    with guarded_page(browser, site, viewport=TABLET, has_touch=True) as page:
+        page.goto(site + "#/sheet/load_profile")
+        wait_ready(page)
+        settle(page)
+        open_profile(page, path)
+        assert page.locator("figcaption", has_text="kvar duration").count() == 1
+        shot(page, "load-profile-tablet")
+
+
+def test_a_long_compute_shows_working_and_the_page_responds(browser, site, tmp_path):
+    # a year of 15-minute data (35,040 rows, invented) takes the engine longer than 300 ms
+    path = tmp_path / "year-15min.csv"
+    path.write_text(demo_text(days=365, interval_min=15), encoding="utf-8")
+    with guarded_page(browser, site, viewport=PHONE, is_mobile=True, has_touch=True) as page:
+        page.goto(site + "#/sheet/load_profile")
+        wait_ready(page)
+        settle(page)
+        page.set_input_files("#file-profile", str(path))
+        page.wait_for_selector("#results > .working", state="attached", timeout=10_000)
+        box = page.evaluate("(() => { const r = document.querySelector('#results > .working').getBoundingClientRect(); "
+                            "return [r.width, r.height]; })()")
+        assert box[0] > 0 and box[1] > 0  # drawn, not only in the DOM
+        assert page.text_content("#results > .working") == "Working…"
+        # the page still answers a tap while the engine works: the theme changes at once
+        before = page.evaluate("document.documentElement.dataset.theme")
+        t0 = page.evaluate("performance.now()")
+        page.click("#theme-btn")
+        assert page.evaluate("document.documentElement.dataset.theme") != before
+        assert page.evaluate("performance.now()") - t0 < 1000
+        assert page.locator("#results > .working").count() == 1  # still working after the tap
+        settle(page, timeout=60_000)
+        assert page.locator("#results > .working").count() == 0
+        assert page.inner_text("[data-result='rows'] .r-value").startswith("35,040")
