@@ -8,41 +8,38 @@ import math
 from pycore import capduty, harmonicbus, harmonicsources, harmonicstudy, ieee519, resonancescreen
 from pycore.errors import InputError
 
+from pycore.references import cite, ref
+
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import xy_chart
 
-SRC_MODEL = ("Per-phase bus model, V_h = I_h·Z_bus(h): Dugan et al., Electrical Power Systems Quality (harmonics); "
-             "IEEE Std 399 (Brown Book)")
-SRC_18 = capduty.IEEE18_EDITION
-SRC_519 = ieee519.IEEE519_EDITION + ", Table 1 (voltage) and Table 2 (current, values from memory)"
-SRC_SCREEN = ("Resonance screen: lossless resonances across capacitance (IEEE Std 18) and transformer impedance "
-              "(IEEE C57.12.00, from memory) tolerances, ±band around each harmonic present")
-MAX_STEPS = 6
+SRC_MODEL = cite("dugan_harmonics", "ieee399_harmonics")
+SRC_519 = ieee519.IEEE519_EDITION
+SRC_SCREEN = cite("dugan", "ieee18", "c57_12_00", "practice_screen_band")
+SRC_PU = ref("ieee141_sc")
+MAX_STEPS = harmonicstudy.MAX_STEPS
 
 _TYPES = [(k, v.label) for k, v in harmonicsources.TYPICAL_SPECTRA.items()]
 
 FIELDS = [
-    Field("v_ll", "System voltage (line to line)", unit="V", default="480", min=100, max=1000,
-          suggest=["400", "480", "600", "690"], group="Supply and transformer",
-          help="Low-voltage bus the bank connects to; the fundamental is taken at this voltage."),
-    Field("f", "Frequency", unit="Hz", default="60", min=10, max=1000, suggest=["50", "60"]),
-    Field("tx_kva", "Transformer rating", unit="kVA", default="1500", min=0, min_open=True, max=1e5,
-          suggest=["500", "1000", "1500", "2500"]),
-    Field("tx_z", "Transformer impedance", unit="%", default="5.75", min=0.5, max=40, suggest=["4", "5.75", "6"]),
-    Field("tx_xr", "Transformer X/R ratio", default="6", required=False, min=0, min_open=True, max=100,
-          help="Empty: a pure reactance (no damping, the highest peaks)."),
-    Field("fault_mva", "Utility fault level", unit="MVA", default="", required=False, min=0, min_open=True, max=1e5,
-          help="At the transformer's primary. Empty: infinite bus (puts resonances slightly high)."),
-    Field("fault_xr", "Utility X/R ratio", default="", required=False, min=0, min_open=True, max=100,
-          help="Empty: the utility source is a pure reactance."),
+    Q.SYSTEM_VOLTAGE.field("v_ll", "System voltage (line to line)", default="480", group="Supply and transformer",
+                           note="The bus the bank connects to; the fundamental is taken at this voltage."),
+    Q.SYSTEM_FREQUENCY.field("f", default="60"),
+    Q.TRANSFORMER_KVA.field("tx_kva", default="1500"),
+    Q.TRANSFORMER_Z.field("tx_z", default="5.75"),
+    Q.TRANSFORMER_XR.field("tx_xr", default="6", required=False,
+                           note="Empty: a pure reactance (no damping, the highest peaks)."),
+    Q.FAULT_MVA.field("fault_mva", default="", required=False,
+                      note="Empty: infinite bus (puts resonances slightly high)."),
+    Q.TRANSFORMER_XR.but(label="Utility X/R ratio", help="Reactance over resistance of the utility source.")
+     .field("fault_xr", default="", required=False, note="Empty: the utility source is a pure reactance."),
     Field("r_vs_h", "Resistance against frequency", kind="choice", default="constant",
           options=[("constant", "Constant (default)"), ("sqrt", "Rising as √h (skin effect)")],
           help="How transformer and utility resistance change with harmonic order; √h is a common approximation."),
-    Field("load_kw", "Resistive load", unit="kW", default="300", required=False, min=0, max=1e6, group="Loads",
-          help="Heaters, lighting, resistive process load: a parallel resistance that damps resonance."),
-    Field("motor_kva", "Running motors", unit="kVA", default="400", required=False, min=0, max=1e6,
-          help="Direct-on-line motors: their locked-rotor reactance parallels the supply and moves resonances up."),
+    Q.DAMPING_LOAD.field("load_kw", "Resistive load", default="300", required=False, group="Loads"),
+    Q.RUNNING_MOTORS.field("motor_kva", default="400", required=False),
     Field("lr_ratio", "Motor locked-rotor current ratio", default="6", min=2, max=12, suggest=["5", "6", "7"],
           help="I_LR/I_FL; 5 to 7 is usual (from memory)."),
     Field("i_load", "Maximum demand current", unit="A", default="", required=False, min=0, min_open=True, max=1e6,
@@ -255,7 +252,7 @@ def _results(out, study, options, band, profile):
                display=f"× {fmt.sig(worst.amplification, 3)}", method="max |Z_bus(h)| with / without the bank at the "
                "harmonics present", source=SRC_MODEL)
     out.result("s_sc", "Short-circuit level at the bus", bus.s_sc_kva, "kVA", digits=4, group="Supply model",
-               method="S_sc = V²/|Z_utility + Z_transformer|", source="Per-unit method, IEEE Std 141")
+               method="S_sc = V²/|Z_utility + Z_transformer|", source=SRC_PU)
     rows = []
     for cb in study.combos:
         k = cb.check519
@@ -331,11 +328,7 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=22,
     references=[
-        "R. C. Dugan et al., Electrical Power Systems Quality (harmonic modelling of a bus)",
-        "IEEE Std 399 (Brown Book), harmonic analysis",
-        "IEEE Std 18-2002, shunt power capacitors (continuous limits, capacitance tolerance)",
-        "IEC 60831-1, self-healing LV shunt capacitors (voltage and current limits, from memory)",
-        "IEEE Std 519-2014, Tables 1 and 2",
-        "IEEE C57.12.00 (transformer impedance tolerance, from memory)",
+        ref("dugan_harmonics"), ref("ieee399_harmonics"), ref("ieee18"), ref("iec60831_duty"), ref("ieee519"),
+        ref("ieee519_t2"), ref("c57_12_00"), ref("spectra_typical"),
     ],
 )
