@@ -143,7 +143,7 @@ BAD = [
     ("bus_scan", "steps", "50, 50, x", {}, "item 3"),
     ("bus_scan", "steps", "50 Gvar", {}, "at most"),
     ("bus_scan", "steps", "50 Mvar", {}, "short-circuit"),  # as large as the bus fault level
-    ("bus_scan", "margin", "6", {}, "at most 5"),
+    ("bus_scan", "band", "40", {}, "at most 30"),
     # ------------------------------------------------------------------ detuned bank
     ("detuned", "u", "400 mV", {}, "at least 50"),
     ("detuned", "u", "400 kV", {}, "at most"),  # kilo for nothing

@@ -49,10 +49,10 @@ FIELDS = [
           help="One row per step: kvar delivered at the system voltage; plain or detuned with its detuning factor p; "
                "optional capacitor rated voltage (empty: system voltage for plain, next usual rating above U/(1 − p) "
                "+ 10 % for detuned). Every combination of steps is studied.",
-          columns=[Column("kvar", "Step", unit="kvar", min=0.001, max=1e5),
+          columns=[Column("kvar", "Step", unit="kvar", min=0.001, max=Q.BANK_KVAR.max),
                    Column("kind", "Type", kind="choice", options=[("plain", "plain"), ("detuned", "detuned")]),
                    Column("p", "p", unit="%", required=False, min=0, max=50),
-                   Column("u_rated", "Rated voltage", unit="V", required=False, min=100, max=2000)]),
+                   Q.CAPACITOR_VOLTAGE.column("u_rated", "Rated voltage", required=False)]),
     Field("reactor_q", "Reactor quality factor", default="50", min=5, max=500,
           help="X_L/R of the detuning reactors at the fundamental (typically 30 to 100, from memory)."),
     Field("source", "Harmonic source data", kind="choice", default="typical", group="Harmonic sources",
