@@ -242,7 +242,7 @@ BAD = [
     ("harmonic_study", "steps", table(["100", "detuned", "", ""]), {}, "detuning factor"),
     ("harmonic_study", "steps", table(["100", "detuned", "4", ""]), {}, "onto the 5th"),  # 1/√0.04 = 5
     ("harmonic_study", "steps", table(["100", "plain", "", ""], ["x", "plain", "", ""]), {}, "row 2"),
-    ("harmonic_study", "steps", table(["100 Mvar", "plain", "", ""]), {}, "short-circuit"),
+    ("harmonic_study", "steps", table(["40 Mvar", "plain", "", ""]), {}, "short-circuit"),
     ("harmonic_study", "steps", "[]", {}, "enter"),
     ("harmonic_study", "typical", "[]", {}, "enter"),  # no source data
     ("harmonic_study", "typical", table(["six_pulse_ideal", "-5"]), {}, "row 1"),

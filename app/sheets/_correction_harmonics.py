@@ -15,6 +15,7 @@ from pycore.errors import InputError
 from pycore.references import cite, ref
 
 from .. import fmt
+from .. import quantities as Q
 from ..sheet import Field, FieldError
 from . import _resonance_view as view
 
@@ -146,8 +147,14 @@ def bus_resonance_order(cx, on=None) -> float:
     return orders[0] if orders else supply.resonance_order(cx.s_sc, sum(s.q_kvar for s in steps))
 
 
-def study_link(out, cx) -> None:
-    """'Study harmonics for this bank': the bus, transformer, load and step plan into the study."""
+def sizing_texts(ins) -> dict:
+    """The correction inputs as typed (visible fields), for a round trip through the study."""
+    return {f.name: ins.text_of(f.name) for f in ins.sheet.fields if ins.visible(f.name) and ins.text_of(f.name) != ""}
+
+
+def study_link(ins, out, cx) -> None:
+    """'Study harmonics for this bank': the bus, transformer, load and step plan into the study, with
+    this sizing's inputs so that the study's recommendation can return here with a bank type."""
     if cx.tx_kva is None or cx.phases == 1:
         out.notes.append("Enter the supply transformer to study harmonics for this bank." if cx.tx_kva is None else
                          "The harmonic study models a three-phase bus; a single-phase bank is not linked to it.")
@@ -171,11 +178,14 @@ def study_link(out, cx) -> None:
         steps = merged
     inputs = {
         "v_ll": fmt.sig(cx.v, 6), "f": fmt.sig(cx.f, 6), "tx_kva": fmt.sig(cx.tx_kva, 6), "tx_z": fmt.sig(cx.tx_z, 6),
-        "tx_xr": "", "fault_mva": "" if cx.fault_mva is None else fmt.sig(cx.fault_mva, 6), "fault_xr": "",
+        # X/R is not asked here: the shared typical value, shown and editable in the study (undamped, an
+        # exact resonance on a harmonic would give infinite voltages)
+        "tx_xr": Q.TRANSFORMER_XR.default, "fault_mva": "" if cx.fault_mva is None else fmt.sig(cx.fault_mva, 6), "fault_xr": "",
         "load_kw": "", "motor_kva": "",
         "steps": json.dumps(steps),
         "source": "typical",
         "typical": json.dumps([["six_pulse_choke", fmt.sig(cx.net.p_kw, 6)]]),  # the whole load as drives until edited
         "i_load": fmt.sig(cx.i2, 6),
+        "sizing": json.dumps(sizing_texts(ins), separators=(",", ":"), ensure_ascii=False),
     }
     out.link("Study harmonics for this bank" + (" (steps paired)" if paired else ""), "harmonic_study", inputs)

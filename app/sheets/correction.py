@@ -128,7 +128,7 @@ def compute(ins, out):
     checks.light_load(out, cx)
     checks.supply_checks(out, cx)
     checks.combinations_table(out, cx)
-    harm.study_link(out, cx)
+    harm.study_link(ins, out, cx)
     _link(out, cx)
 
 

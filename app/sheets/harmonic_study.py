@@ -3,6 +3,7 @@ combination, with detuned alternatives side by side."""
 
 from __future__ import annotations
 
+import json
 import math
 
 from pycore import capduty, harmonicbus, harmonicsources, harmonicstudy, ieee519, resonancescreen
@@ -14,6 +15,7 @@ from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import xy_chart
+from ._correction_harmonics import bank_type_of
 
 SRC_MODEL = cite("dugan_harmonics", "ieee399_harmonics")
 SRC_519 = ieee519.IEEE519_EDITION
@@ -87,6 +89,9 @@ FIELDS = [
           help="±7.5 % of nameplate (IEEE C57.12.00, from memory)."),
     Field("band", "Band around each harmonic, ±", unit="%", default="10", min=0, max=30,
           help="Flag a resonance that can land within this relative distance of a harmonic present."),
+    Field("sizing", "Sizing this study came from", kind="text", default="", required=False, group="Return to sizing",
+          help="Filled in by the correction worksheet's link (its inputs); the recommendation's links return there "
+               "with the bank type chosen. Empty: those links open the correction worksheet with this bus only."),
 ]
 
 
@@ -216,10 +221,32 @@ def compute(ins, out):
     tol = resonancescreen.Tolerances(cap_lo / 100, cap_hi / 100, -z_tol / 100, z_tol / 100)
     study = harmonicstudy.run_study(bus, inj, i_load, profile, tol, band / 100)
     options = harmonicstudy.recommend(study)
-    _results(out, study, options, band / 100, profile)
+    back = _sizing(ins, v, f, kva, zp, fault)
+    try:
+        _results(out, study, options, band / 100, profile, back)
+    except InputError:  # an undamped resonance exactly on a harmonic: infinite voltages
+        raise FieldError("tx_xr" if xr is None else "load_kw",
+                         "A resonance lands exactly on a harmonic present with nothing to damp it, so the voltages "
+                         "would be infinite: enter the transformer X/R (typically 5 to 8) or a resistive load.") from None
 
 
-def _results(out, study, options, band, profile):
+def _sizing(ins, v, f, kva, zp, fault) -> dict:
+    """The correction inputs to return to (from the link that opened this study), or this bus alone."""
+    text = ins.text("sizing").strip()
+    if not text:
+        return {"v_ll": fmt.sig(v, 6), "f": fmt.sig(f, 6), "tx_kva": fmt.sig(kva, 6), "tx_z": fmt.sig(zp, 6),
+                "fault_mva": "" if fault is None else fmt.sig(fault, 6)}
+    try:
+        back = json.loads(text)
+    except ValueError:
+        back = None
+    if not isinstance(back, dict) or not all(isinstance(k, str) and isinstance(x, str) for k, x in back.items()):
+        raise FieldError("sizing", "This is not a set of correction inputs (it is filled in by the correction "
+                                   "worksheet's link): clear it.")
+    return back
+
+
+def _results(out, study, options, band, profile, back):
     bus, worst = study.bus, study.combos[0]
     G = f"Worst combination: {worst.label} ({fmt.sig(worst.kvar, 4)} kvar)"
     res = worst.resonances
@@ -277,7 +304,7 @@ def _results(out, study, options, band, profile):
                + [fmt.sig(abs(sol.steps[k][h]), 3) for k in worst.steps_in]
                for h in sorted(study.injection) if study.injection[h] > 0],
               note="Step currents are each step's branch current at that order (through its reactor when detuned).")
-    _recommendation(out, options)
+    _recommendation(out, options, back)
     # one warning per distinct electrical state: equal steps make many combinations alike
     seen, shown, more = set(), 0, 0
     for w in (w for cb in study.combos for w in cb.warnings):
@@ -298,7 +325,7 @@ def _results(out, study, options, band, profile):
     out.caution(cautions.SCREENING)
 
 
-def _recommendation(out, options):
+def _recommendation(out, options, back):
     if len(options) == 1:
         if options[0].study.amplifies and all(s.p > 0 for s in options[0].study.bus.steps):
             out.notes.append("The bank is already detuned; see the table for its duties.")
@@ -316,6 +343,10 @@ def _recommendation(out, options):
               note="Each option re-studied over every combination with the same kvar delivered at the system voltage; "
                    "detuned capacitors rated at the next usual voltage above U/(1 − p) + 10 %, kvar Q·(1 − p)·(U_R/U)².")
     out.warn("The plain bank amplifies harmonics present: detuned designs are compared in the recommendation table.")
+    for o in options[1:]:
+        kind = bank_type_of(o.p_percent / 100)
+        out.link(f"Order it detuned at {fmt.sig(o.p_percent)} % (correction worksheet)"
+                 + ("" if "basis" in back else ": enter the load there"), "correction", {**back, "bank_type": kind})
 
 
 SHEET = Worksheet(
