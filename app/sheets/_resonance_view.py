@@ -42,21 +42,26 @@ def rule_text(band: float = rs.DEFAULT_BAND, tol: rs.Tolerances = rs.Tolerances(
 
 
 def show(out, warnings, limit: int = MAX_SHOWN) -> None:
-    """Write the screen's warnings: one per distinct state (kind, harmonic, order), the first
+    """Write the screen's warnings: one per distinct state (kind, resonance order; equal steps give
+    the same state in several combinations), naming every harmonic that state reaches; the first
     ``limit`` in full, then a count."""
-    seen, shown, more = set(), 0, 0
+    states: dict = {}
     for w in warnings:
-        key = (w.kind, w.harmonic, round(w.order, 6))
-        if key in seen:
-            continue
-        seen.add(key)
-        if shown < limit:
-            out.warn(w.text)
-            shown += 1
-        else:
-            more += 1
-    if more:
-        out.warn(f"{more} more resonance-screen warnings for other combinations: see the table.")
+        states.setdefault((w.kind, round(w.order, 6)), []).append(w)
+    shown = 0
+    for ws in states.values():
+        if shown == limit:
+            break
+        first, hs = ws[0], sorted({w.harmonic for w in ws})
+        text = first.text
+        if len(hs) > 1:
+            named = ", ".join(f"{h}{th(h)}" for h in hs[:-1]) + f" and {hs[-1]}{th(hs[-1])}"
+            text = text.replace(f"reaches the {first.harmonic}{th(first.harmonic)} harmonic ",
+                                f"reaches the {named} harmonics ")
+        out.warn(text)
+        shown += 1
+    if len(states) > shown:
+        out.warn(f"{len(states) - shown} more resonance-screen warnings for other combinations: see the table.")
 
 
 def by_label(warnings) -> dict:

@@ -15,6 +15,7 @@ from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import xy_chart
+from . import _resonance_view as view
 from ._correction_harmonics import bank_type_of
 
 SRC_MODEL = cite("dugan_harmonics", "ieee399_harmonics")
@@ -160,11 +161,38 @@ def _th(h):
     return "th" if 10 <= h % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(h % 10, "th")
 
 
+_DUTY_WORDS = {"v_rms": "V rms", "v_peak": "V peak", "i_rms": "I rms", "kvar": "kvar"}
+
+
 def _duty_text(d):
     if d is None:
         return "—"
     name, val, lim, _ = max(d.rows, key=lambda r: r[1] / r[2])
-    return f"{fmt.sig(val, 3)} % {name.replace('_', ' ')} (limit {fmt.sig(lim, 3)} %), step {d.step + 1}"
+    return f"{_DUTY_WORDS[name]} {fmt.sig(val, 3)} % (max {fmt.sig(lim, 3)}), step {d.step + 1}"
+
+
+def _alike(rows):
+    """Rows that differ only in their first cell (equal steps give the same electrical state) as one row,
+    the first label and a count of the others."""
+    out, index = [], {}
+    for r in rows:
+        key = tuple(r[1:])
+        if key in index:
+            out[index[key]][1] += 1
+        else:
+            index[key] = len(out)
+            out.append([r, 0])
+    return [[r[0] + (f" (+{n} alike)" if n else "")] + r[1:] for r, n in out]
+
+
+def _order_text(order):
+    """What to order per step, identical steps counted: '4 × 72.7 kvar at 600 V + 0.92 mH (65.6 A)'."""
+    groups: dict = {}
+    for q, u_r, q_r, l_mh, i_max in order:
+        text = f"{fmt.sig(q_r, 3)} kvar at {fmt.sig(u_r, 3)} V" + ("" if l_mh is None else
+                                                                   f" + {fmt.sig(l_mh, 3)} mH ({fmt.sig(i_max, 3)} A)")
+        groups[text] = groups.get(text, 0) + 1
+    return "; ".join((f"{n} × " if n > 1 else "") + t for t, n in groups.items())
 
 
 def _figure(study, worst, harmonics, band):
@@ -287,6 +315,7 @@ def _results(out, study, options, band, profile, back):
                      fmt.sig(k.thd_v, 3), f"{fmt.sig(k.v_worst, 3)} ({k.v_worst_h})", _duty_text(cb.worst_duty),
                      "ok" if k.ok_voltage else "over", "ok" if k.ok_current else "over",
                      ", ".join(f"{w.harmonic}{_th(w.harmonic)}" for w in cb.warnings) or "clear"])
+    rows = _alike(rows)
     out.table("Every step combination, worst first", ["Steps in", "kvar", "Resonance orders", "THD_V %",
               "Largest V_h % (order)", "Worst duty", "IEEE 519 voltage", "IEEE 519 current", "Resonance screen"], rows,
               note=f"Bank out: THD_V {fmt.sig(study.bank_out.thd_v, 3)} %. Screen: ±{fmt.sig(band * 100)} % around "
@@ -305,20 +334,7 @@ def _results(out, study, options, band, profile, back):
                for h in sorted(study.injection) if study.injection[h] > 0],
               note="Step currents are each step's branch current at that order (through its reactor when detuned).")
     _recommendation(out, options, back)
-    # one warning per distinct electrical state: equal steps make many combinations alike
-    seen, shown, more = set(), 0, 0
-    for w in (w for cb in study.combos for w in cb.warnings):
-        key = (w.kind, w.harmonic, round(w.order, 6))
-        if key in seen:
-            continue
-        seen.add(key)
-        if shown < 6:
-            out.warn(w.text)
-            shown += 1
-        else:
-            more += 1
-    if more:
-        out.warn(f"{more} more screening warnings: see the resonance screen column of the table of combinations.")
+    view.show(out, [w for cb in study.combos for w in cb.warnings])  # one per distinct state
     out.figure("Bus impedance against harmonic order", _figure(study, worst, study.harmonics, band))
     out.notes.append("Assumptions: per-phase model at the system voltage; harmonic currents of all sources add in phase "
                      "(the worst case); capacitor losses neglected; the bus is taken as the point of common coupling.")
@@ -333,13 +349,12 @@ def _recommendation(out, options, back):
     rows = []
     for o in options:
         w = o.study.combos[0]
-        order = "; ".join(f"{fmt.sig(q_r, 3)} kvar at {fmt.sig(u_r, 3)} V" + ("" if l_mh is None else
-                          f" + {fmt.sig(l_mh, 3)} mH, {fmt.sig(i_max, 3)} A rms") for q, u_r, q_r, l_mh, i_max in o.order)
+        order = _order_text(o.order)
         rows.append([o.label, fmt.sig(max(c.thd_v for c in o.study.combos), 3),
                      fmt.sig(max(max(c.v_pct.values()) for c in o.study.combos), 3), _duty_text(w.worst_duty),
                      str(sum(len(c.warnings) for c in o.study.combos)), order])
     out.table("Recommendation: plain and detuned side by side", ["Design", "Worst THD_V %", "Worst V_h %", "Worst duty",
-              "Screen warnings", "To order per step (capacitor rating; reactor per phase)"], rows,
+              "Screen warnings", "To order per step: capacitor rating + reactor per phase (its rms A)"], rows,
               note="Each option re-studied over every combination with the same kvar delivered at the system voltage; "
                    "detuned capacitors rated at the next usual voltage above U/(1 − p) + 10 %, kvar Q·(1 − p)·(U_R/U)².")
     out.warn("The plain bank amplifies harmonics present: detuned designs are compared in the recommendation table.")
