@@ -274,6 +274,14 @@ BAD = [
     ("load_profile", "share", "30", {}, "at least 50"),
     ("load_profile", "steps", "25, -5", {}, "item 2"),
     ("load_profile", "fixed_kvar", "0", {"bank": "fixed"}, "above 0"),
+    # ------------------------------------------------------------------ issue 14, wave 2
+    ("harmonic_study", "sizing", "not json", {}, "not a set of correction inputs"),
+    ("harmonic_study", "sizing", "[1, 2]", {}, "clear it"),
+    ("harmonic_study", "tx_xr", "",  # undamped, 4 × 100 kvar on 1000 kVA at 40 %: 2500/100 puts one step on the 5th
+     {"tx_kva": "1000", "tx_z": "40", "load_kw": "", "motor_kva": "",
+      "steps": table(*[["100", "plain", "", ""]] * 4)}, "nothing to damp"),
+    ("bus_scan", "cap_lo", "-30", {}, "at least"),
+    ("bus_scan", "z_tol", "26", {}, "at most 25"),
 ]
 
 # Words a message for a person never contains (Python internals leaking through).

@@ -7,7 +7,7 @@ import json
 import math
 
 from pycore import capduty, harmonicbus, harmonicsources, harmonicstudy, ieee519, resonancescreen
-from pycore.errors import InputError
+from pycore.errors import OUT_OF_RANGE, InputError
 
 from pycore.references import cite, ref
 
@@ -247,12 +247,15 @@ def compute(ins, out):
         if not i_load > 0:
             raise FieldError("i_load", "Enter the maximum demand current: no load declared here gives it.")
     tol = resonancescreen.Tolerances(cap_lo / 100, cap_hi / 100, -z_tol / 100, z_tol / 100)
-    study = harmonicstudy.run_study(bus, inj, i_load, profile, tol, band / 100)
-    options = harmonicstudy.recommend(study)
     back = _sizing(ins, v, f, kva, zp, fault)
     try:
+        study = harmonicstudy.run_study(bus, inj, i_load, profile, tol, band / 100)
+        options = harmonicstudy.recommend(study)
         _results(out, study, options, band / 100, profile, back)
-    except InputError:  # an undamped resonance exactly on a harmonic: infinite voltages
+    except InputError as e:
+        if str(e) != OUT_OF_RANGE:
+            raise FieldError("steps", str(e)) from None
+        # an undamped resonance exactly on a harmonic: infinite voltages
         raise FieldError("tx_xr" if xr is None else "load_kw",
                          "A resonance lands exactly on a harmonic present with nothing to damp it, so the voltages "
                          "would be infinite: enter the transformer X/R (typically 5 to 8) or a resistive load.") from None
