@@ -156,7 +156,7 @@ APPARENT_POWER = Quantity(
     help="kVA, VA or MVA.", typical=("540",),
 )
 
-# --- the harmonic bus model (issue 14)
+# --- the harmonic bus model
 DAMPING_LOAD = Quantity(
     "kW", 0, REAL_POWER.max, default="", label="Resistive load (damping)",
     help="Load that damps resonance, modelled as a resistance V²/P (heaters, lighting, resistive process load); "

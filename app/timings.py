@@ -11,7 +11,7 @@ from pycore import harmonicstudy
 
 
 def _study_64() -> None:
-    """Six-step bank, 64 combinations, orders 2–50, duty and IEEE 519 checks (the issue-14 speed case)."""
+    """Six-step bank, 64 combinations, orders 2–50, duty and IEEE 519 checks (the study's speed case)."""
     st = harmonicstudy.demo_six_step()
     assert len(st.combos) == 63  # 64 states with the bank-out state kept apart
 

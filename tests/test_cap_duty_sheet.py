@@ -3,8 +3,8 @@
 
 References: IEC 60831-1 limits 1.00·U_N continuously, 1.10·U_N for 8 h in 24 h, 1.30·I_N (from
 memory); IEEE Std 18-2002 continuous limits 110/120/135/135 %; the capacitor behind a reactor sees
-U/(1 − p) (circuit theory). The bank-out case follows issue 14: a reading taken with the bank out
-of service cannot show the bank's duty once it is in.
+U/(1 − p) (circuit theory). A reading taken with the bank out of service cannot show the bank's duty
+once it is in: the bank changes the bus impedance at every harmonic (Dugan et al., harmonics chapters).
 """
 
 from __future__ import annotations
@@ -22,7 +22,7 @@ def test_iec_profile_passes_400_v_415_v_7_percent_only_for_8_hours():
     inp = dict(u_bus="400", u_rated="415", f_rated="50", p="7", spectrum='[["5","0"]]')
     ieee = registry.run("cap_duty", inp)
     iec = registry.run("cap_duty", {**inp, "duty_profile": "iec60831"})
-    v = 400 / (1 - 0.07) / 415 * 100  # 103.6 % of rated (issue 14 quotes 103.7 %)
+    v = 400 / (1 - 0.07) / 415 * 100  # 103.6 % of rated (hand arithmetic)
     assert res(iec, "v_rms")["value"] == pytest.approx(v, rel=1e-6)
     assert res(ieee, "verdict")["status"] == "ok"  # under IEEE 18's 110 %
     assert res(iec, "v_rms")["status"] == "warn"  # over 1.00·U_N, within 1.10·U_N for 8 h in 24 h
@@ -41,7 +41,7 @@ def test_iec_current_limit_is_130_percent():
 
 
 def test_a_bank_out_spectrum_does_not_claim_within_limits_and_offers_the_study():
-    # issue 14: 480 V, 2 % 5th read before the bank; the worksheet must not say "within all limits"
+    # 480 V, a 2 % 5th read before the bank is switched in: the worksheet must not say "within all limits"
     inp = dict(u_bus="480", u_rated="480", f_rated="60", q_rated="100", spectrum='[["5","2"]]')
     inside = registry.run("cap_duty", {**inp, "bank_state": "in"})
     assert res(inside, "verdict")["display"] == "Within all IEEE Std 18 limits"

@@ -2,8 +2,7 @@
 resonance-screening rule as the correction, bus-scan and detuned worksheets show it.
 
 Outside references named beside each check: the resonance order h = √(S_sc/Q) (IEEE Std 1036;
-Dugan et al.), confirmed for the 1,500 kVA case by the ngspice sweep quoted in issue 14 (order
-7.91, 474 Hz); tolerances capacitance 0 to +10 % (IEEE Std 18) and transformer impedance ±7.5 %
+Dugan et al.), worked by hand for the 1,500 kVA case (order 7.91, 474 Hz); tolerances capacitance 0 to +10 % (IEEE Std 18) and transformer impedance ±7.5 %
 (IEEE C57.12.00, from memory); the detuned-branch formulas U_C = U/(1 − p), X_C = U²/(Q(1 − p)),
 L = p·X_C/ω (circuit theory; IEC 61642); usual capacitor ratings (makers' catalogues, common practice).
 """
@@ -35,7 +34,7 @@ def _hand_range():
 
 def test_hand_arithmetic_puts_the_1500_kva_case_inside_the_7th_band():
     h, lo, hi = _hand_range()
-    assert h == pytest.approx(7.91, abs=0.005)  # the ngspice sweep of issue 14: 7.91 (474 Hz)
+    assert h == pytest.approx(7.91, abs=0.005)  # hand arithmetic: 7.906 × 60 Hz = 474 Hz
     assert lo < 7 * 1.10 < h  # nominal outside the ±10 % band, the tolerance range reaches it
 
 

@@ -1,7 +1,7 @@
 """The benchmark's named cases (app/timings.py) and the bridge's door to them.
 
-The speed target itself (study_64 ≤ 150 ms in Pyodide, issue 14) is printed by the benchmark, never
-asserted. Checked here: the case is the one the issue names (six steps, 64 combinations, orders 2–50
+The speed target itself (study_64 ≤ 150 ms in Pyodide) is printed by the benchmark, never
+asserted. Checked here: the case is the one the target names (six steps, 64 combinations, orders 2–50
 with duty and IEEE 519 checks), the worksheet case is the same plant, and the door never raises.
 """
 

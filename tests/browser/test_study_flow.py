@@ -1,8 +1,7 @@
 """From the correction worksheet into the harmonic study on a phone, and the study read on a tablet.
 
-The case is issue 14's: a 1,500 kVA, 6 % transformer at 480 V, 60 Hz with a 400 kvar plain bank,
-whose resonance (order 7.91, 474 Hz: √(S_sc/Q), IEEE Std 1036, confirmed by the issue's ngspice
-sweep) can reach the 7th across the capacitance (IEEE Std 18) and impedance (IEEE C57.12.00, from
+The case: a 1,500 kVA, 6 % transformer at 480 V, 60 Hz with a 400 kvar plain bank, whose
+resonance (order 7.91, 474 Hz: √(S_sc/Q), IEEE Std 1036, worked by hand) can reach the 7th across the capacitance (IEEE Std 18) and impedance (IEEE C57.12.00, from
 memory) tolerances. The study run in the browser must give what CPython gives for the same inputs.
 """
 

@@ -441,7 +441,7 @@ def report(r: dict) -> str:
     return "\n".join(lines)
 
 
-# --- harmonic study speed (issue 14): timed inside the browser engine through the generic
+# --- harmonic study speed: timed inside the browser engine through the generic
 # `time_call` operation (app/timings.py names the case; no engineering in JavaScript)
 STUDY_TARGET_MS = 150
 STUDY_RUNS = 15
