@@ -274,7 +274,7 @@ BAD = [
     ("load_profile", "share", "30", {}, "at least 50"),
     ("load_profile", "steps", "25, -5", {}, "item 2"),
     ("load_profile", "fixed_kvar", "0", {"bank": "fixed"}, "above 0"),
-    # ------------------------------------------------------------------ issue 14, wave 2
+    # ------------------------------------------------------------------ harmonic study, bus scan tolerances
     ("harmonic_study", "sizing", "not json", {}, "not a set of correction inputs"),
     ("harmonic_study", "sizing", "[1, 2]", {}, "clear it"),
     ("harmonic_study", "tx_xr", "",  # undamped, 4 × 100 kvar on 1000 kVA at 40 %: 2500/100 puts one step on the 5th
