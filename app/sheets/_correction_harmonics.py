@@ -9,6 +9,7 @@ Other helpers read the bank type through :func:`detuning_factor`.
 from __future__ import annotations
 
 import json
+import math
 
 from pycore import capacitor, detuning, harmonicbus, harmonicstudy, resonancescreen, supply
 from pycore.errors import InputError
@@ -93,22 +94,36 @@ def reactors(out, cx) -> None:
                method="n = 1/√p; U_C = U/(1 − p); Q_r = Q·(1 − p)·(U_r/U)²", source=SRC_DETUNED)
 
 
+def _bus(cx):
+    """The lossless bus of the screen with every capacitor of this sizing: the existing (plain) first,
+    then the steps; built once per computation. Returns (bus, offset of step 1)."""
+    if getattr(cx, "_hbus", None) is None:
+        p = getattr(cx, "p", 0.0)
+        ex = [harmonicbus.Step(cx.existing)] if cx.existing > 0 else []
+        steps = ex + [harmonicbus.Step(s, p) for s in cx.steps_sys]
+        cx._hbus = (harmonicbus.build_bus(cx.v, cx.f, cx.tx_kva, cx.tx_z, None,
+                                          None if cx.fault_mva is None else cx.fault_mva * 1000.0, None, None, None,
+                                          harmonicbus.LOCKED_ROTOR_RATIO_DEFAULT, steps), len(ex))
+    return cx._hbus
+
+
+def _indices(cx, on=None) -> list:
+    bus, off = _bus(cx)
+    return list(range(off)) + [off + i - 1 for i in (on if on is not None else range(1, len(cx.steps_sys) + 1))]
+
+
 def screen(cx) -> list:
     """The resonance screen for the correction: all capacitors in (existing and new), then each
     step combination, against the low characteristic orders (+3rd for single-phase loads);
-    upstream fault level from the supply fields. [] when no transformer is entered."""
+    upstream fault level from the supply fields (resonancescreen.screen on one bus; the same rule
+    as screen_bank). [] when no transformer is entered."""
     if cx.tx_kva is None:
         return []
-    p = getattr(cx, "p", 0.0)
-    ex = [(cx.existing, 0.0)] if cx.existing > 0 else []
-    combos = [(ALL_IN, ex + [(s, p) for s in cx.steps_sys])]
+    combos = [(ALL_IN, _indices(cx))]
     if cx.bank == "auto":
-        for c in cx.combos:
-            on = [(cx.steps_sys[i - 1], p) for i in c.on]
-            combos.append((combo_label(c), ex + on))
+        combos += [(combo_label(c), _indices(cx, c.on)) for c in cx.combos]
     try:
-        return resonancescreen.screen_bank(cx.v, cx.f, cx.tx_kva, cx.tx_z, combos, cx.near_orders,
-                                           None if cx.fault_mva is None else cx.fault_mva * 1000.0)
+        return resonancescreen.screen(_bus(cx)[0], combos, cx.near_orders)
     except InputError as e:  # pragma: no cover - the fields are range-checked and the bank fits the bus
         raise FieldError("tx_kva", str(e)) from None
 
@@ -134,17 +149,12 @@ def resonance_result(out, cx, h: float, warnings: list) -> None:
 
 
 def bus_resonance_order(cx, on=None) -> float:
-    """Lowest parallel-resonance order with all capacitors in [-], on the lossless bus of the
-    screen (:mod:`pycore.resonancescreen`): √(S_sc/Q) for plain capacitors, 1/√(Q_C/S_sc + p) for a
-    detuned bank alone, and the mixed case of existing plain capacitors beside a detuned bank.
-    ``on``: the step numbers in (1-based; None: all steps)."""
-    p = getattr(cx, "p", 0.0)
-    new = cx.steps_sys if on is None else [cx.steps_sys[i - 1] for i in on]
-    steps = ([harmonicbus.Step(cx.existing)] if cx.existing > 0 else []) + [harmonicbus.Step(s, p) for s in new]
-    bus = harmonicbus.build_bus(cx.v, cx.f, cx.tx_kva, cx.tx_z, None, None if cx.fault_mva is None else cx.fault_mva * 1000.0,
-                                None, None, None, harmonicbus.LOCKED_ROTOR_RATIO_DEFAULT, steps)
-    orders = resonancescreen.resonance_orders(bus, range(len(steps)))
-    return orders[0] if orders else supply.resonance_order(cx.s_sc, sum(s.q_kvar for s in steps))
+    """Lowest parallel-resonance order [-] of the lossless bus of the screen (:mod:`pycore.resonancescreen`)
+    with the existing capacitors and the steps ``on`` in (1-based; None: all steps): √(S_sc/Q) for plain
+    capacitors, 1/√(Q_C/S_sc + p) for a detuned bank alone, and the mixed case of existing plain
+    capacitors beside a detuned bank."""
+    orders = resonancescreen.resonance_orders(_bus(cx)[0], _indices(cx, on))
+    return orders[0] if orders else math.inf
 
 
 def sizing_texts(ins) -> dict:
