@@ -9,7 +9,6 @@ Other helpers read the bank type through :func:`detuning_factor`.
 from __future__ import annotations
 
 import json
-import math
 
 from pycore import capacitor, detuning, harmonicbus, harmonicstudy, resonancescreen, supply
 from pycore.errors import InputError
@@ -153,8 +152,10 @@ def bus_resonance_order(cx, on=None) -> float:
     with the existing capacitors and the steps ``on`` in (1-based; None: all steps): √(S_sc/Q) for plain
     capacitors, 1/√(Q_C/S_sc + p) for a detuned bank alone, and the mixed case of existing plain
     capacitors beside a detuned bank."""
-    orders = resonancescreen.resonance_orders(_bus(cx)[0], _indices(cx, on))
-    return orders[0] if orders else math.inf
+    bus, idx = _bus(cx)[0], _indices(cx, on)
+    orders = resonancescreen.resonance_orders(bus, idx)
+    # above the search range (a tiny bank on a stiff bus): the lossless estimate
+    return orders[0] if orders else supply.resonance_order(cx.s_sc, sum(bus.steps[k].q_kvar for k in idx))
 
 
 def sizing_texts(ins) -> dict:
