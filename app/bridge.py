@@ -185,3 +185,14 @@ def export_jobs(jobs_json: str, options_json: str = "{}") -> str:
     except Exception as exc:
         traceback.print_exc()
         return json.dumps({"ok": False, "error": f"The jobs could not be exported ({type(exc).__name__})."})
+
+
+def time_call(name: str, runs: int = 10) -> str:
+    """JSON of :func:`app.timings.time_call`: wall times [ms] of a named case run inside this engine
+    (the benchmark's door; never raises)."""
+    try:
+        from . import timings
+
+        return json.dumps(timings.time_call(str(name), int(runs)))
+    except Exception as exc:  # noqa: BLE001 - the bridge never raises
+        return json.dumps({"error": f"The timing could not be made ({type(exc).__name__})."})

@@ -155,3 +155,15 @@ APPARENT_POWER = Quantity(
     "kVA", 0, 10_000_000, min_open=True, default="540", label="Apparent power",
     help="kVA, VA or MVA.", typical=("540",),
 )
+
+# --- the harmonic bus model
+DAMPING_LOAD = Quantity(
+    "kW", 0, REAL_POWER.max, default="", label="Resistive load (damping)",
+    help="Load that damps resonance, modelled as a resistance V²/P (heaters, lighting, resistive process load); "
+         "leave out motors and drives. Empty or 0: no damping (the highest peaks).", typical=("0", "300"),
+)
+RUNNING_MOTORS = Quantity(
+    "kVA", 0, APPARENT_POWER.max, default="", label="Running motors",
+    help="Direct-on-line motors running: their locked-rotor reactance parallels the supply and moves resonances up. "
+         "Empty or 0: none.", typical=("0", "400"),
+)

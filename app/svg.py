@@ -204,12 +204,16 @@ def xy_chart(
     svg.line(left, top, left, top + ph, "fp-axis")
     svg.text(left + pw / 2, height - 10, x_label, anchor="middle", size=14)
     svg.text(16, top + ph / 2, y_label, anchor="middle", size=14, rotate=-90)
+    label_end = [-math.inf, -math.inf]  # drawing: where the last marker label of each of two rows ends
     for m in markers:
         if ok(m["x"], 10 ** y0 if log_y else y0 + 1e-300) or (not log_x and math.isfinite(m["x"])):
             if (10 ** x0 if log_x else x0) <= m["x"] <= (10 ** x1 if log_x else x1):
                 x = px(m["x"])
                 svg.line(x, top, x, top + ph, m.get("cls", "fp-mark"), dash="5 4", width=2)
-                svg.text(x + 4, top + 12, m.get("label", ""), cls="fp-text", size=13)
+                label = m.get("label", "")
+                row = 0 if x + 4 >= label_end[0] else 1  # a label that would overlap the last one drops a row
+                label_end[row] = x + 4 + 8 * len(label) + 3  # drawing: about 8 px a character at size 13
+                svg.text(x + 4, top + 12 + 15 * row, label, cls="fp-text", size=13)
     for d in dots:
         if ok(d["x"], d["y"]):
             x, y = px(d["x"]), py(d["y"])

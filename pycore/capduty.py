@@ -208,7 +208,7 @@ def rated_current_a(q_rated_kvar: float, u_rated_v: float, phases: int = 3) -> f
 
 # --- duty profiles: IEEE Std 18 and IEC 60831-1 -------------------------------------------
 
-IEC60831_EDITION = "IEC 60831-1 (self-healing LV shunt capacitors; limits from memory)"
+IEC60831_EDITION = ref("iec60831_duty")
 
 IEC60831_LIMITS_PERCENT = {
     "v_rms": 100.0,

@@ -12,8 +12,10 @@ from dataclasses import dataclass
 
 from .capduty import ieee519_voltage_limits
 from .errors import InputError, guarded
+from .references import cite
 
-IEEE519_EDITION = "IEEE Std 519-2014"
+IEEE519_EDITION = cite("ieee519", "ieee519_t2")
+"""The citation of the checks here (Tables 1 and 2), from the one references table."""
 
 IEEE519_CURRENT_LIMITS = (
     # (I_SC/I_L upper bound (exclusive), [3≤h<11, 11≤h<17, 17≤h<23, 23≤h<35, 35≤h≤50] %, TDD %)

@@ -25,6 +25,7 @@ _IEC60269 = "IEC 60269-1, low-voltage fuses"
 _IEC60364 = "IEC 60364-5-52, low-voltage installations: wiring systems"
 _IEC60947 = "IEC 60947-4-1, contactors and motor-starters"
 _NEMA_MG1 = "NEMA MG 1, motors and generators"
+_C57 = "IEEE C57.12.00, general requirements for liquid-immersed distribution and power transformers"
 
 REFERENCES: dict[str, str] = {
     # textbooks
@@ -35,15 +36,20 @@ REFERENCES: dict[str, str] = {
     "circuits_three_phase": f"{_CIRCUITS}, three-phase circuits (Y–Δ transformation)",
     "machines": f"{_MACHINES}, induction-motor equivalent circuit",
     "dugan": f"{_DUGAN}, capacitor resonance",
+    "dugan_harmonics": f"{_DUGAN}, harmonics chapters (per-phase bus model, V_h = I_h·Z_bus(h))",
     # standards
     "ieee18": f"{_IEEE18}, 2002 edition (the 2012 revision believed to keep the same limits, from memory)",
     "ieee18_1992": f"{_IEEE18}, 1992 edition, routine capacitance test",
     "ieee141_pf": f"{_IEEE141}, power-factor chapter",
     "ieee141_sc": f"{_IEEE141}, short-circuit chapter (per-unit method)",
     "ieee399": f"{_IEEE399}, short-circuit studies",
+    "ieee399_harmonics": f"{_IEEE399}, harmonic analysis",
     "ieee519": f"{_IEEE519} (Table 1 voltage limits, the 6k ± 1 harmonics of converters)",
+    "ieee519_t2": f"{_IEEE519}, Table 2 current distortion limits by I_SC/I_L (values from memory)",
     "ieee1036": f"{_IEEE1036} (resonance, voltage rise, duty with harmonics: clauses from memory)",
     "iec60831": f"{_IEC60831} (from memory)",
+    "iec60831_duty": f"{_IEC60831}: 1.00·U_N continuously, 1.10·U_N for 8 h in 24 h, 1.30·I_N (from memory)",
+    "c57_12_00": f"{_C57}: impedance tolerance about ±7.5 % of nameplate (from memory)",
     "iec61642": f"{_IEC61642} (from memory)",
     "nec460_8": f"{_NEC}, 460.8 (conductors, disconnect, overcurrent protection)",
     "nec460_9": f"{_NEC}, 460.9 (overload setting with the improved power factor)",
@@ -86,6 +92,8 @@ REFERENCES: dict[str, str] = {
     "quantile_lower": "Lower empirical quantile of the intervals (numpy 'inverted_cdf' definition)",
     "transformer_circuit": "Transformer equivalent circuit (magnetising branch and series reactance)",
     "input_file": "The file as read",
+    "practice_screen_band": "Resonance screening band around each harmonic present: this app's screening choice (common practice keeps a resonance clear of a harmonic present)",
+    "spectra_typical": "Typical harmonic spectra by load type: the ideal 1/h six- and twelve-pulse spectra are textbook, the others from memory",
     "ngspice_checked": "Checked against an AC circuit solution (ngspice) in this app's tests",
     "this_app": "This app's own method (least-excess unit selection by dynamic programming)",
     "input": "As entered",

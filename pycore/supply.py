@@ -73,20 +73,7 @@ bank's size is chosen (common practice)."""
 SINGLE_PHASE_ORDER = 3
 """Single-phase rectifier loads (computers, LED lighting) add the 3rd harmonic (common practice)."""
 
-RESONANCE_MARGIN_ORDERS = 0.5
-"""A resonance within this many harmonic orders of a harmonic present is flagged (screening
-rule, common practice)."""
-
 VOLTAGE_RISE_LIMIT_PERCENT = 3.0
 """Switching a bank should raise the bus voltage by no more than about this much (utility and
 handbook practice, common practice)."""
 
-
-@guarded
-def near_harmonic(order: float, harmonics=CHARACTERISTIC_ORDERS, margin: float = RESONANCE_MARGIN_ORDERS) -> int | None:
-    """The characteristic harmonic within ``margin`` orders of ``order``, or None (screening rule, common practice)."""
-    best = None
-    for h in harmonics:
-        if abs(order - h) <= margin and (best is None or abs(order - h) < abs(order - best)):
-            best = h
-    return best

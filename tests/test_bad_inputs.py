@@ -138,7 +138,7 @@ BAD = [
     ("bus_scan", "steps", "50, 50, x", {}, "item 3"),
     ("bus_scan", "steps", "50 Gvar", {}, "at most"),
     ("bus_scan", "steps", "50 Mvar", {}, "short-circuit"),  # as large as the bus fault level
-    ("bus_scan", "margin", "6", {}, "at most 5"),
+    ("bus_scan", "band", "40", {}, "at most 30"),
     # ------------------------------------------------------------------ detuned bank
     ("detuned", "u", "400 mV", {}, "at least 50"),
     ("detuned", "u", "400 kV", {}, "at most"),  # kilo for nothing
@@ -237,7 +237,7 @@ BAD = [
     ("harmonic_study", "steps", table(["100", "detuned", "", ""]), {}, "detuning factor"),
     ("harmonic_study", "steps", table(["100", "detuned", "4", ""]), {}, "onto the 5th"),  # 1/√0.04 = 5
     ("harmonic_study", "steps", table(["100", "plain", "", ""], ["x", "plain", "", ""]), {}, "row 2"),
-    ("harmonic_study", "steps", table(["100 Mvar", "plain", "", ""]), {}, "short-circuit"),
+    ("harmonic_study", "steps", table(["40 Mvar", "plain", "", ""]), {}, "short-circuit"),
     ("harmonic_study", "steps", "[]", {}, "enter"),
     ("harmonic_study", "typical", "[]", {}, "enter"),  # no source data
     ("harmonic_study", "typical", table(["six_pulse_ideal", "-5"]), {}, "row 1"),
@@ -269,7 +269,7 @@ BAD = [
     ("load_profile", "share", "30", {}, "at least 50"),
     ("load_profile", "steps", "25, -5", {}, "item 2"),
     ("load_profile", "fixed_kvar", "0", {"bank": "fixed"}, "above 0"),
-    # issue 16: switching and order list, bank health verdicts, the bank's own losses
+    # ------------------------------------------------------------------ switching, order list, verdicts, bank losses
     ("correction", "run_m", "-2", {}, "at least"),
     ("correction", "run_m", "2 km", {}, "in m"),
     ("correction", "contactor_peak", "0", {}, "above 0"),
@@ -279,6 +279,14 @@ BAD = [
     ("bank_health", "maker_limit", "5", {}, ""),
     ("savings", "cap_w", "-0.5", {}, "at least"),
     ("savings", "bank_detuned", "300", {"bank_kvar": "200"}, "cannot exceed"),
+    # ------------------------------------------------------------------ harmonic study, bus scan tolerances
+    ("harmonic_study", "sizing", "not json", {}, "not a set of correction inputs"),
+    ("harmonic_study", "sizing", "[1, 2]", {}, "clear it"),
+    ("harmonic_study", "tx_xr", "",  # undamped, 4 × 100 kvar on 1000 kVA at 40 %: 2500/100 puts one step on the 5th
+     {"tx_kva": "1000", "tx_z": "40", "load_kw": "", "motor_kva": "",
+      "steps": table(*[["100", "plain", "", ""]] * 4)}, "nothing to damp"),
+    ("bus_scan", "cap_lo", "-30", {}, "at least"),
+    ("bus_scan", "z_tol", "26", {}, "at most 25"),
 ]
 
 # Words a message for a person never contains (Python internals leaking through).

@@ -594,7 +594,6 @@ CASES = {
     "supply.resonance_order": A(F, F),
     "supply.voltage_rise_percent": A(F, F),
     "supply.bank_fits_bus": A(F, F),
-    "supply.near_harmonic": A(F, st.lists(st.integers(2, 50), max_size=5), F),
     # survey
     "survey.parse_pf": A(TEXT),
     "survey.reactive_per_kw": A(F, BOOL),

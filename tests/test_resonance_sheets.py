@@ -170,7 +170,7 @@ def test_bus_peak_above_50():
         (dict(x_r="0"), "x_r", "above 0"),
         (dict(fault_mva="-5"), "fault_mva", "above 0"),
         (dict(load_kw="-10"), "load_kw", "at least 0"),
-        (dict(margin="9"), "margin", "at most"),
+        (dict(band="40"), "band", "at most"),
     ],
 )
 def test_bus_bad_input_message_at_field(inputs, field, words):
@@ -200,7 +200,7 @@ _text = st.one_of(
 
 
 @settings(max_examples=150, deadline=None)
-@given(st.dictionaries(st.sampled_from(["v_ll", "f", "tx_kva", "tx_z", "x_r", "fault_mva", "load_kw", "steps", "margin", "single_phase"]), _text))
+@given(st.dictionaries(st.sampled_from(["v_ll", "f", "tx_kva", "tx_z", "x_r", "fault_mva", "load_kw", "steps", "band", "cap_lo", "cap_hi", "z_tol", "single_phase"]), _text))
 def test_bus_never_crashes(inputs):
     assert_answered(run("bus_scan", inputs))
 

@@ -122,6 +122,7 @@ const OPS = {
   validate_jobs: (b, m) => b.validate_jobs(m.text),
   export_jobs: (b, m) => b.export_jobs(JSON.stringify(m.jobs)),
   demo_job: (b) => b.demo_job(),
+  time_call: (b, m) => b.time_call(m.name, m.runs || 10), // the benchmark: a named Python case (app/timings.py)
 };
 
 if (ROLE === "maker") {

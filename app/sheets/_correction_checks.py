@@ -12,6 +12,8 @@ from pycore.stepplans import UNITS_PER_STEP_LIMIT
 
 from .. import cautions, fmt
 from ..sheet import FieldError
+from . import _correction_harmonics as harm
+from . import _resonance_view as view
 from ._correction_steps import G_CAPACITOR, SRC_IEEE18, SRC_SUPPLY, SRC_TRIANGLE, _pf_text
 from pycore.references import cite, ref
 
@@ -130,15 +132,12 @@ def supply_checks(out, cx):
         if rise > supply.VOLTAGE_RISE_LIMIT_PERCENT:
             out.warn(f"Switching the whole bank raises the bus voltage by about {fmt.sig(rise, 2)} %: check light-load voltage, "
                      f"and switch in steps (common practice keeps it under about {fmt.sig(supply.VOLTAGE_RISE_LIMIT_PERCENT)} %).")
-        q_bus = delivered + existing
-        h = supply.resonance_order(s_sc, q_bus)
-        near = supply.near_harmonic(h, near_orders)
-        out.result("h_res", "Parallel resonance order, all capacitors in", h, "", digits=3, group=G6,
-                   display=f"{fmt.sig(h, 3)} (≈ {fmt.sig(h * f, 3)} Hz)" + (f": near the {near}th harmonic" if near else ""),
-                   status="warn" if near else "ok",
-                   method="h = √(S_sc/Q_C), Q_C = new bank + existing at system voltage; neglects damping and the load's own inductance (which raises the true h by about √(1 + Q_load/S_sc))", source=SRC_SUPPLY)
+        cx.near_orders, cx.s_sc = near_orders, s_sc
+        cx.screen = harm.screen(cx)  # the one resonance-screening rule
+        harm.resonance_result(out, cx, harm.bus_resonance_order(cx), cx.screen)
         out.caution(cautions.SCREENING)
     cx.near_orders, cx.s_sc = near_orders, s_sc
+    cx.screen = getattr(cx, "screen", [])
 
 
 def combinations_table(out, cx):
@@ -146,7 +145,7 @@ def combinations_table(out, cx):
     bank, combos, existing, light_check, light_net, near_orders = cx.bank, cx.combos, cx.existing, cx.light_check, cx.light_net, cx.near_orders
     net, pf2, s_sc, v = cx.net, cx.pf2, cx.s_sc, cx.v
     target_combo = next((c for c in combos if net.corrected(c.total).pf >= pf2 - 1e-9 and net.corrected(c.total).sense != "leading"), None)
-    near_list = []
+    hits = view.by_label(cx.screen)
     rows = []
     levels = combos
     note_cut = ""
@@ -169,12 +168,11 @@ def combinations_table(out, cx):
             if lt.sense == "leading":
                 notes.append("leads at light load")
         if s_sc is not None:
-            hc = supply.resonance_order(s_sc, c.total + existing)
-            nh = supply.near_harmonic(hc, near_orders)
+            hc = harm.bus_resonance_order(cx, c.on)
+            nh = hits.get(harm.ALL_IN if bank == "fixed" else harm.combo_label(c))
             row.append(fmt.sig(hc, 3))
             if nh:
-                notes.append(f"near {nh}th")
-                near_list.append((c, hc, nh))
+                notes.append("resonance can reach the " + ", ".join(f"{x}{view.th(x)}" for x in nh))
         if c is target_combo:
             notes.insert(0, "reaches target")
         row.append(", ".join(notes))
@@ -189,8 +187,4 @@ def combinations_table(out, cx):
               note=note_cut + "Steps are numbered from the first (smallest) step. kvar at system voltage and frequency. "
                    "PF: lagging = inductive, leading = capacitive.")
 
-    if near_list:
-        worst = sorted({nh for _, _, nh in near_list})
-        out.warn(f"Resonance risk: with some step combinations the bus resonates near harmonic order "
-                 f"{', '.join(str(x) for x in worst)} (see the table). If the plant has drives, rectifiers or other "
-                 "harmonic sources, check it with the bus resonance scan and consider a detuned (reactor) bank.")
+    view.show(out, cx.screen)

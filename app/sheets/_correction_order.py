@@ -13,6 +13,7 @@ from pycore.errors import InputError
 from pycore.inrush import CAPACITOR_INRUSH_MULTIPLE, DEFAULT_UH_PER_M
 from pycore.references import cite, ref
 
+from . import _correction_harmonics as harm
 from .. import cautions, fmt
 from ..sheet import Field, FieldError
 from ._correction_steps import SRC_TRIANGLE, _pf_text, _units_text
@@ -44,16 +45,8 @@ FIELDS = [
 
 
 def detuning_p(ins) -> float:
-    """The detuning factor p [fraction] of the bank: from the bank-type field and its accessor
-    when the worksheet has them, else 0 (a plain bank)."""
-    try:
-        from . import _correction_harmonics as harm  # present once detuned banks are declared
-    except ImportError:
-        return 0.0
-    accessor = getattr(harm, "detuning_factor", None)
-    if accessor is None or not any(f.name == "bank_type" for f in ins.sheet.fields):
-        return 0.0
-    return float(accessor(ins) or 0.0)
+    """The detuning factor p [fraction] of the bank from the bank-type field (0 for a plain bank)."""
+    return harm.detuning_factor(ins)
 
 
 def read_fields(ins, cx):

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 
-from pycore import banksteps, busscan, supply
+from pycore import banksteps, busscan, resonancescreen, supply
 from pycore.errors import InputError
 from pycore.references import cite, ref
 
@@ -18,6 +18,7 @@ from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
+from . import _resonance_view as view
 
 SRC_SCAN = cite("circuits_resonance", "ieee141_sc")
 SRC_EST = cite("ieee1036", "dugan")
@@ -36,18 +37,7 @@ FIELDS = [
                            note="Optional. Empty: the transformer is taken as a pure reactance (no damping, the highest peaks)."),
     Q.FAULT_MVA.field("fault_mva", default="250", required=False,
                       note="Optional. Empty: infinite bus (puts the resonance slightly high)."),
-    Field(
-        "load_kw",
-        "Resistive load (damping)",
-        unit="kW",
-        default="150",
-        required=False,
-        min=0,
-        max=1e7,
-        group="Load",
-        help="Optional: load that damps resonance, modelled as a resistance V²/P (heaters, lighting, "
-        "resistive process load). Leave out motors and drives: they give little damping. Empty or 0: no damping.",
-    ),
+    Q.DAMPING_LOAD.field("load_kw", default="150", required=False, group="Load"),
     Field(
         "single_phase",
         "Single-phase electronic loads",
@@ -62,18 +52,7 @@ FIELDS = [
     Q.BANK_KVAR.field("steps", "Capacitor steps", kind="list", default="50, 50, 100, 100, 100", group="Capacitor bank",
                       note="Step sizes in the order the controller switches them in (comma separated). "
                            "Each combination 1, 1+2, 1+2+3… is scanned."),
-    Field(
-        "margin",
-        "Margin around each harmonic",
-        unit="",
-        default=fmt.sig(supply.RESONANCE_MARGIN_ORDERS),
-        required=False,
-        min=0,
-        max=5,
-        suggest=["0.3", "0.5", "1"],
-        help="Warn when a resonance lies within this many harmonic orders of a harmonic present "
-        f"({fmt.sig(supply.RESONANCE_MARGIN_ORDERS)} by common practice).",
-    ),
+    *view.tolerance_fields(),
 ]
 
 
@@ -81,7 +60,7 @@ def _label(i: int) -> str:
     return "step 1" if i == 1 else f"steps 1–{i}"
 
 
-def _figure(model, peaks, harmonics, margin) -> str:
+def _figure(model, peaks, harmonics, band) -> str:
     series = [{"points": busscan.supply_scan(model), "label": "no bank", "cls": "fp-grid", "width": 1.5, "dash": "6 4"}]
     dots = []
     for i, p in enumerate(peaks, 1):
@@ -90,7 +69,7 @@ def _figure(model, peaks, harmonics, margin) -> str:
         if p.order is not None and p.z_peak is not None and math.isfinite(p.z_peak):
             dots.append({"x": p.order, "y": p.z_peak, "cls": cls + "-fill"})
     markers = [{"x": h, "label": str(h), "cls": "fp-mark"} for h in harmonics]
-    bands = [{"x0": h - margin, "x1": h + margin, "cls": "fp-band"} for h in harmonics] if margin > 0 else []
+    bands = [{"x0": h * (1 - band), "x1": h * (1 + band), "cls": "fp-band"} for h in harmonics] if band > 0 else []
     found = [p for p in peaks if p.order is not None]
     desc = (
         "Impedance magnitude seen at the bus (log scale) against harmonic order 1 to 50, one line per step "
@@ -124,12 +103,12 @@ def compute(ins, out):
     load = ins.num("load_kw")
     sp = ins.choice("single_phase")
     steps = ins.numbers("steps")
-    margin = ins.num("margin")
-    if ins.errors:
+    screen_tol = view.read_tolerances(ins)
+    if ins.errors or screen_tol is None:
         return
     if len(steps) > MAX_STEPS:
         raise FieldError("steps", f"At most {MAX_STEPS} steps; combine small ones or scan the bank in two parts.")
-    margin = supply.RESONANCE_MARGIN_ORDERS if margin is None else margin
+    tol, band = screen_tol
     try:
         model = busscan.bus_model(v, f, kva, zp, x_r, None if fault is None else fault * 1000.0, load)
         peaks = busscan.scan(model, steps)
@@ -145,31 +124,33 @@ def compute(ins, out):
     harmonics = tuple(sorted(set(supply.CHARACTERISTIC_ORDERS) | ({supply.SINGLE_PHASE_ORDER} if sp == "yes" else set())))
     h_words = ", ".join(str(h) for h in harmonics)
 
+    # the one resonance-screening rule, on each cumulative combination
+    try:
+        warnings = resonancescreen.screen_bank(
+            v, f, kva, zp, [(_label(i), [(q, 0.0) for q in steps[:i]]) for i in range(1, len(steps) + 1)], harmonics,
+            None if fault is None else fault * 1000.0, tolerances=tol, band=band)
+    except InputError as e:
+        raise FieldError("cap_lo", str(e)) from None
+    hits = view.by_label(warnings)
     # headline: the full bank
     full = peaks[-1]
-    full_near = supply.near_harmonic(full.order, harmonics, margin) if full.order is not None else None
+    full_near = hits.get(_label(len(peaks)))
     near_count = 0
     rows = []
     for i, p in enumerate(peaks, 1):
+        near = hits.get(_label(i))
         if p.order is None:
-            near = None
             order_txt = "below 1" if p.where == "below" else "above 50"
             f_txt = "—"
             z_txt = "—"
             mag_txt = "—"
         else:
-            near = supply.near_harmonic(p.order, harmonics, margin)
             order_txt = f"{p.order:.2f}"
             f_txt = fmt.si(p.freq_hz, "Hz", 4)
             z_txt = "∞ (undamped)" if not math.isfinite(p.z_peak) else fmt.si(p.z_peak, "Ω", 3)
             mag_txt = "∞" if not math.isfinite(p.z_peak) else f"× {fmt.sig(p.z_peak / p.z_supply, 3)}"
-        if near is not None:
+        if near:
             near_count += 1
-            out.warn(
-                f"With {_label(i)} in ({fmt.sig(p.q_kvar)} kvar) the bus resonates at order {p.order:.2f} "
-                f"({fmt.si(p.freq_hz, 'Hz', 3)}), within {fmt.sig(margin)} of the {near}{_th(near)} harmonic. "
-                "Harmonic currents there are amplified: consider a detuned (reactor) bank or other step sizes."
-            )
         rows.append([
             _label(i),
             fmt.sig(p.q_kvar, 4),
@@ -178,7 +159,7 @@ def compute(ins, out):
             f"{p.estimate:.2f}",
             z_txt,
             mag_txt,
-            f"{near}{_th(near)}: too close" if near is not None else "clear",
+            "can reach the " + ", ".join(f"{h}{_th(h)}" for h in near) if near else "clear",
         ])
 
     g_full = "Full bank"
@@ -187,7 +168,7 @@ def compute(ins, out):
                    display="below the fundamental" if full.where == "below" else "above the 50th",
                    key=True, method="fine search for the |Z| peak, orders 1–50", source=SRC_SCAN, group=g_full)
     else:
-        st = "warn" if full_near is not None else "ok"
+        st = "warn" if full_near else "ok"
         out.result("h_full", "Resonance order, all steps in", full.order, "", display=f"{full.order:.2f}", key=True, status=st,
                    method="order h of the |Z| peak of Z_bus = 1/(1/(R_s + jhX_s) + 1/R_load + jhQ/V²), fine search",
                    source=SRC_SCAN, group=g_full)
@@ -196,9 +177,10 @@ def compute(ins, out):
     out.result("est_full", "Estimate √(S_sc/Q), all steps in", full.estimate, "", display=f"{full.estimate:.2f}",
                method="h ≈ √(S_sc/Q_cap), resistance and load neglected", source=SRC_EST, group=g_full)
     out.result("near_count", "Combinations near a harmonic present", near_count, "",
-               display=f"{near_count} of {len(peaks)} (harmonics {h_words}, ±{fmt.sig(margin)})",
+               display=f"{near_count} of {len(peaks)} (harmonics {h_words}, ±{fmt.sig(100 * band)} %)",
                status="warn" if near_count else "ok", key=True,
-               method="|h_res − h| ≤ margin for h in the characteristic set", source=cite("practice", "ieee519"),
+               method="the resonance screen: " + view.rule_text(band, tol),
+               source=cite("ieee519", "ieee18", "c57_12_00", "practice_screen_band"),
                group=g_full)
     out.result("v_rise", "Voltage rise, all steps in", supply.voltage_rise_percent(total, model.s_sc_kva), "%", digits=3,
                method="ΔV ≈ 100·Q/S_sc", source=ref("practice"), group=g_full)
@@ -220,7 +202,8 @@ def compute(ins, out):
         "Resonance of each step combination",
         ["Steps in", "Bank kvar", "Resonance order", "Frequency", "√(S_sc/Q)", "Peak |Z|", "Peak ÷ supply alone", "Nearest harmonic"],
         rows,
-        note=f"Harmonics checked: {h_words}; margin ±{fmt.sig(margin)} order. Peak ÷ supply alone shows how much the "
+        note=f"Harmonics checked: {h_words}; screen band ±{fmt.sig(100 * band)} % with the capacitance and transformer "
+        "impedance tolerances (resonance columns at nominal values). Peak ÷ supply alone shows how much the "
         "bank amplifies the bus impedance at its resonance.",
     )
     if total > kva:
@@ -233,7 +216,8 @@ def compute(ins, out):
                          "depends on the transformer and bank connections. The check here treats them as present.")
     out.notes.append("Motors and drives are not in the model; they lower the inductance seen from the bus and move "
                      "each resonance a little higher.")
-    out.figure("Bus impedance against harmonic order", _figure(model, peaks, harmonics, margin))
+    view.show(out, warnings)
+    out.figure("Bus impedance against harmonic order", _figure(model, peaks, harmonics, band))
     out.caution(cautions.SCREENING)
 
 

@@ -3,6 +3,7 @@ and kvar as % of rating against IEEE Std 18, and bus voltage THD against IEEE St
 
 from __future__ import annotations
 
+import json
 import math
 
 from pycore import capduty
@@ -15,7 +16,6 @@ from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import Svg, nice_ticks
 
 SRC_18 = ref("ieee18")
-LIM = capduty.IEEE18_LIMITS_PERCENT
 SRC_1036 = ref("ieee1036")
 SRC_519 = ref("ieee519")
 SRC_CIRCUIT = ref("circuits_ac_power")
@@ -35,6 +35,10 @@ FIELDS = [
           suggest=["0", "5.67", "7", "14"],
           help="0 for a plain bank on the bus. For a detuned bank, p = X_L/X_C in %: the capacitor then sees U/(1 − p) "
                "and each bus harmonic divided by |1 − p·h²|."),
+    Field("duty_profile", "Duty limits", kind="choice", default="ieee18",
+          options=[(k, v[0]) for k, v in capduty.DUTY_PROFILES.items()],
+          help="IEEE Std 18: 110 % rms and 120 % peak voltage, 135 % current and kvar. IEC 60831-1 (from memory): "
+               "1.00·U_N continuously, 1.10·U_N for 8 h in 24 h, 1.30·I_N."),
     Field("kind", "Spectrum entered", kind="choice", default="voltage", group="Harmonic spectrum",
           options=[("voltage", "Bus voltage, % of the fundamental"), ("current", "Capacitor current, % of its fundamental")],
           help="From a power-quality meter: the bus voltage harmonics, or the harmonics of the current into the capacitor."),
@@ -43,6 +47,11 @@ FIELDS = [
           help="One row per harmonic order (whole numbers 2 to 50) with its level in % of the fundamental (0 to 100).",
           columns=[Column("h", "Harmonic order"), Column("level", "Level", unit="%")],
           max_rows=49),
+    Field("bank_state", "The spectrum was measured with", kind="choice", default="in",
+          options=[("in", "This bank in service"), ("out", "This bank out of service")],
+          help="The bank changes the bus impedance at every harmonic: a spectrum read with it out of service says "
+               "little about its duty once it is in (a resonance can multiply a harmonic several times). Then the "
+               "harmonic study gives the duty."),
 ]
 
 _NAMES = {
@@ -135,6 +144,8 @@ def compute(ins, out):
     f_sys = ins.num("f_sys")
     p_pct = ins.num("p")
     kind = ins.choice("kind")
+    profile = ins.choice("duty_profile")
+    bank_state = ins.choice("bank_state")
     spec = _spectrum(ins)
     if ins.errors or spec is None:
         return
@@ -151,26 +162,56 @@ def compute(ins, out):
     except InputError as e:
         raise FieldError("spectrum", str(e)) from None
 
-    G = "Capacitor duty against IEEE Std 18"
-    failed = []
-    for name, val, lim, margin, ok in duty.against_limits():
-        if ok:
-            word = f"within the {fmt.sig(lim, 3)} % limit, {fmt.sig(margin, 3)} points to spare"
+    pname, plimits, short, psrc = capduty.DUTY_PROFILES[profile]
+    G = f"Capacitor duty against {pname}"
+    values = {"v_rms": duty.v_rms_percent, "v_peak": duty.v_peak_percent, "i_rms": duty.i_rms_percent,
+              "kvar": duty.kvar_percent}
+    checked = {name: (lim, st) for name, _, lim, st in capduty.profile_check(values, profile)}
+    failed, shorts = [], []
+    for name, val in values.items():
+        if name not in checked:
+            out.result(name, f"{_NAMES[name]}, % of rated", val, "%", display=f"{fmt.sig(val, 4)} % (no {pname} limit)",
+                       group=G, method=_METHODS[name], source=cite("ieee1036", "input"))
+            continue
+        lim, st = checked[name]
+        if st == "ok":
+            word = f"within the {fmt.sig(lim, 3)} % limit, {fmt.sig(lim - val, 3)} points to spare"
+        elif st == "short":
+            word = f"over the continuous {fmt.sig(lim, 3)} %, within {fmt.sig(short[0], 3)} % for {short[1]} only"
+            shorts.append(_NAMES[name].lower())
         else:
-            word = f"over the {fmt.sig(lim, 3)} % limit by {fmt.sig(-margin, 3)} points"
+            word = f"over the {fmt.sig(lim, 3)} % limit by {fmt.sig(val - lim, 3)} points"
             failed.append(_NAMES[name].lower())
         out.result(name, f"{_NAMES[name]}, % of rated", val, "%", display=f"{fmt.sig(val, 4)} % — {word}",
-                   status="ok" if ok else "fail", key=True, group=G, method=_METHODS[name],
-                   source=cite("ieee1036", "ieee18"))
-    verdict = ("Within all four IEEE Std 18 limits" if not failed
-               else "Exceeds the IEEE Std 18 limit for " + ", ".join(failed))
-    out.result("verdict", "Duty verdict", None, display=verdict, status="fail" if failed else "ok", key=True,
-               group=G, method="each of the four against its limit; at the limit passes", source=SRC_18)
+                   status={"ok": "ok", "short": "warn", "fail": "fail"}[st], key=True, group=G, method=_METHODS[name],
+                   source=cite("ieee1036", "ieee18" if profile == "ieee18" else "iec60831_duty"))
+    measured_out = bank_state == "out"
+    if failed:
+        verdict = f"Exceeds the {pname} limit for " + ", ".join(failed)
+    elif measured_out:
+        verdict = "Not settled: the spectrum was measured with the bank out of service"
+    elif shorts:
+        verdict = f"Within {pname} for {short[1]} only ({', '.join(shorts)})"
+    else:
+        verdict = f"Within all {pname} limits"
+    out.result("verdict", "Duty verdict", None, display=verdict,
+               status="fail" if failed else ("warn" if measured_out or shorts else "ok"), key=True, group=G,
+               method="each quantity against its limit; at the limit passes"
+                      + ("; a bank-out spectrum gives a lower bound only" if measured_out else ""), source=psrc)
     if failed:
         out.warn(verdict + ". Consider a higher rated voltage, a detuned bank, or a harmonic study.")
-    if duty.v_rms_percent > 100 + 1e-9 and "rms voltage" not in failed:
+    if measured_out:
+        out.warn("This spectrum was measured with the bank out of service. Switching the bank in changes the bus "
+                 "impedance at every harmonic, and near a resonance a harmonic can grow several times, so these figures "
+                 "are not the bank's duty. Back the plant's harmonic currents out of this reading and study the bank in "
+                 "service with the harmonic study (link below; enter the transformer there).")
+        _study_link(out, u_bus, f_sys or f_rated, q_rated, u_rated, f_ratio, p, spec, kind)
+    if profile == "ieee18" and duty.v_rms_percent > 100 + 1e-9 and "rms voltage" not in failed:
         out.warn("The rms voltage is above the capacitor's rating: IEEE Std 18 intends capacitors to run at or below "
                  "rated voltage, with 110 % as a contingency allowance (from memory).")
+    if shorts:
+        out.warn(f"The rms voltage is above 1.00·U_N: {pname} allows up to {fmt.sig(short[0], 3)} % for {short[1]} "
+                 "only (from memory). Choose a higher rated voltage for continuous service.")
 
     i_rated = capduty.rated_current_a(q_rated, u_rated, phases)
     out.result("i_rated", "Rated current", i_rated, "A", digits=4, group="Currents",
@@ -215,13 +256,15 @@ def compute(ins, out):
     out.table("By harmonic order", ["Order", "Bus voltage, % of fundamental", "Capacitor voltage, % of rated",
                                     "Capacitor current, % of rated"], rows)
 
-    out.figure("Duty against IEEE Std 18", _bars(
+    out.figure(f"Duty against {pname}", _bars(
         "Capacitor duty, % of rating",
-        [("V rms", duty.v_rms_percent, LIM["v_rms"], "fp-s1-fill"), ("V peak", duty.v_peak_percent, LIM["v_peak"], "fp-s1-fill"),
-         ("I rms", duty.i_rms_percent, LIM["i_rms"], "fp-s2-fill"), ("kvar", duty.kvar_percent, LIM["kvar"], "fp-s2-fill")],
+        [("V rms", duty.v_rms_percent, plimits.get("v_rms"), "fp-s1-fill"),
+         ("V peak", duty.v_peak_percent, plimits.get("v_peak"), "fp-s1-fill"),
+         ("I rms", duty.i_rms_percent, plimits.get("i_rms"), "fp-s2-fill"),
+         ("kvar", duty.kvar_percent, plimits.get("kvar"), "fp-s2-fill")],
         "%",
-        "Bars for rms voltage, peak voltage, rms current and kvar in % of rating; dashed ticks mark the IEEE Std 18 "
-        f"limits {', '.join(fmt.sig(LIM[k]) for k in ('v_rms', 'v_peak', 'i_rms'))} and {fmt.sig(LIM['kvar'])} %.",
+        f"Bars for rms voltage, peak voltage, rms current and kvar in % of rating; dashed ticks mark the {pname} limits "
+        + ", ".join(f"{_NAMES[k].lower()} {fmt.sig(v)} %" for k, v in plimits.items()) + ".",
     ))
     spec_items = [(str(h), duty.v_bus_percent[h], None, "fp-s3-fill") for h in sorted(duty.v_bus_percent)]
     out.figure("Bus voltage spectrum", _bars(
@@ -234,6 +277,20 @@ def compute(ins, out):
     ))
 
 
+def _study_link(out, u_bus, f, q_rated, u_rated, f_ratio, p, spec, kind):
+    """Into the harmonic study: this capacitor as one step, the bus-voltage spectrum read with the bank out."""
+    q_bus = q_rated * (u_bus / u_rated) ** 2 * f_ratio / (1 - p)  # delivered at the bus (branch output)
+    if kind != "voltage":
+        return
+    out.link("Study this bank in service (harmonic study)", "harmonic_study", {
+        "v_ll": fmt.sig(u_bus, 6), "f": fmt.sig(f, 6),
+        "steps": json.dumps([[fmt.sig(q_bus, 5), "detuned" if p else "plain", fmt.sig(100 * p, 4) if p else "",
+                              fmt.sig(u_rated, 6)]]),
+        "source": "voltage", "bank_state": "out",
+        "v_spec": json.dumps([[str(h), fmt.sig(v, 6)] for h, v in sorted(spec.items())]),
+    })
+
+
 SHEET = Worksheet(
     id="cap_duty",
     title="Capacitor duty with harmonics",
@@ -244,6 +301,6 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.STORED_CHARGE, cautions.ESTIMATE],
     order=27,
     references=[
-        ref("ieee18"), ref("ieee1036"), ref("ieee519"),
+        ref("ieee18"), ref("iec60831_duty"), ref("ieee1036"), ref("ieee519"),
     ],
 )

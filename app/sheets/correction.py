@@ -22,6 +22,7 @@ from ..sheet import Field, Worksheet
 from . import _correction_checks as checks
 from . import _correction_order as order
 from . import _correction_metering as metering
+from . import _correction_harmonics as harm
 from . import _correction_steps as steps
 from ._correction_steps import (BASES, SRC_141, SRC_CAP, SRC_IEC, SRC_NEC, SRC_STEPS, SRC_TRIANGLE, _PF_SETS, _SENSE_SETS,
                                 _is_hp, _load_method, _pf_text, _q_text, _triangle_figure, _units_text)
@@ -86,6 +87,7 @@ FIELDS = [
     Field("bank", "Bank type", kind="choice", default="auto",
           options=[("auto", "Automatic bank in steps"), ("fixed", "Fixed bank (all units switched together)")],
           help="Automatic banks follow the load with a controller; a fixed bank suits a steady load."),
+    harm.BANK_TYPE_FIELD,
     Field("n_steps", "Number of steps", default="6", min=1, max=banksteps.MAX_STEPS, suggest=["4", "6", "8", "12"],
           show_when={"field": "pattern", "in": ["equal", "one_two", "binary"]},
           help=f"The controller's step outputs, 1 to {banksteps.MAX_STEPS}."),
@@ -123,8 +125,10 @@ def compute(ins, out):
         return
     steps.the_need(ins, cx)
     metering.primary_need(cx)
+    harm.detuned_rating(ins, out, cx)
     steps.plan_bank(ins, cx)
     steps.currents(ins, cx)
+    harm.reactors(out, cx)
     _key_results(out, cx)
     _load_results(ins, out, cx)
     _detail_results(out, cx)
@@ -135,6 +139,7 @@ def compute(ins, out):
     order.plans(out, cx)
     order.order_list(out, cx)
     metering.report(out, cx)
+    harm.study_link(ins, out, cx)
     _link(out, cx)
 
 

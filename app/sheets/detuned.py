@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import math
 
-from pycore import capduty, detuning, supply
+from pycore import capduty, detuning, resonancescreen, supply
 from pycore.capacitor import IEEE18_VOLTAGE
 from pycore.errors import InputError
 from pycore.references import cite, ref
@@ -14,6 +14,10 @@ from .. import cautions, fmt
 from .. import quantities as Q
 from ..sheet import Field, FieldError, Worksheet
 from ..svg import xy_chart
+from . import _resonance_view as view
+
+ALL_STEPS = "all steps"  # combination labels of the resonance screen ("With all steps in …")
+PLAIN_SAME = "the same kvar without reactors"
 
 SRC_CIRCUIT = ref("circuits_resonance")
 SRC_IEC = cite("circuits_resonance", "iec61642")
@@ -238,12 +242,22 @@ def compute(ins, out):
         GS = "Bus resonance (supply entered)"
         out.result("s_sc", "Short-circuit power at the bus", s_sc, "kVA", digits=4, group=GS,
                    method="S_sc = S_t/(Z%/100) (infinite upstream source)", source=SRC_SUPPLY)
-        near_plain = supply.near_harmonic(h_plain)
+        # the one resonance-screening rule: the detuned bank all steps in, and the same kvar without reactors
+        orders = [h for h in supply.CHARACTERISTIC_ORDERS if h >= h_low] or [int(math.ceil(h_low))]
+        try:
+            screened = resonancescreen.screen_bank(u, f, s_kva, z_pct, [
+                (ALL_STEPS, [(q_step, p)] * steps), (PLAIN_SAME, [(q_step, 0.0)] * steps)], orders)
+        except InputError as e:  # pragma: no cover - the fields are range-checked
+            raise FieldError("s_kva", str(e)) from None
+        near_plain = sorted({w.harmonic for w in screened if w.label == PLAIN_SAME})
+        view.show(out, [w for w in screened if w.label == ALL_STEPS])
         out.result("h_plain", "Parallel resonance without reactors (same kvar)", h_plain, "",
                    display=f"h = {fmt.sig(h_plain, 3)} ({fmt.sig(h_plain * f, 4)} Hz)"
-                           + (f", near the {near_plain}th harmonic" if near_plain else ""),
+                           + (", can reach the " + ", ".join(f"{x}{view.th(x)}" for x in near_plain) + " harmonic"
+                              if near_plain else ""),
                    status="warn" if near_plain else "", group=GS,
-                   method="h ≈ √(S_sc/Q)", source=SRC_SUPPLY)
+                   method="h ≈ √(S_sc/Q); screen: " + view.rule_text(),
+                   source=cite("ieee141_sc", "ieee1036", "ieee18", "c57_12_00", "practice_screen_band"))
         out.result("h_det", "Parallel resonance with the detuned bank, all steps in", h_det, "",
                    display=f"h = {fmt.sig(h_det, 3)} ({fmt.sig(h_det * f, 4)} Hz), below n = {fmt.sig(n, 3)}",
                    status="ok" if h_det < h_low else "fail", key=True, group=GS,

@@ -3,46 +3,46 @@ combination, with detuned alternatives side by side."""
 
 from __future__ import annotations
 
+import json
 import math
 
 from pycore import capduty, harmonicbus, harmonicsources, harmonicstudy, ieee519, resonancescreen
-from pycore.errors import InputError
+from pycore.errors import OUT_OF_RANGE, InputError
+
+from pycore.references import cite, ref
 
 from .. import cautions, fmt
+from .. import quantities as Q
 from ..sheet import Column, Field, FieldError, Worksheet
 from ..svg import xy_chart
+from . import _resonance_view as view
+from ._correction_harmonics import bank_type_of
 
-SRC_MODEL = ("Per-phase bus model, V_h = I_h·Z_bus(h): Dugan et al., Electrical Power Systems Quality (harmonics); "
-             "IEEE Std 399 (Brown Book)")
-SRC_18 = capduty.IEEE18_EDITION
-SRC_519 = ieee519.IEEE519_EDITION + ", Table 1 (voltage) and Table 2 (current, values from memory)"
-SRC_SCREEN = ("Resonance screen: lossless resonances across capacitance (IEEE Std 18) and transformer impedance "
-              "(IEEE C57.12.00, from memory) tolerances, ±band around each harmonic present")
-MAX_STEPS = 6
+SRC_MODEL = cite("dugan_harmonics", "ieee399_harmonics")
+SRC_519 = ieee519.IEEE519_EDITION
+SRC_SCREEN = cite("dugan", "ieee18", "c57_12_00", "practice_screen_band")
+SRC_PU = ref("ieee141_sc")
+MAX_STEPS = harmonicstudy.MAX_STEPS
 
 _TYPES = [(k, v.label) for k, v in harmonicsources.TYPICAL_SPECTRA.items()]
 
 FIELDS = [
-    Field("v_ll", "System voltage (line to line)", unit="V", default="480", min=100, max=1000,
-          suggest=["400", "480", "600", "690"], group="Supply and transformer",
-          help="Low-voltage bus the bank connects to; the fundamental is taken at this voltage."),
-    Field("f", "Frequency", unit="Hz", default="60", min=10, max=1000, suggest=["50", "60"]),
-    Field("tx_kva", "Transformer rating", unit="kVA", default="1500", min=0, min_open=True, max=1e5,
-          suggest=["500", "1000", "1500", "2500"]),
-    Field("tx_z", "Transformer impedance", unit="%", default="5.75", min=0.5, max=40, suggest=["4", "5.75", "6"]),
-    Field("tx_xr", "Transformer X/R ratio", default="6", required=False, min=0, min_open=True, max=100,
-          help="Empty: a pure reactance (no damping, the highest peaks)."),
-    Field("fault_mva", "Utility fault level", unit="MVA", default="", required=False, min=0, min_open=True, max=1e5,
-          help="At the transformer's primary. Empty: infinite bus (puts resonances slightly high)."),
-    Field("fault_xr", "Utility X/R ratio", default="", required=False, min=0, min_open=True, max=100,
-          help="Empty: the utility source is a pure reactance."),
+    Q.SYSTEM_VOLTAGE.field("v_ll", "System voltage (line to line)", default="480", group="Supply and transformer",
+                           note="The bus the bank connects to; the fundamental is taken at this voltage."),
+    Q.SYSTEM_FREQUENCY.field("f", default="60"),
+    Q.TRANSFORMER_KVA.field("tx_kva", default="1500"),
+    Q.TRANSFORMER_Z.field("tx_z", default="5.75"),
+    Q.TRANSFORMER_XR.field("tx_xr", default="6", required=False,
+                           note="Empty: a pure reactance (no damping, the highest peaks)."),
+    Q.FAULT_MVA.field("fault_mva", default="", required=False,
+                      note="Empty: infinite bus (puts resonances slightly high)."),
+    Q.TRANSFORMER_XR.but(label="Utility X/R ratio", help="Reactance over resistance of the utility source.")
+     .field("fault_xr", default="", required=False, note="Empty: the utility source is a pure reactance."),
     Field("r_vs_h", "Resistance against frequency", kind="choice", default="constant",
           options=[("constant", "Constant (default)"), ("sqrt", "Rising as √h (skin effect)")],
           help="How transformer and utility resistance change with harmonic order; √h is a common approximation."),
-    Field("load_kw", "Resistive load", unit="kW", default="300", required=False, min=0, max=1e6, group="Loads",
-          help="Heaters, lighting, resistive process load: a parallel resistance that damps resonance."),
-    Field("motor_kva", "Running motors", unit="kVA", default="400", required=False, min=0, max=1e6,
-          help="Direct-on-line motors: their locked-rotor reactance parallels the supply and moves resonances up."),
+    Q.DAMPING_LOAD.field("load_kw", "Resistive load", default="300", required=False, group="Loads"),
+    Q.RUNNING_MOTORS.field("motor_kva", default="400", required=False),
     Field("lr_ratio", "Motor locked-rotor current ratio", default="6", min=2, max=12, suggest=["5", "6", "7"],
           help="I_LR/I_FL; 5 to 7 is usual (from memory)."),
     Field("i_load", "Maximum demand current", unit="A", default="", required=False, min=0, min_open=True, max=1e6,
@@ -52,10 +52,10 @@ FIELDS = [
           help="One row per step: kvar delivered at the system voltage; plain or detuned with its detuning factor p; "
                "optional capacitor rated voltage (empty: system voltage for plain, next usual rating above U/(1 − p) "
                "+ 10 % for detuned). Every combination of steps is studied.",
-          columns=[Column("kvar", "Step", unit="kvar", min=0.001, max=1e5),
+          columns=[Column("kvar", "Step", unit="kvar", min=0.001, max=Q.BANK_KVAR.max),
                    Column("kind", "Type", kind="choice", options=[("plain", "plain"), ("detuned", "detuned")]),
                    Column("p", "p", unit="%", required=False, min=0, max=50),
-                   Column("u_rated", "Rated voltage", unit="V", required=False, min=100, max=2000)]),
+                   Q.CAPACITOR_VOLTAGE.column("u_rated", "Rated voltage", required=False)]),
     Field("reactor_q", "Reactor quality factor", default="50", min=5, max=500,
           help="X_L/R of the detuning reactors at the fundamental (typically 30 to 100, from memory)."),
     Field("source", "Harmonic source data", kind="choice", default="typical", group="Harmonic sources",
@@ -90,6 +90,9 @@ FIELDS = [
           help="±7.5 % of nameplate (IEEE C57.12.00, from memory)."),
     Field("band", "Band around each harmonic, ±", unit="%", default="10", min=0, max=30,
           help="Flag a resonance that can land within this relative distance of a harmonic present."),
+    Field("sizing", "Sizing this study came from", kind="text", default="", required=False, group="Return to sizing",
+          help="Filled in by the correction worksheet's link (its inputs); the recommendation's links return there "
+               "with the bank type chosen. Empty: those links open the correction worksheet with this bus only."),
 ]
 
 
@@ -158,11 +161,38 @@ def _th(h):
     return "th" if 10 <= h % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(h % 10, "th")
 
 
+_DUTY_WORDS = {"v_rms": "V rms", "v_peak": "V peak", "i_rms": "I rms", "kvar": "kvar"}
+
+
 def _duty_text(d):
     if d is None:
         return "—"
     name, val, lim, _ = max(d.rows, key=lambda r: r[1] / r[2])
-    return f"{fmt.sig(val, 3)} % {name.replace('_', ' ')} (limit {fmt.sig(lim, 3)} %), step {d.step + 1}"
+    return f"{_DUTY_WORDS[name]} {fmt.sig(val, 3)} % (max {fmt.sig(lim, 3)}), step {d.step + 1}"
+
+
+def _alike(rows):
+    """Rows that differ only in their first cell (equal steps give the same electrical state) as one row,
+    the first label and a count of the others."""
+    out, index = [], {}
+    for r in rows:
+        key = tuple(r[1:])
+        if key in index:
+            out[index[key]][1] += 1
+        else:
+            index[key] = len(out)
+            out.append([r, 0])
+    return [[r[0] + (f" (+{n} alike)" if n else "")] + r[1:] for r, n in out]
+
+
+def _order_text(order):
+    """What to order per step, identical steps counted: '4 × 72.7 kvar at 600 V + 0.92 mH (65.6 A)'."""
+    groups: dict = {}
+    for q, u_r, q_r, l_mh, i_max in order:
+        text = f"{fmt.sig(q_r, 3)} kvar at {fmt.sig(u_r, 3)} V" + ("" if l_mh is None else
+                                                                   f" + {fmt.sig(l_mh, 3)} mH ({fmt.sig(i_max, 3)} A)")
+        groups[text] = groups.get(text, 0) + 1
+    return "; ".join((f"{n} × " if n > 1 else "") + t for t, n in groups.items())
 
 
 def _figure(study, worst, harmonics, band):
@@ -217,12 +247,37 @@ def compute(ins, out):
         if not i_load > 0:
             raise FieldError("i_load", "Enter the maximum demand current: no load declared here gives it.")
     tol = resonancescreen.Tolerances(cap_lo / 100, cap_hi / 100, -z_tol / 100, z_tol / 100)
-    study = harmonicstudy.run_study(bus, inj, i_load, profile, tol, band / 100)
-    options = harmonicstudy.recommend(study)
-    _results(out, study, options, band / 100, profile)
+    back = _sizing(ins, v, f, kva, zp, fault)
+    try:
+        study = harmonicstudy.run_study(bus, inj, i_load, profile, tol, band / 100)
+        options = harmonicstudy.recommend(study)
+        _results(out, study, options, band / 100, profile, back)
+    except InputError as e:
+        if str(e) != OUT_OF_RANGE:
+            raise FieldError("steps", str(e)) from None
+        # an undamped resonance exactly on a harmonic: infinite voltages
+        raise FieldError("tx_xr" if xr is None else "load_kw",
+                         "A resonance lands exactly on a harmonic present with nothing to damp it, so the voltages "
+                         "would be infinite: enter the transformer X/R (typically 5 to 8) or a resistive load.") from None
 
 
-def _results(out, study, options, band, profile):
+def _sizing(ins, v, f, kva, zp, fault) -> dict:
+    """The correction inputs to return to (from the link that opened this study), or this bus alone."""
+    text = ins.text("sizing").strip()
+    if not text:
+        return {"v_ll": fmt.sig(v, 6), "f": fmt.sig(f, 6), "tx_kva": fmt.sig(kva, 6), "tx_z": fmt.sig(zp, 6),
+                "fault_mva": "" if fault is None else fmt.sig(fault, 6)}
+    try:
+        back = json.loads(text)
+    except ValueError:
+        back = None
+    if not isinstance(back, dict) or not all(isinstance(k, str) and isinstance(x, str) for k, x in back.items()):
+        raise FieldError("sizing", "This is not a set of correction inputs (it is filled in by the correction "
+                                   "worksheet's link): clear it.")
+    return back
+
+
+def _results(out, study, options, band, profile, back):
     bus, worst = study.bus, study.combos[0]
     G = f"Worst combination: {worst.label} ({fmt.sig(worst.kvar, 4)} kvar)"
     res = worst.resonances
@@ -255,7 +310,7 @@ def _results(out, study, options, band, profile):
                display=f"× {fmt.sig(worst.amplification, 3)}", method="max |Z_bus(h)| with / without the bank at the "
                "harmonics present", source=SRC_MODEL)
     out.result("s_sc", "Short-circuit level at the bus", bus.s_sc_kva, "kVA", digits=4, group="Supply model",
-               method="S_sc = V²/|Z_utility + Z_transformer|", source="Per-unit method, IEEE Std 141")
+               method="S_sc = V²/|Z_utility + Z_transformer|", source=SRC_PU)
     rows = []
     for cb in study.combos:
         k = cb.check519
@@ -263,6 +318,7 @@ def _results(out, study, options, band, profile):
                      fmt.sig(k.thd_v, 3), f"{fmt.sig(k.v_worst, 3)} ({k.v_worst_h})", _duty_text(cb.worst_duty),
                      "ok" if k.ok_voltage else "over", "ok" if k.ok_current else "over",
                      ", ".join(f"{w.harmonic}{_th(w.harmonic)}" for w in cb.warnings) or "clear"])
+    rows = _alike(rows)
     out.table("Every step combination, worst first", ["Steps in", "kvar", "Resonance orders", "THD_V %",
               "Largest V_h % (order)", "Worst duty", "IEEE 519 voltage", "IEEE 519 current", "Resonance screen"], rows,
               note=f"Bank out: THD_V {fmt.sig(study.bank_out.thd_v, 3)} %. Screen: ±{fmt.sig(band * 100)} % around "
@@ -280,28 +336,15 @@ def _results(out, study, options, band, profile):
                + [fmt.sig(abs(sol.steps[k][h]), 3) for k in worst.steps_in]
                for h in sorted(study.injection) if study.injection[h] > 0],
               note="Step currents are each step's branch current at that order (through its reactor when detuned).")
-    _recommendation(out, options)
-    # one warning per distinct electrical state: equal steps make many combinations alike
-    seen, shown, more = set(), 0, 0
-    for w in (w for cb in study.combos for w in cb.warnings):
-        key = (w.kind, w.harmonic, round(w.order, 6))
-        if key in seen:
-            continue
-        seen.add(key)
-        if shown < 6:
-            out.warn(w.text)
-            shown += 1
-        else:
-            more += 1
-    if more:
-        out.warn(f"{more} more screening warnings: see the resonance screen column of the table of combinations.")
+    _recommendation(out, options, back)
+    view.show(out, [w for cb in study.combos for w in cb.warnings])  # one per distinct state
     out.figure("Bus impedance against harmonic order", _figure(study, worst, study.harmonics, band))
     out.notes.append("Assumptions: per-phase model at the system voltage; harmonic currents of all sources add in phase "
                      "(the worst case); capacitor losses neglected; the bus is taken as the point of common coupling.")
     out.caution(cautions.SCREENING)
 
 
-def _recommendation(out, options):
+def _recommendation(out, options, back):
     if len(options) == 1:
         if options[0].study.amplifies and all(s.p > 0 for s in options[0].study.bus.steps):
             out.notes.append("The bank is already detuned; see the table for its duties.")
@@ -309,16 +352,19 @@ def _recommendation(out, options):
     rows = []
     for o in options:
         w = o.study.combos[0]
-        order = "; ".join(f"{fmt.sig(q_r, 3)} kvar at {fmt.sig(u_r, 3)} V" + ("" if l_mh is None else
-                          f" + {fmt.sig(l_mh, 3)} mH, {fmt.sig(i_max, 3)} A rms") for q, u_r, q_r, l_mh, i_max in o.order)
+        order = _order_text(o.order)
         rows.append([o.label, fmt.sig(max(c.thd_v for c in o.study.combos), 3),
                      fmt.sig(max(max(c.v_pct.values()) for c in o.study.combos), 3), _duty_text(w.worst_duty),
                      str(sum(len(c.warnings) for c in o.study.combos)), order])
     out.table("Recommendation: plain and detuned side by side", ["Design", "Worst THD_V %", "Worst V_h %", "Worst duty",
-              "Screen warnings", "To order per step (capacitor rating; reactor per phase)"], rows,
+              "Screen warnings", "To order per step: capacitor rating + reactor per phase (its rms A)"], rows,
               note="Each option re-studied over every combination with the same kvar delivered at the system voltage; "
                    "detuned capacitors rated at the next usual voltage above U/(1 − p) + 10 %, kvar Q·(1 − p)·(U_R/U)².")
     out.warn("The plain bank amplifies harmonics present: detuned designs are compared in the recommendation table.")
+    for o in options[1:]:
+        kind = bank_type_of(o.p_percent / 100)
+        out.link(f"Order it detuned at {fmt.sig(o.p_percent)} % (correction worksheet)"
+                 + ("" if "basis" in back else ": enter the load there"), "correction", {**back, "bank_type": kind})
 
 
 SHEET = Worksheet(
@@ -331,11 +377,7 @@ SHEET = Worksheet(
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=22,
     references=[
-        "R. C. Dugan et al., Electrical Power Systems Quality (harmonic modelling of a bus)",
-        "IEEE Std 399 (Brown Book), harmonic analysis",
-        "IEEE Std 18-2002, shunt power capacitors (continuous limits, capacitance tolerance)",
-        "IEC 60831-1, self-healing LV shunt capacitors (voltage and current limits, from memory)",
-        "IEEE Std 519-2014, Tables 1 and 2",
-        "IEEE C57.12.00 (transformer impedance tolerance, from memory)",
+        ref("dugan_harmonics"), ref("ieee399_harmonics"), ref("ieee18"), ref("iec60831_duty"), ref("ieee519"),
+        ref("ieee519_t2"), ref("c57_12_00"), ref("spectra_typical"),
     ],
 )

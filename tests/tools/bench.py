@@ -241,6 +241,7 @@ def measure(args) -> dict:
                 return out;
             }""", [field, args.edits])
             debounce = pg.evaluate("() => 120")
+            study = measure_study(pg)
             pg.close()
 
             # Main-thread figures at 4× CPU throttling (CDP slows only the page's main thread).
@@ -287,6 +288,7 @@ def measure(args) -> dict:
             "precache_bytes": precache,
             "js_heap_bytes": median(heap),
         }
+        out.update(study)
         out["first_result_ratio"] = out["first_result_ms"] / out["bare_boot_ms"] if out["bare_boot_ms"] else None
         out["engine_ready_ratio"] = out["engine_ready_ms"] / out["bare_boot_ms"] if out["bare_boot_ms"] else None
         out["samples"] = {"bare_boot_ms": bare, "first_result_ms": first, "engine_ready_ms": eng,
@@ -498,6 +500,37 @@ def report_profile(r: dict) -> str:
     return "\n".join(lines)
 
 
+# --- harmonic study speed: timed inside the browser engine through the generic
+# `time_call` operation (app/timings.py names the case; no engineering in JavaScript)
+STUDY_TARGET_MS = 150
+STUDY_RUNS = 15
+
+
+def measure_study(page, runs: int = STUDY_RUNS) -> dict:
+    """study_64_ms: median wall time in Pyodide of the six-step study (64 combinations, orders 2–50, duty and
+    IEEE 519 checks); study_sheet_64_ms: the whole harmonic-study worksheet on the same case."""
+    out = {}
+    for name in ("study_64", "study_sheet_64"):
+        got = json.loads(page.evaluate(
+            "async ([name, runs]) => window.fieldphasor.engine.call('time_call', {name, runs})", [name, runs]))
+        if "error" in got:
+            raise RuntimeError(got["error"])
+        out[f"{name}_ms"] = median(got["ms"])
+        out.setdefault("samples_study", {})[f"{name}_ms"] = got["ms"]
+    return out
+
+
+def report_study(r: dict) -> str:
+    v, w = r.get("study_64_ms"), r.get("study_sheet_64_ms")
+    if v is None:
+        return ""
+    lines = [f"{'harmonic study (Pyodide, median of ' + str(len(r['samples_study']['study_64_ms'])) + ')':46} {'value':>10}  target"]
+    lines.append(f"{'study_64: six steps, 64 combinations, h 2-50':46} {v:8.1f} ms  ≤ {STUDY_TARGET_MS} ms "
+                 f"{'yes' if v <= STUDY_TARGET_MS else 'NO'}")
+    lines.append(f"{'  the whole worksheet (with detuned options)':46} {w:8.1f} ms  —")
+    return "\n".join(lines)
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--dist", default=build.DIST)
@@ -520,6 +553,7 @@ def main():
         r.update(measure_visits(args))
     if not args.only_visit:
         print(report(r))
+        print(report_study(r))
     if args.visit:
         print(report_visits(r))
     if args.profile and not args.only_visit:
