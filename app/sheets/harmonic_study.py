@@ -330,6 +330,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=22,
+    essential=('v_ll', 'f', 'tx_kva', 'tx_z', 'steps', 'source', 'typical', 'i_spec', 'i_unit', 'i1', 'v_spec', 'bank_state'),
     references=[
         "R. C. Dugan et al., Electrical Power Systems Quality (harmonic modelling of a bus)",
         "IEEE Std 399 (Brown Book), harmonic analysis",

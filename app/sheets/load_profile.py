@@ -336,5 +336,6 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=25,
+    essential=('profile', 'target_pf'),
     references=["IEEE Std 141 (Red Book), Recommended Practice for Electric Power Distribution for Industrial Plants, chapter on power factor"],
 )
