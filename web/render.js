@@ -308,8 +308,8 @@ function renderTable(f, value, set, box) {
 
 /**
  * Pasted text as table rows: one row per non-empty line, cells split at tabs if the text has any,
- * else at semicolons if it has any, else at commas; with tabs or semicolons a number cell's decimal
- * comma becomes a point. A choice cell is matched to an option by its value or label (any case).
+ * else at semicolons if it has any, else at commas; with tabs or semicolons a decimal
+ * comma (a cell that is just a number) becomes a point. A choice cell is matched to an option by its value or label (any case).
  * Text splitting only: the values are checked by Python like any typed row. Returns
  * {rows: [[line, cells]], bad: ["line n: why"]}.
  */
@@ -331,7 +331,7 @@ export function splitPasted(text, cols) {
         if (!o && v) why = why || `“${v}” is not one of ${c.options.map((x) => x.label).join(", ")}`;
         return o ? o.value : c.options[0].value;
       }
-      return c.kind === "number" && sep !== "," ? v.replace(/^([-+]?\d*),(\d+)$/, "$1.$2") : v;
+      return sep !== "," ? v.replace(/^([-+]?\d*),(\d+)$/, "$1.$2") : v; // a lone number with a decimal comma
     });
     if (why) out.bad.push(`line ${k + 1}: ${why}`);
     else out.rows.push([k + 1, row]);
