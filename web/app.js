@@ -105,8 +105,7 @@ function showAnswerBar(res) {
   if (first) head.textContent = `${first.label}: ${first.display}${first.status ? ` · ${STATUS_WORD[first.status] || first.status}` : ""} — all results ↓`;
   head.dataset.status = (first && first.status) || "";
   const nErr = Object.keys(res.field_errors || {}).length;
-  const key = (res.results || []).filter((r) => r.key).map((r) => `${r.label} ${r.display}`).join("; ");
-  const say = res.ok ? `Updated. ${key}` : `${nErr || "An"} input${nErr === 1 ? "" : "s"} need${nErr === 1 ? "s" : ""} attention. ${Object.values(res.field_errors || {}).join(" ")} ${res.error || ""}`;
+  const say = res.ok ? `Updated. ${first ? `${first.label}: ${first.display}` : ""}` : `${nErr || "An"} input${nErr === 1 ? "" : "s"} need${nErr === 1 ? "s" : ""} attention. ${Object.values(res.field_errors || {}).join(" ")} ${res.error || ""}`;
   if (say !== announced) $("announce").textContent = announced = say;
 }
 
