@@ -19,6 +19,7 @@ from the column declarations.
 
 from __future__ import annotations
 
+import json
 from html import escape
 from typing import Optional
 
@@ -32,27 +33,90 @@ COMPLEX_CHIPS = (("j", "imaginary j", "j"), ("∠", "angle mark", "∠"), ("−"
 def form_tree(sheet: Worksheet, values: Optional[dict] = None) -> list:
     """The form of ``sheet`` as a list of top-level nodes, drawn for ``values`` (field name →
     text; the defaults for anything missing): fields before the first group, then one
-    ``fieldset.group`` per group, hidden when none of its fields is shown."""
+    ``fieldset.group`` per group, hidden when none of its fields is shown. A group holding none of
+    the sheet's ``essential`` fields is optional: drawn collapsed (:func:`optional_section`)."""
     ins = Inputs(sheet, values or {})
     top: list = []
-    groups: list[tuple[list, list[bool]]] = []
+    groups: list[tuple[list, list[bool], list]] = []
     for f in sheet.fields:
         if f.group:
-            groups.append((["fieldset", {"class": "group"}, ["legend", {}, f.group]], []))
+            groups.append((["fieldset", {"class": "group"}, ["legend", {}, f.group]], [], []))
             top.append(groups[-1][0])
         shown = ins.visible(f.name)
-        node = field_node(f, ins.text_of(f.name))
+        node = with_help_toggle(f, field_node(f, ins.text_of(f.name)))
         if not shown:
             node[1]["hidden"] = True
         if groups:
             groups[-1][0].append(node)
             groups[-1][1].append(shown)
+            groups[-1][2].append(f)
         else:
             top.append(node)
-    for node, shown in groups:
+    essential = set(sheet.essential)
+    for node, shown, fields in groups:
         if not any(shown):
             node[1]["hidden"] = True
+        if essential and not essential.intersection(f.name for f in fields):
+            optional_section(node, fields, ins)
     return top
+
+
+def optional_section(node: list, fields: list, ins: Inputs) -> None:
+    """Make a group a disclosure (issue 17): its legend holds a button with ``aria-expanded`` that
+    controls the region holding the fields, collapsed, and shows a one-line summary of the values
+    (:func:`summary`). The shell opens it on a tap (and remembers that), or when a field in it has a
+    message. ``data-section`` (its first field's name) is the hook and the key it is remembered by."""
+    key = fields[0].name
+    title = node[2][2]
+    button = ["button", {"type": "button", "class": "sec-toggle", "aria-expanded": "false", "aria-controls": f"sec-{key}",
+                         "data-toggle-section": True},
+              ["span", {"class": "sec-title"}, title], ["span", {"class": "sec-sum", "data-summary": True}, summary(fields, ins)]]
+    body = ["div", {"class": "sec-body", "id": f"sec-{key}", "hidden": True}, *node[3:]]
+    node[1]["class"] = "group opt"
+    node[1]["data-section"] = key
+    del node[2:]
+    node += [["legend", {}, button], body]
+
+
+def summary(fields: list, ins: Inputs) -> str:
+    """The one-line summary of a collapsed section: each shown field's current text with its unit,
+    a choice by its option's label, a table by its row count, a value with no unit after its label;
+    empty fields left out. ``summaryOf`` in web/render.js follows the same rule (a browser test
+    compares the two for every worksheet and choice)."""
+    parts = []
+    for f in fields:
+        if not ins.visible(f.name):
+            continue
+        text = ins.text_of(f.name).strip()
+        if f.kind == "table":
+            try:
+                n = len(json.loads(text or "[]"))
+            except ValueError:
+                n = 0
+            parts.append(f"{n} row{'' if n == 1 else 's'}")
+        elif not text:
+            continue
+        elif f.kind == "choice":
+            parts.append(next((lab for v, lab in f.options if v == text), text))
+        elif f.unit:
+            parts.append(f"{text} {f.unit}")
+        else:
+            parts.append(f"{f.label} {text}")
+    return ", ".join(parts) or "nothing entered"
+
+
+def with_help_toggle(f: Field, node: list) -> list:
+    """Put a field's help behind a button (issue 17): the help paragraph is drawn hidden and a
+    ``data-help`` button with ``aria-expanded`` controlling it comes just before it."""
+    for i, child in enumerate(node):
+        if isinstance(child, list) and child[0] == "p" and child[1].get("class") == "help":
+            child[1]["hidden"] = True
+            node.insert(i, ["button", {"type": "button", "class": "help-btn", "aria-expanded": "false",
+                                       "aria-controls": child[1]["id"], "aria-label": f"Help: {f.label}",
+                                       "data-help": True}, "?"])
+            node[1]["class"] += " has-help"
+            break
+    return node
 
 
 def _unit_span(unit: str) -> list:
@@ -79,9 +143,9 @@ def field_node(f: Field, value: str) -> list:
                 *[["span", {"class": "tbl-cell", "data-kind": c.kind}, c.label + (f" ({c.unit})" if c.unit else "")] for c in f.columns],
                 ["span", {"class": "tbl-act"}]]
         foot = ["div", {"class": "tbl-foot"}, ["button", {"type": "button", "class": "btn", "data-add-row": True}, "Add row"],
-                ["p", {"class": "muted tbl-count", "data-row-count": True}]]
+                *paste_nodes(f)[:1], ["p", {"class": "muted tbl-count", "data-row-count": True}]]
         box = ["div", {"class": "tbl", "role": "group", "aria-labelledby": f"{fid}-label", "aria-describedby": described,
-                       "data-table": True}, head, ["div", {"class": "tbl-body", "data-rows": True}], foot]
+                       "data-table": True}, head, ["div", {"class": "tbl-body", "data-rows": True}], foot, *paste_nodes(f)[1:]]
         return wrap + [["div", {"class": "table-label", "id": f"{fid}-label"}, f.label, _unit_span(f.unit)], *help_, box, err]
     if f.widget == "select":
         control: list = ["select", {"id": fid, "aria-describedby": described}]
@@ -125,6 +189,25 @@ def file_node(f: Field) -> list:
                        "accept": ".csv,.txt,.tsv,.dat,.prn,text/csv,text/plain,text/tab-separated-values"}],
             ["label", {"for": fid, "class": "btn file-btn"}, "Open file…"],
             ["span", {"class": "muted file-info", "data-file-info": True, "aria-live": "polite"}]]
+
+
+def paste_nodes(f: Field) -> list:
+    """A table's paste panel (issue 17): the button that opens it (``data-paste-toggle``), then the
+    panel (a text area, ``data-paste-add``, and ``data-paste-report`` listing the lines not read).
+    The shell splits the pasted lines into cells; Python checks the values like any typed row."""
+    pid = f"paste-{f.name}"
+    order = ", ".join(c.label + (f" ({c.unit})" if c.unit else "") for c in f.columns)
+    return [["button", {"type": "button", "class": "btn ghost", "aria-expanded": "false", "aria-controls": pid,
+                        "data-paste-toggle": True}, "Paste rows"],
+            ["div", {"class": "tbl-paste", "id": pid, "hidden": True},
+             ["label", {"for": f"{pid}-text"}, "Rows to add, one per line"],
+             ["p", {"class": "help", "id": f"{pid}-help"},
+              f"Columns in this order: {order}; separated by tabs (as copied from a spreadsheet), semicolons or "
+              "commas. With tabs or semicolons a decimal comma is read as a point."],
+             ["textarea", {"id": f"{pid}-text", "rows": "4", "spellcheck": "false", "autocapitalize": "off",
+                           "aria-describedby": f"{pid}-help", "data-paste-text": True}],
+             ["button", {"type": "button", "class": "btn", "data-paste-add": True}, "Add these rows"],
+             ["p", {"class": "paste-report", "role": "status", "data-paste-report": True}]]]
 
 
 def html(nodes: list) -> str:

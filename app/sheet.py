@@ -531,6 +531,14 @@ class Worksheet:
     cautions: list = field(default_factory=list)
     order: int = 100
     references: list = field(default_factory=list)
+    # Field names a user on a phone needs first (issue 17): a form section holding none of them is
+    # drawn collapsed to a one-line summary (app/formview.py). Empty: every section is open.
+    essential: tuple = ()
+
+    def __post_init__(self):
+        unknown = [n for n in self.essential if n not in {f.name for f in self.fields}]
+        if unknown:
+            raise ValueError(f"worksheet {self.id}: essential names no field: {unknown}")
 
     def field(self, name: str) -> Field:
         for f in self.fields:
@@ -546,6 +554,7 @@ class Worksheet:
             "fields": [f.to_json() for f in self.fields],
             "cautions": list(self.cautions),
             "references": list(self.references),
+            "essential": list(self.essential),
         }
 
     def run(self, raw: dict, echo: bool = False) -> dict:

@@ -12,6 +12,8 @@ from .common import app_module
 # readings a user types first) are on screen at once; fewer nodes make the first paint cheaper on
 # a slow phone. The shell draws the rest as soon as its modules run.
 STATIC_SECTIONS = 2
+# the answer bar's status words, as showAnswerBar in web/app.js writes them
+STATUS_WORD = {"ok": "OK", "warn": "Check", "fail": "Fails"}
 
 
 def static_form(decl: dict, sections: int | None = None) -> str | None:
@@ -31,7 +33,8 @@ def pending_headline_size(decl_id: str) -> str:
 
     res = json.loads(app_module("bridge").compute(decl_id, "{}"))
     first = next((r for r in res.get("results", []) if r.get("key")), None)
-    size = f'{first["label"]}: {first["display"]} — all results ↓' if res.get("ok") and first else ""
+    status = STATUS_WORD.get(first.get("status"), first.get("status")) if first and first.get("status") else ""
+    size = f'{first["label"]}: {first["display"]}{" · " + status if status else ""} — all results ↓' if res.get("ok") and first else ""
     return f'<span class="pending-size" aria-hidden="true">{e(size)}</span>'
 
 

@@ -34,12 +34,13 @@ function parseRows(text, ncol) {
  * hooks. `onChange(name, text)` is called on every edit. Returns helpers to show messages and
  * refresh which fields are visible.
  */
-export function renderForm(form, decl, inputs, onChange) {
+export function renderForm(form, decl, inputs, onChange, { open = [], onToggle = null } = {}) {
   clear(form);
   form.append(...decl.form.map(fromTree));
   const byName = Object.fromEntries(decl.fields.map((f) => [f.name, f]));
   const wrappers = {};
   for (const w of form.querySelectorAll(".field[data-field]")) wrappers[w.dataset.field] = w;
+  const sections = bindDisclosures(form, decl, byName, inputs, open, onToggle);
   for (const f of decl.fields) {
     bindField(f, wrappers[f.name], currentValue(f, inputs), (text) => {
       onChange(f.name, text);
@@ -49,13 +50,14 @@ export function renderForm(form, decl, inputs, onChange) {
   function refreshVisibility() {
     for (const f of decl.fields) wrappers[f.name].hidden = !isVisible(f, byName, inputs);
     for (const fs of form.querySelectorAll("fieldset.group")) {
-      fs.hidden = [...fs.querySelectorAll(":scope > .field")].every((el) => el.hidden);
+      fs.hidden = [...fs.querySelectorAll(".field[data-field]")].every((el) => el.hidden);
     }
   }
   refreshVisibility();
   return {
     refreshVisibility,
     showErrors(errors) {
+      sections.openFor(Object.keys(errors || {}).filter((n) => wrappers[n] && !wrappers[n].hidden).map((n) => wrappers[n]));
       for (const f of decl.fields) {
         const w = wrappers[f.name];
         const msg = errors[f.name] || "";
@@ -74,6 +76,81 @@ export function renderForm(form, decl, inputs, onChange) {
       if (el) el.focus();
     },
   };
+}
+
+/**
+ * The form's disclosures (app/formview.py draws them; issue 17): a collapsed optional section's
+ * button (data-toggle-section, aria-expanded) shows or hides its region and keeps its one-line
+ * summary up to date; a field's help button (data-help) shows or hides its help. `open`: keys of
+ * sections the user opened before (the shell remembers them); `onToggle(key, isOpen)` on each tap.
+ */
+function bindDisclosures(form, decl, byName, inputs, open, onToggle) {
+  const sectionFields = new Map();
+  for (const fs of form.querySelectorAll("fieldset.group[data-section]")) {
+    const names = [...fs.querySelectorAll(".field[data-field]")].map((w) => w.dataset.field);
+    sectionFields.set(fs, names.map((n) => byName[n]));
+    const btn = fs.querySelector("[data-toggle-section]");
+    if (open.includes(fs.dataset.section)) setOpen(fs, true);
+    btn.addEventListener("click", () => {
+      const now = btn.getAttribute("aria-expanded") !== "true";
+      setOpen(fs, now);
+      if (onToggle) onToggle(fs.dataset.section, now);
+    });
+  }
+  for (const b of form.querySelectorAll("button[data-help]")) {
+    b.addEventListener("click", () => {
+      const now = b.getAttribute("aria-expanded") !== "true";
+      b.setAttribute("aria-expanded", String(now));
+      form.querySelector(`#${CSS.escape(b.getAttribute("aria-controls"))}`).hidden = !now;
+    });
+  }
+  const refreshSummaries = () => {
+    for (const [fs, fields] of sectionFields) {
+      const el = fs.querySelector("[data-summary]");
+      const text = summaryOf(fields, byName, inputs);
+      if (el.textContent !== text) el.textContent = text;
+    }
+  };
+  refreshSummaries();
+  form.addEventListener("input", refreshSummaries);
+  form.addEventListener("change", refreshSummaries);
+  form.addEventListener("click", (e) => { if (e.target.closest("[data-rows], [data-set], [data-add-row]")) refreshSummaries(); });
+  return {
+    /** Open the collapsed sections holding these field wrappers; scroll to the first one opened. */
+    openFor(wrappers) {
+      let first = null;
+      for (const w of wrappers) {
+        const fs = w.closest("fieldset.group[data-section]");
+        if (fs && fs.querySelector("[data-toggle-section]").getAttribute("aria-expanded") !== "true") {
+          setOpen(fs, true);
+          first = first || w;
+        }
+      }
+      if (first) first.scrollIntoView({ block: "center" });
+    },
+  };
+}
+
+function setOpen(fs, isOpen) {
+  fs.querySelector("[data-toggle-section]").setAttribute("aria-expanded", String(isOpen));
+  fs.querySelector(".sec-body").hidden = !isOpen;
+}
+
+/** A collapsed section's one-line summary from its fields' current texts: the rule of summary() in app/formview.py. */
+export function summaryOf(fields, byName, inputs) {
+  const parts = [];
+  for (const f of fields) {
+    if (!isVisible(f, byName, inputs)) continue;
+    const text = String(currentValue(f, inputs) ?? "").trim();
+    if (f.kind === "table") {
+      const n = parseRows(text, (f.columns || []).length).length;
+      parts.push(`${n} row${n === 1 ? "" : "s"}`);
+    } else if (!text) continue;
+    else if (f.kind === "choice") parts.push((f.options.find((o) => o.value === text) || { label: text }).label);
+    else if (f.unit) parts.push(`${text} ${f.unit}`);
+    else parts.push(`${f.label} ${text}`);
+  }
+  return parts.join(", ") || "nothing entered";
 }
 
 /**
@@ -143,10 +220,16 @@ function insertAtCursor(input, text, set) {
   set(input.value);
 }
 
-/** The rows of a drawn table (its head, body and foot come from the tree), from its column declarations. */
+/**
+ * The rows of a drawn table (its head, body, foot and paste panel come from the tree), from its
+ * column declarations. On a phone each row is one line (a button with the row's values) that opens
+ * the row's cells for editing (app.css); on a wider screen the cells are a grid. Rows can be added,
+ * removed, moved up, and pasted several at once (splitPasted).
+ */
 function renderTable(f, value, set, box) {
   const cols = f.columns;
   let rows = parseRows(value, cols.length);
+  const opened = new Set();
   const body = box.querySelector("[data-rows]");
   const count = box.querySelector("[data-row-count]");
   const emit = () => {
@@ -155,7 +238,16 @@ function renderTable(f, value, set, box) {
   };
   function rowEl(i) {
     const r = rows[i];
-    const el = h("div", { class: "tbl-row" });
+    const el = h("div", { class: opened.has(i) ? "tbl-row open" : "tbl-row" });
+    const sum = h("button", { type: "button", class: "row-sum", "aria-expanded": String(opened.has(i)), text: rowSummary(i) });
+    sum.addEventListener("click", () => {
+      const now = !opened.has(i);
+      if (now) opened.add(i); else opened.delete(i);
+      el.classList.toggle("open", now);
+      sum.setAttribute("aria-expanded", String(now));
+      if (now) { const first = el.querySelector(".tbl-cell input, .tbl-cell select"); if (first) first.focus(); }
+    });
+    el.append(sum);
     cols.forEach((c, j) => {
       const lab = `Row ${i + 1}, ${c.label}${c.unit ? " (" + c.unit + ")" : ""}`;
       let inp;
@@ -163,18 +255,42 @@ function renderTable(f, value, set, box) {
         inp = h("select", { "aria-label": lab });
         for (const o of c.options) inp.append(h("option", { value: o.value, selected: o.value === r[j], text: o.label }));
         if (!r[j]) r[j] = c.options[0].value;
-        inp.addEventListener("change", () => { rows[i][j] = inp.value; emit(); });
+        inp.addEventListener("change", () => { rows[i][j] = inp.value; sum.textContent = rowSummary(i); emit(); });
       } else {
         inp = h("input", { type: "text", value: r[j] ?? "", "aria-label": lab, inputmode: c.kind === "number" ? "decimal" : "text", spellcheck: "false", autocapitalize: "off" });
-        inp.addEventListener("input", () => { rows[i][j] = inp.value; emit(); });
+        inp.addEventListener("input", () => { rows[i][j] = inp.value; sum.textContent = rowSummary(i); emit(); });
       }
       el.append(h("span", { class: "tbl-cell", "data-kind": c.kind, "data-col": c.label + unitText(c.unit) }, inp));
     });
-    el.append(h("span", { class: "tbl-act" }, h("button", {
-      type: "button", class: "btn ghost small", "aria-label": `Remove row ${i + 1}`,
-      onclick: () => { rows.splice(i, 1); redraw(); emit(); },
-    }, "✕")));
+    el.append(h("span", { class: "tbl-act" },
+      h("button", { type: "button", class: "btn ghost small", "aria-label": `Remove row ${i + 1}`, "data-remove-row": true,
+        onclick: () => { rows.splice(i, 1); shiftOpen(i, -1); redraw(); emit(); } }, "✕"),
+      i > 0 ? h("button", { type: "button", class: "btn ghost small mv", "aria-label": `Move row ${i + 1} up`,
+        onclick: () => {
+          [rows[i - 1], rows[i]] = [rows[i], rows[i - 1]];
+          const a = opened.has(i), b = opened.has(i - 1);
+          opened.delete(i); opened.delete(i - 1);
+          if (a) opened.add(i - 1);
+          if (b) opened.add(i);
+          redraw(); emit();
+          const moved = body.children[i - 1].querySelector(".mv") || body.children[i - 1].querySelector(".row-sum");
+          moved.focus();
+        } }, "↑") : null));
     return el;
+  }
+  function rowSummary(i) {
+    const parts = cols.map((c, j) => {
+      const v = String(rows[i][j] ?? "").trim();
+      if (!v) return "";
+      if (c.kind === "choice") return (c.options.find((o) => o.value === v) || { label: v }).label;
+      return c.unit ? `${v} ${c.unit}` : v;
+    }).filter(Boolean);
+    return `${i + 1}. ${parts.join(" · ") || "empty row"}`;
+  }
+  function shiftOpen(from, by) {
+    const next = [...opened].filter((k) => k !== from).map((k) => (k > from ? k + by : k));
+    opened.clear();
+    for (const k of next) opened.add(k);
   }
   function redraw() {
     clear(body);
@@ -186,11 +302,35 @@ function renderTable(f, value, set, box) {
   box.querySelector("[data-add-row]").addEventListener("click", () => {
     if (rows.length >= (f.max_rows || 500)) return;
     rows.push(cols.map((c) => (c.kind === "choice" ? c.options[0].value : "")));
+    opened.add(rows.length - 1);
     redraw();
     emit();
-    const inputs = body.lastChild.querySelectorAll("input, select");
+    const inputs = body.lastChild.querySelectorAll(".tbl-cell input, .tbl-cell select");
     if (inputs.length) inputs[0].focus();
   });
+  const toggle = box.querySelector("[data-paste-toggle]");
+  if (toggle) {
+    const panel = box.querySelector(`#${CSS.escape(toggle.getAttribute("aria-controls"))}`);
+    const text = panel.querySelector("[data-paste-text]");
+    const report = panel.querySelector("[data-paste-report]");
+    toggle.addEventListener("click", () => {
+      const now = toggle.getAttribute("aria-expanded") !== "true";
+      toggle.setAttribute("aria-expanded", String(now));
+      panel.hidden = !now;
+      if (now) text.focus();
+    });
+    panel.querySelector("[data-paste-add]").addEventListener("click", () => {
+      const got = splitPasted(text.value, cols);
+      const room = Math.max(0, (f.max_rows || 500) - rows.length);
+      for (const [line] of got.rows.slice(room)) got.bad.push(`line ${line}: the table is full (${f.max_rows || 500} rows)`);
+      const added = got.rows.slice(0, room).map(([, cells]) => cells);
+      rows.push(...added);
+      if (added.length) { redraw(); emit(); }
+      report.textContent = `${added.length} row${added.length === 1 ? "" : "s"} added.` +
+        (got.bad.length ? ` Not read: ${got.bad.join("; ")}.` : "");
+      if (!got.bad.length) text.value = "";
+    });
+  }
   redraw();
 }
 
@@ -209,7 +349,40 @@ export function showWorking(section, on) {
   section.toggleAttribute("aria-busy", on);
 }
 
-const STATUS_WORD = { ok: "OK", warn: "Check", fail: "Fails" };
+/**
+ * Pasted text as table rows: one row per non-empty line, cells split at tabs if the text has any,
+ * else at semicolons if it has any, else at commas; with tabs or semicolons a decimal
+ * comma (a cell that is just a number) becomes a point. A choice cell is matched to an option by its value or label (any case).
+ * Text splitting only: the values are checked by Python like any typed row. Returns
+ * {rows: [[line, cells]], bad: ["line n: why"]}.
+ */
+export function splitPasted(text, cols) {
+  const sep = text.includes("\t") ? "\t" : text.includes(";") ? ";" : ",";
+  const lastRequired = cols.reduce((k, c, j) => (c.required ? j + 1 : k), 0);
+  const out = { rows: [], bad: [] };
+  text.split(/\r?\n/).forEach((line, k) => {
+    if (!line.trim()) return;
+    let cells = line.split(sep).map((c) => c.trim());
+    while (cells.length > cols.length && cells[cells.length - 1] === "") cells.pop();
+    if (cells.length > cols.length) { out.bad.push(`line ${k + 1}: ${cells.length} columns, the table has ${cols.length}`); return; }
+    if (cells.length < lastRequired) { out.bad.push(`line ${k + 1}: ${cells.length} column${cells.length === 1 ? "" : "s"}, at least ${lastRequired} needed`); return; }
+    let why = "";
+    const row = cols.map((c, j) => {
+      const v = cells[j] ?? "";
+      if (c.kind === "choice") {
+        const o = c.options.find((x) => x.value.toLowerCase() === v.toLowerCase() || x.label.toLowerCase() === v.toLowerCase());
+        if (!o && v) why = why || `“${v}” is not one of ${c.options.map((x) => x.label).join(", ")}`;
+        return o ? o.value : c.options[0].value;
+      }
+      return sep !== "," ? v.replace(/^([-+]?\d*),(\d+)$/, "$1.$2") : v; // a lone number with a decimal comma
+    });
+    if (why) out.bad.push(`line ${k + 1}: ${why}`);
+    else out.rows.push([k + 1, row]);
+  });
+  return out;
+}
+
+export const STATUS_WORD = { ok: "OK", warn: "Check", fail: "Fails" };
 
 /** Render a compute result (the bridge's JSON) into the results container. */
 export function renderResults(el, res, { onLink } = {}) {
@@ -229,7 +402,7 @@ export function renderResults(el, res, { onLink } = {}) {
       howTo(r)))));
   }
   for (const w of res.warnings || []) el.append(h("p", { class: "msg warn" }, h("strong", { text: "Warning: " }), w));
-  const rest = results.filter((r) => !r.key);
+  const rest = checksFirst(results.filter((r) => !r.key));
   if (rest.length) {
     let group = null;
     let dl = null;
@@ -264,6 +437,21 @@ export function renderResults(el, res, { onLink } = {}) {
   if ((res.cautions || []).length) {
     el.append(h("aside", { class: "cautions", "aria-label": "Safety cautions" }, h("h3", { text: "Cautions" }), h("ul", {}, res.cautions.map((c) => h("li", { text: c })))));
   }
+}
+
+/**
+ * The results under the headline answers: the groups holding a check (a result with a status) first,
+ * then the details, each group kept whole and in the order Python gave (issue 17).
+ */
+function checksFirst(rest) {
+  const groups = [];
+  for (const r of rest) {
+    const g = groups.find((x) => x.name === (r.group || ""));
+    if (g && g === groups[groups.length - 1]) g.rows.push(r);
+    else groups.push({ name: r.group || "", rows: [r] });
+  }
+  const checks = groups.filter((g) => g.rows.some((r) => r.status));
+  return [...checks, ...groups.filter((g) => !checks.includes(g))].flatMap((g) => g.rows);
 }
 
 function howTo(r) {

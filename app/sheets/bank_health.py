@@ -438,6 +438,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.STORED_CHARGE, cautions.TEST_DEENERGISED, cautions.QUALIFIED, cautions.ESTIMATE],
     order=50,
+    essential=('q_rated', 'v_rated', 'connection', 'mode', 'm12', 'm23', 'm31', 'c1', 'c2', 'c3', 'i1', 'i2', 'i3', 'v_meas'),
     references=[
         ref("circuits_three_phase"), ref("ieee18"), ref("iec60831"),
     ],

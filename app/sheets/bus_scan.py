@@ -238,6 +238,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=20,
+    essential=('v_ll', 'f', 'tx_kva', 'tx_z', 'steps'),
     references=[
         ref("ieee1036"), ref("dugan"), ref("ieee141_sc"), ref("ieee519"),
     ],

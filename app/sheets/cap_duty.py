@@ -300,6 +300,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.SCREENING, cautions.STORED_CHARGE, cautions.ESTIMATE],
     order=27,
+    essential=('u_rated', 'q_rated', 'u_bus', 'p', 'kind', 'spectrum'),
     references=[
         ref("ieee18"), ref("iec60831_duty"), ref("ieee1036"), ref("ieee519"),
     ],

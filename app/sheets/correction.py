@@ -294,6 +294,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.STORED_CHARGE, cautions.QUALIFIED, cautions.ESTIMATE],
     order=10,
+    essential=('v_ll', 'f', 'phases', 'basis', 'v_meas', 'i_meas', 'p_kw', 's_kva', 'q_kvar', 'pf1', 'pf1_sense', 'bill_kwh', 'bill_kvarh', 'bill_kw', 'bill_hours', 'peak_kw', 'peak_kva', 'pf2'),
     references=[
         ref("ieee141_pf"), ref("ieee18"), ref("ieee1036"), ref("nec460_8"), ref("iec60831"),
     ],

@@ -285,6 +285,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.SCREENING, cautions.STORED_CHARGE, cautions.ESTIMATE],
     order=25,
+    essential=('u', 'f', 'q', 'steps', 'spec', 'p', 'ft', 'h_low'),
     references=[
         ref("circuits_resonance"), ref("iec61642"), ref("ieee18"), ref("ieee1036"),
     ],

@@ -376,6 +376,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=22,
+    essential=('v_ll', 'f', 'tx_kva', 'tx_z', 'steps', 'source', 'typical', 'i_spec', 'i_unit', 'i1', 'v_spec', 'bank_state'),
     references=[
         ref("dugan_harmonics"), ref("ieee399_harmonics"), ref("ieee18"), ref("iec60831_duty"), ref("ieee519"),
         ref("ieee519_t2"), ref("c57_12_00"), ref("spectra_typical"),

@@ -213,5 +213,6 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=30,
+    essential=('mode', 'z', 'y', 'topology', 'elements', 'f'),
     references=[ref("circuits_phasors")],
 )

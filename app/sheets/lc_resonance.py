@@ -269,5 +269,6 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.SCREENING, cautions.ESTIMATE],
     order=40,
+    essential=('topology', 'solve', 'l', 'c', 'f0'),
     references=[ref("circuits_resonance")],
 )

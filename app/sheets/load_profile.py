@@ -337,5 +337,6 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=25,
+    essential=('profile', 'target_pf'),
     references=[ref("ieee141_pf"), ref("practice_billing")],
 )

@@ -167,6 +167,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.STORED_CHARGE, cautions.QUALIFIED, cautions.ESTIMATE],
     order=55,
+    essential=('v', 'f', 'i_full', 'pf_full', 'basis', 'i0', 'lr_ratio'),
     references=[
         ref("nec460_8"), ref("nec460_9"), ref("nema_mg1"), ref("machines"),
     ],

@@ -261,6 +261,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=60,
+    essential=('pf1', 'pf2', 'tariff', 'p_kw', 'kva_price', 'threshold', 'penalty_mode', 'penalty_pct', 'bill', 'penalty_amount', 'rounding', 'kwh_month', 'kvarh_month', 'kvarh_price', 'cost'),
     references=[
         ref("ieee141_pf"), ref("practice_bank_losses"),
     ],

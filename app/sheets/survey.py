@@ -279,6 +279,7 @@ SHEET = Worksheet(
     compute=compute,
     cautions=[cautions.ESTIMATE],
     order=5,
+    essential=('loads', 'target_pf'),
     references=[
         ref("ieee141_pf"), ref("circuits_ac_power"),
     ],
