@@ -155,12 +155,10 @@ def test_light_load_key_result_is_what_the_controller_holds():
     assert not res(r, "pf_light").get("key")  # the whole bank in stays as a check, not the answer
 
 
-def test_detuned_bank_order_list(monkeypatch):
-    # until the bank-type field lands, p comes through detuning_p: a 7 % bank (industry convention)
-    from app.sheets import _correction_order as order
-
-    monkeypatch.setattr(order, "detuning_p", lambda ins: 0.07)
-    r = run()
+def test_detuned_bank_order_list():
+    # a 7 % detuned bank (industry convention) chosen in the bank-type field: its reactors are ordered
+    # and its own reactor, not an extra one, limits the inrush
+    r = run(bank_type="p7")
     assert r["ok"], r
     items = [row[1] for row in table(r, "What to order")["rows"]]
     assert "Detuning reactor" in items and not any(i.startswith("Inrush-limiting") for i in items)

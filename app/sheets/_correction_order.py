@@ -181,8 +181,12 @@ def order_list(out, cx):
             fast_discharge_s=cx.fast_s)
     except InputError as e:
         msg = str(e)
-        at = "run_m" if ("inductance" in msg or "length" in msg) else "cap_f" if "frequency" in msg else "ratings"
-        raise FieldError(at, msg) from None
+        at = "run_m" if ("inductance" in msg or "length" in msg) else "cap_f" if "frequency" in msg else None
+        if at:
+            raise FieldError(at, msg) from None
+        # nothing typed is wrong (e.g. a current beyond any cable table): the sizing stands, the parts list cannot
+        out.warn(f"The order list could not be worked out: {msg}")
+        return
     cx.bank_design = bd
     rows = orderlist.merge_alike_steps(orderlist.order_rows(bd))
     cols, cells = orderlist.as_table(rows)

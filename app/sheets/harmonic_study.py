@@ -364,7 +364,9 @@ def _recommendation(out, options, back):
     for o in options[1:]:
         kind = bank_type_of(o.p_percent / 100)
         out.link(f"Order it detuned at {fmt.sig(o.p_percent)} % (correction worksheet)"
-                 + ("" if "basis" in back else ": enter the load there"), "correction", {**back, "bank_type": kind})
+                 + ("" if "basis" in back else ": enter the load there"), "correction",
+                 # a detuned bank's capacitors are rated at the system frequency
+                 {**back, "bank_type": kind, "cap_f": back.get("f", "")})
 
 
 SHEET = Worksheet(
