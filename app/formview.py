@@ -62,7 +62,7 @@ def form_tree(sheet: Worksheet, values: Optional[dict] = None) -> list:
 
 
 def optional_section(node: list, fields: list, ins: Inputs) -> None:
-    """Make a group a disclosure (issue 17): its legend holds a button with ``aria-expanded`` that
+    """Make a group a disclosure: its legend holds a button with ``aria-expanded`` that
     controls the region holding the fields, collapsed, and shows a one-line summary of the values
     (:func:`summary`). The shell opens it on a tap (and remembers that), or when a field in it has a
     message. ``data-section`` (its first field's name) is the hook and the key it is remembered by."""
@@ -106,7 +106,7 @@ def summary(fields: list, ins: Inputs) -> str:
 
 
 def with_help_toggle(f: Field, node: list) -> list:
-    """Put a field's help behind a button (issue 17): the help paragraph is drawn hidden and a
+    """Put a field's help behind a button: the help paragraph is drawn hidden and a
     ``data-help`` button with ``aria-expanded`` controlling it comes just before it."""
     for i, child in enumerate(node):
         if isinstance(child, list) and child[0] == "p" and child[1].get("class") == "help":
@@ -192,7 +192,7 @@ def file_node(f: Field) -> list:
 
 
 def paste_nodes(f: Field) -> list:
-    """A table's paste panel (issue 17): the button that opens it (``data-paste-toggle``), then the
+    """A table's paste panel: the button that opens it (``data-paste-toggle``), then the
     panel (a text area, ``data-paste-add``, and ``data-paste-report`` listing the lines not read).
     The shell splits the pasted lines into cells; Python checks the values like any typed row."""
     pid = f"paste-{f.name}"

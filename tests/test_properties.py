@@ -422,8 +422,8 @@ CASES = {
     "bankhealth.phase_kvar": A(LIST3, F, F, CONN),
     "bankhealth.imbalance_percent": A(LIST3),
     "bankhealth.max_min_ratio": A(LIST3),
-    "bankhealth.custom_band": A(F, F),
-    "bankhealth.verdict": A(F, BAND),
+    "capbands.custom_band": A(F, F),
+    "capbands.verdict": A(F, BAND),
     # banksteps
     "banksteps.select_units": A(F, RATINGS),
     "banksteps.exact_units": A(F, RATINGS),

@@ -106,7 +106,7 @@ function showResult(res, { remembered = false } = {}) {
   markRemembered(remembered);
 }
 
-// ---- the answer bar (issue 17) -----------------------------------------------------------------
+// ---- the answer bar -----------------------------------------------------------------
 // The headline answer sits above the form and, on a phone, stays in view (sticky under the top of
 // the screen, app.css) while the user types lower down; it links to all the results. It is
 // announced politely, and only when what it says changes: typing that leaves the answer as it was
@@ -213,7 +213,7 @@ function showPending() {
   $("announce").textContent = announced = "Answer pending.";
 }
 
-// ---- optional sections remembered per worksheet (issue 17) --------------------------------------
+// ---- optional sections remembered per worksheet --------------------------------------
 const OPEN_SECTIONS = "fp-open-sections";
 function openSections(sheetId) {
   try { return (JSON.parse(localStorage.getItem(OPEN_SECTIONS) || "{}")[sheetId]) || []; } catch { return []; }

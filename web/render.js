@@ -79,7 +79,7 @@ export function renderForm(form, decl, inputs, onChange, { open = [], onToggle =
 }
 
 /**
- * The form's disclosures (app/formview.py draws them; issue 17): a collapsed optional section's
+ * The form's disclosures (app/formview.py draws them): a collapsed optional section's
  * button (data-toggle-section, aria-expanded) shows or hides its region and keeps its one-line
  * summary up to date; a field's help button (data-help) shows or hides its help. `open`: keys of
  * sections the user opened before (the shell remembers them); `onToggle(key, isOpen)` on each tap.
@@ -441,7 +441,7 @@ export function renderResults(el, res, { onLink } = {}) {
 
 /**
  * The results under the headline answers: the groups holding a check (a result with a status) first,
- * then the details, each group kept whole and in the order Python gave (issue 17).
+ * then the details, each group kept whole and in the order Python gave.
  */
 function checksFirst(rest) {
   const groups = [];
