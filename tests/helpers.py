@@ -19,11 +19,14 @@ ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))  # the reposi
 
 def run(sheet_id: str, inputs: dict | None = None, /, **more) -> dict:
     """Compute worksheet ``sheet_id`` from field name → typed text: ``inputs`` and the keyword
-    fields together (a keyword wins). The outcome dict of the bridge contract, as JSON gives it.
+    fields together (a keyword wins); a number stands for the text it prints as (``p=7`` is
+    ``"7"``). The outcome dict of the bridge contract, as JSON gives it.
 
     Fails the test on an internal error (the registry's ``"internal": true``, an unexpected
     exception inside the computation) and on an outcome the bridge could not write as JSON."""
-    out = registry.run(sheet_id, {**(inputs or {}), **more})
+    typed = {k: str(v) if isinstance(v, (int, float)) and not isinstance(v, bool) else v
+             for k, v in {**(inputs or {}), **more}.items()}
+    out = registry.run(sheet_id, typed)
     assert not out.get("internal"), f"internal error in {sheet_id}: {out.get('error')} (inputs {inputs or {}} {more})"
     try:
         text = json.dumps(out, ensure_ascii=False, allow_nan=False)
@@ -43,6 +46,14 @@ def res(out: dict, name: str) -> dict:
 def val(out: dict, name: str):
     """The value of the result called ``name``."""
     return res(out, name)["value"]
+
+
+def titled(out: dict, title: str) -> dict:
+    """The result table called ``title`` in an outcome."""
+    for t in out["tables"]:
+        if t["title"] == title:
+            return t
+    raise KeyError(f"{title} (tables: {[t['title'] for t in out['tables']]})")
 
 
 def table(*rows) -> str:

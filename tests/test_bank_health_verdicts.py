@@ -13,22 +13,15 @@ import math
 import numpy as np
 import pytest
 
-from app import registry
+from helpers import res, run
 
+SHEET = "bank_health"
 W50 = 2 * math.pi * 50
 C_EXP = 50e3 / (3 * W50 * 400**2)  # delta, 50 kvar, 400 V, 50 Hz: C = Q/(3ωV²) = 331.57 µF
 
 
-def run(**inputs):
-    return registry.run("bank_health", {k: str(v) for k, v in inputs.items()})
-
-
-def res(r, name):
-    return next(x for x in r["results"] if x["name"] == name)
-
-
 def phases(c_uf, **more):
-    return run(mode="phase", c1=c_uf[0], c2=c_uf[1], c3=c_uf[2], **more)
+    return run(SHEET, mode="phase", c1=c_uf[0], c2=c_uf[1], c3=c_uf[2], **more)
 
 
 def test_issue_case_inside_the_meter_accuracy_is_not_condemned():
@@ -77,7 +70,7 @@ def test_ratio_on_between_terminal_values_issue_case():
     assert ratio["value"] == pytest.approx(want, rel=1e-6)
     assert ratio["status"] == "ok" and not any("1.08 ratio" in w for w in r["warnings"])
     # the same elements measured between terminals give the same ratio, as read
-    rb = run(mode="between", m12=m[0], m23=m[1], m31=m[2])
+    rb = run(SHEET, mode="between", m12=m[0], m23=m[1], m31=m[2])
     assert res(rb, "ratio")["value"] == pytest.approx(want, rel=1e-9)
 
 
@@ -97,5 +90,5 @@ def test_floating_wye_star_point_against_nodal_analysis():
 
 
 def test_meter_accuracy_refused_at_its_field():
-    r = run(meter_acc="-1")
+    r = run(SHEET, meter_acc="-1")
     assert not r["ok"] and "meter_acc" in r["field_errors"]

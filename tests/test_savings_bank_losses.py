@@ -10,19 +10,13 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from app import registry
+from helpers import res, run
 
-
-def run(**inputs):
-    return registry.run("savings", {k: str(v) for k, v in inputs.items()})
-
-
-def res(r, name):
-    return next(x for x in r["results"] if x["name"] == name)
+SHEET = "savings"
 
 
 def test_detuned_bank_losses_and_net_payback():
-    r = run(bank_kvar=300, bank_detuned=200, bank_hours=500, energy_price=0.2, cost=20000)
+    r = run(SHEET, bank_kvar=300, bank_detuned=200, bank_hours=500, energy_price=0.2, cost=20000)
     assert r["ok"], r
     p, pf1, pf2, price = 420, 0.78, 0.95, 11.5
     gross = price * (p / pf1 - p / pf2)  # kVA demand saving, power triangle
@@ -37,13 +31,13 @@ def test_detuned_bank_losses_and_net_payback():
 
 
 def test_editable_loss_figures_and_blank_bank():
-    r = run(bank_kvar=100, cap_w=0.2, bank_hours=100, energy_price=1)
+    r = run(SHEET, bank_kvar=100, cap_w=0.2, bank_hours=100, energy_price=1)
     assert res(r, "bank_cost")["value"] == pytest.approx(100 * 0.2 / 1000 * 100 * 1, rel=1e-12)
-    r = run(bank_kvar="")
+    r = run(SHEET, bank_kvar="")
     assert r["ok"] and not any(x["name"] == "net_monthly" for x in r["results"])
     assert np.isclose(res(r, "yearly")["value"], 12 * res(r, "monthly")["value"])
 
 
 def test_more_detuned_than_in_service_refused_at_its_field():
-    r = run(bank_kvar=100, bank_detuned=150)
+    r = run(SHEET, bank_kvar=100, bank_detuned=150)
     assert not r["ok"] and "bank_detuned" in r["field_errors"]
