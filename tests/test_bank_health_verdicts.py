@@ -2,7 +2,7 @@
 accuracy, the IEC 60831-1 ratio on between-terminal capacitances, and the floating wye's star point.
 
 Independent checks: between-terminal capacitance by series/parallel combination and the star
-point by nodal analysis, both written out here with numpy (circuit theory); the cases of issue 16
+point by nodal analysis, both written out here with numpy (circuit theory); two worked cases
 (a phase at −0.47 % on the IEEE 18 band; elements 330 / 332 / 290 µF, between-terminal ratio 1.068).
 """
 
@@ -24,7 +24,7 @@ def phases(c_uf, **more):
     return run(SHEET, mode="phase", c1=c_uf[0], c2=c_uf[1], c3=c_uf[2], **more)
 
 
-def test_issue_case_inside_the_meter_accuracy_is_not_condemned():
+def test_phase_inside_the_meter_accuracy_is_not_condemned():
     # IEEE 18 band 0 to +10 %: a phase at −0.47 % with a ±2 % meter (common practice) is within tolerance
     c = C_EXP * 1e6
     r = phases([c * (1 - 0.0047), c, c], band="ieee18")
@@ -60,8 +60,8 @@ def _between(c):
     return [c12 + c23 * c31 / (c23 + c31), c23 + c31 * c12 / (c31 + c12), c31 + c12 * c23 / (c12 + c23)]
 
 
-def test_ratio_on_between_terminal_values_issue_case():
-    c = (330.0, 332.0, 290.0)  # µF elements: element ratio 1.145 but between-terminal 1.068 (issue 16)
+def test_ratio_on_between_terminal_values_worked_case():
+    c = (330.0, 332.0, 290.0)  # µF elements: element ratio 1.145 but between-terminal 1.068 (worked case)
     m = _between(c)
     want = max(m) / min(m)
     assert want == pytest.approx(1.068, abs=5e-4)

@@ -4,7 +4,7 @@ typed as people write them, and a leading present power factor (app/sheets/_corr
 Outside references: the transformer's equivalent circuit solved directly with complex phasors
 (cmath: series leakage reactance u_k, magnetising branch i₀ at the primary, per unit on S_T);
 the power triangle worked by hand (P, Q, PF = P/√(P² + Q²)); capacitor output Q_r·(V/V_r)²
-(X_C = 1/(2πfC), circuit theory). The two cases are the issue's own worked examples.
+(X_C = 1/(2πfC), circuit theory). The two worked cases below are checked against those.
 """
 
 from __future__ import annotations
@@ -41,7 +41,7 @@ def test_primary_metering_asks_for_about_393_kvar():
     out = run(SHEET, PRIMARY)
     assert out["ok"], out["field_errors"]
     need = res(out, "q_need")["value"]
-    assert need == pytest.approx(393, abs=2)  # the issue's worked case (secondary-only sizing gave 337)
+    assert need == pytest.approx(393, abs=2)  # worked case (secondary-only sizing gives 337)
     q = 800 * math.tan(math.acos(0.8))
     # the equivalent circuit, solved directly, reaches the target at the primary with that need
     assert primary_pf(800, q - need, 1000, 0.06, 0.015) == pytest.approx(0.95, abs=0.003)
@@ -77,7 +77,7 @@ MEASURED = {"basis": "vi_pf", "v_ll": "480", "v_meas": "440", "i_meas": "600", "
 def test_measured_voltage_sets_the_capacitor_output():
     p = math.sqrt(3) * 440 * 600 * 0.78 / 1000  # kW from the measured V, I, PF
     q = p * math.tan(math.acos(0.78))
-    # the issue's case: a 193 kvar (rated 480 V) bank on the bus measured at 440 V
+    # worked case: a 193 kvar (rated 480 V) bank on the bus measured at 440 V
     got = bankoutput.with_bank_at(p, q, 193, 440, 480, 60, 60)
     assert got.q_kvar == pytest.approx(162, abs=1) and got.pf == pytest.approx(0.944, abs=0.002)
     out = run(SHEET, MEASURED)

@@ -4,7 +4,7 @@
 Independent checks: the power triangle with numpy (circuit theory); the controller's choice
 re-derived by brute force over the step combinations (how step controllers regulate, common
 practice); the back-to-back inrush from the IEEE Std 1036 expression (from memory) written
-out here with numpy; the 71.3 and 38.3 kvar cases of issue 16.
+out here with numpy; two worked cases, 71.3 and 38.3 kvar.
 """
 
 from __future__ import annotations
@@ -30,8 +30,8 @@ def need_case(need_kvar, **more):
 
 
 @pytest.mark.parametrize("need", [71.3, 38.3])
-def test_issue_cases_get_a_plan_within_15_percent(need):
-    # issue 16: a 71.3 kvar need met with 110 kvar by the default pattern, 38.3 kvar with 55 kvar
+def test_worked_needs_get_a_plan_within_15_percent(need):
+    # worked cases: a 71.3 kvar need met with 110 kvar by the default pattern, 38.3 kvar with 55 kvar
     r = need_case(need)
     assert r["ok"], r
     assert res(r, "q_need")["value"] == pytest.approx(need, rel=1e-6)

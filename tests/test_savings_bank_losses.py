@@ -1,4 +1,4 @@
-"""Savings worksheet: the bank's own losses subtracted from the saving (issue 16).
+"""Savings worksheet: the bank's own losses subtracted from the saving.
 
 Independent check: energy = power × time and money = energy × price (arithmetic), with the
 typical loss figures written out here — capacitors 0.5 W/kvar, detuning reactors 6 W/kvar

@@ -175,7 +175,7 @@ def test_savings_defaults_compute_with_payback():
     s2 = abs(p + 1j * p * np.tan(np.arccos(pf2)))
     monthly = price * (s1 - s2)
     assert res(r, "monthly")["value"] == pytest.approx(monthly, rel=1e-10)
-    # the bank's own losses (issue 16): 200 kvar × 0.5 W/kvar (from memory) for 400 h at 0.14 per kWh
+    # the bank's own losses: 200 kvar × 0.5 W/kvar (from memory) for 400 h at 0.14 per kWh
     net = monthly - 200 * 0.5 / 1000 * 400 * 0.14
     assert res(r, "net_monthly")["value"] == pytest.approx(net, rel=1e-10)
     assert res(r, "yearly")["value"] == pytest.approx(12 * net, rel=1e-10)

@@ -63,7 +63,7 @@ postMessage('ready');
 SHEET = OPENING_SHEET  # the worksheet that opens first
 # First-visit links: name, throughput [bit/s] (both directions), latency [ms]
 LINKS = (("fast", 10e6, 40), ("slow", 1.6e6, 150))
-# Issue 18 targets (printed, never asserted)
+# the project's first-visit targets (printed, never asserted)
 VISIT_TARGETS = {"fast": (8_000, 12_000), "slow": (35_000, 45_000)}
 FIRST_VISIT_BYTES_TARGET = 5e6
 # When the page first had an active service worker, i.e. the whole build precached (install waits
@@ -448,7 +448,7 @@ def report(r: dict) -> str:
     return "\n".join(lines)
 
 
-# Issue 15: a year of interval data read and analysed by the load-profile worksheet in the browser
+# A year of interval data read and analysed by the load-profile worksheet in the browser
 # engine (Pyodide in the worker), through the shell's own compute message. (name, interval [min],
 # target [ms]); printed beside the figures, never asserted.
 PROFILE_CASES = (("profile_15min_year_ms", 15, 1000), ("profile_5min_year_ms", 5, 3000))
