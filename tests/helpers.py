@@ -74,3 +74,10 @@ def assert_answered(out: dict) -> None:
         assert messages, "refused without a message"
         assert all(isinstance(m, str) and m.strip() for m in messages), messages
         assert out["results"] == [] and out["figures"] == []
+
+
+def bridge_demo() -> dict:
+    """The demo job as the bridge hands it to the shell (JSON text read back)."""
+    from app import bridge  # the JSON door itself is what these tests look at
+
+    return json.loads(bridge.demo_job())
