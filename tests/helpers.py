@@ -19,14 +19,11 @@ ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))  # the reposi
 
 def run(sheet_id: str, inputs: dict | None = None, /, **more) -> dict:
     """Compute worksheet ``sheet_id`` from field name → typed text: ``inputs`` and the keyword
-    fields together (a keyword wins); a number stands for the text it prints as (``p=7`` is
-    ``"7"``). The outcome dict of the bridge contract, as JSON gives it.
+    fields together (a keyword wins). The outcome dict of the bridge contract, as JSON gives it.
 
     Fails the test on an internal error (the registry's ``"internal": true``, an unexpected
     exception inside the computation) and on an outcome the bridge could not write as JSON."""
-    typed = {k: str(v) if isinstance(v, (int, float)) and not isinstance(v, bool) else v
-             for k, v in {**(inputs or {}), **more}.items()}
-    out = registry.run(sheet_id, typed)
+    out = registry.run(sheet_id, {**(inputs or {}), **more})
     assert not out.get("internal"), f"internal error in {sheet_id}: {out.get('error')} (inputs {inputs or {}} {more})"
     try:
         text = json.dumps(out, ensure_ascii=False, allow_nan=False)
