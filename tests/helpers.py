@@ -45,6 +45,14 @@ def val(out: dict, name: str):
     return res(out, name)["value"]
 
 
+def titled(out: dict, title: str) -> dict:
+    """The result table called ``title`` in an outcome."""
+    for t in out["tables"]:
+        if t["title"] == title:
+            return t
+    raise KeyError(f"{title} (tables: {[t['title'] for t in out['tables']]})")
+
+
 def table(*rows) -> str:
     """A table field's text: rows of cells as JSON, each cell as typed text."""
     return json.dumps([[str(c) for c in r] for r in rows])
@@ -63,3 +71,10 @@ def assert_answered(out: dict) -> None:
         assert messages, "refused without a message"
         assert all(isinstance(m, str) and m.strip() for m in messages), messages
         assert out["results"] == [] and out["figures"] == []
+
+
+def bridge_demo() -> dict:
+    """The demo job as the bridge hands it to the shell (JSON text read back)."""
+    from app import bridge  # the JSON door itself is what these tests look at
+
+    return json.loads(bridge.demo_job())

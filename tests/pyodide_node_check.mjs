@@ -1,7 +1,7 @@
 // Runs the app in Pyodide under Node.js (the same runtime and Python 3.14 as the browser) from a
 // built dist/, with the standard-library archive given, and prints JSON: the standard-library
 // modules loaded from that archive, each worksheet's default result and each report format's
-// text for the job in JOB_JSON. Used by tests/test_stdlib_trim.py.
+// text for the job in JOB_JSON. Used by tests/test_stdlib.py.
 // Usage: node pyodide_node_check.mjs DIST STDLIB_ZIP JOB_JSON
 import { readFileSync } from "node:fs";
 import { join } from "node:path";

@@ -58,7 +58,7 @@ def test_required_kvar_against_numpy_triangle():
 
 @pytest.mark.parametrize("kwh,kvarh", [(215000, 172000), (3, 4), (1e6, 1), (500, 0)])
 def test_bill_power_factor(kwh, kvarh):
-    # Issue 3 / utility billing practice: PF = kWh/√(kWh² + kvarh²), computed here with numpy
+    # utility billing practice (common practice): PF = kWh/√(kWh² + kvarh²), computed here with numpy
     expected = kwh / np.linalg.norm([kwh, kvarh])
     assert correction.pf_from_energy(kwh, kvarh) == pytest.approx(expected, rel=1e-12)
 

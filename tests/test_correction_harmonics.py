@@ -14,15 +14,11 @@ import math
 
 import pytest
 
-from app import registry
 from app.sheets import _correction_harmonics as harm
+from helpers import res, run
 
 CASE = dict(v_ll="480", f="60", tx_kva="1500", tx_z="6", fault_mva="", basis="p_q", p_kw="1000", q_kvar="600",
             pf2="0.95", bank="fixed", cap_v="480", cap_f="60", ratings="400", light_p="")
-
-
-def res(out, name):
-    return next(r for r in out["results"] if r["name"] == name)
 
 
 def _hand_range():
@@ -39,7 +35,7 @@ def test_hand_arithmetic_puts_the_1500_kva_case_inside_the_7th_band():
 
 
 def test_correction_warns_on_the_1500_kva_plain_bank_naming_combination_place_and_remedy():
-    out = registry.run("correction", CASE)
+    out = run("correction", CASE)
     assert out["ok"], out["field_errors"]
     h, lo, hi = _hand_range()
     assert res(out, "h_res")["value"] == pytest.approx(h, rel=1e-3)
@@ -55,7 +51,7 @@ def test_correction_warns_on_the_1500_kva_plain_bank_naming_combination_place_an
 
 
 def test_correction_steps_are_screened_one_combination_at_a_time():
-    out = registry.run("correction", {**CASE, "bank": "auto", "n_steps": "4", "pattern": "equal", "ratings": "100"})
+    out = run("correction", {**CASE, "bank": "auto", "n_steps": "4", "pattern": "equal", "ratings": "100"})
     assert out["ok"], out["field_errors"]
     # 4 × 100 kvar: all in is the same 7.91; two steps in, √(25 000/200) = 11.18 sits on the 11th; three steps in,
     # √(25 000/300) = 9.13 spans 8.40 to 9.49 across the tolerances, clear of 7.7 and of 9.9 (the bands of the 7th, 11th)
@@ -68,22 +64,22 @@ def test_correction_steps_are_screened_one_combination_at_a_time():
 
 def test_bus_scan_warns_on_the_same_case_and_is_quiet_with_no_tolerance_and_no_band():
     base = dict(v_ll="480", f="60", tx_kva="1500", tx_z="6", x_r="", fault_mva="", load_kw="", steps="400")
-    out = registry.run("bus_scan", base)
+    out = run("bus_scan", base)
     assert out["ok"], out["field_errors"]
     assert res(out, "near_count")["status"] == "warn"
     w = [x for x in out["warnings"] if "7th harmonic" in x]
     assert w and "With step 1 in (400 kvar)" in w[0] and "474 Hz" in w[0] and "To do" in w[0]
     # the nominal 7.91 lies 13 % above the 7th: with no tolerance and no band nothing is flagged
-    quiet = registry.run("bus_scan", {**base, "band": "0", "cap_lo": "0", "cap_hi": "0", "z_tol": "0"})
+    quiet = run("bus_scan", {**base, "band": "0", "cap_lo": "0", "cap_hi": "0", "z_tol": "0"})
     assert quiet["ok"] and not quiet["warnings"] and res(quiet, "near_count")["status"] == "ok"
 
 
 def test_detuned_worksheet_screens_the_bank_and_the_plain_same_kvar():
-    out = registry.run("detuned", dict(u="480", f="60", q="400", steps="1", s_kva="1500", z_pct="6", p="7"))
+    out = run("detuned", dict(u="480", f="60", q="400", steps="1", s_kva="1500", z_pct="6", p="7"))
     assert out["ok"]
     assert res(out, "h_plain")["status"] == "warn" and "7th" in res(out, "h_plain")["display"]
     assert not any("With all steps in" in w for w in out["warnings"])  # 7 %: h ≈ 3.4, clear of the 5th
-    low = registry.run("detuned", dict(u="480", f="60", q="400", steps="1", s_kva="1500", z_pct="6", p="1"))
+    low = run("detuned", dict(u="480", f="60", q="400", steps="1", s_kva="1500", z_pct="6", p="1"))
     assert any(w.startswith("With all steps in (400 kvar)") for w in low["warnings"])  # tuned to 10, near the 11th
 
 
@@ -97,7 +93,7 @@ def test_detuning_factor_accessor():
 
 
 def test_detuned_bank_type_orders_higher_rated_capacitors_and_a_reactor_per_step():
-    out = registry.run("correction", {**CASE, "bank_type": "p7", "ratings": "50, 100"})
+    out = run("correction", {**CASE, "bank_type": "p7", "ratings": "50, 100"})
     assert out["ok"], out["field_errors"]
     p, u, f = 0.07, 480.0, 60.0
     u_c = u / (1 - p)  # 516.1 V at the capacitor (circuit theory)
@@ -118,22 +114,22 @@ def test_detuned_bank_type_orders_higher_rated_capacitors_and_a_reactor_per_step
 
 
 def test_study_link_carries_the_bank_and_computes_and_the_recommendation_returns_with_the_bank_type():
-    out = registry.run("correction", {**CASE, "bank": "auto", "n_steps": "4", "pattern": "equal", "ratings": "100"})
+    out = run("correction", {**CASE, "bank": "auto", "n_steps": "4", "pattern": "equal", "ratings": "100"})
     link = next(x for x in out["links"] if x["worksheet"] == "harmonic_study")
     assert link["label"] == "Study harmonics for this bank"
     inp = link["inputs"]
     assert (inp["v_ll"], inp["f"], inp["tx_kva"], inp["tx_z"]) == ("480", "60", "1500", "6")
     assert [r[0] for r in json.loads(inp["steps"])] == ["100"] * 4
-    study = registry.run("harmonic_study", inp)
+    study = run("harmonic_study", inp)
     assert study["ok"], study["field_errors"]
     back = [x for x in study["links"] if x["worksheet"] == "correction"]
     assert {x["inputs"]["bank_type"] for x in back} >= {"p567", "p7"}  # fitting below the 5th (common practice)
     for x in back:
         assert x["inputs"]["p_kw"] == "1000" and x["inputs"]["q_kvar"] == "600"  # the sizing came back whole
-        again = registry.run("correction", x["inputs"])
+        again = run("correction", x["inputs"])
         assert again["ok"] and "reactor" in res(again, "order")["display"]
 
 
 def test_no_study_link_without_a_transformer():
-    out = registry.run("correction", {**CASE, "tx_kva": "", "tx_z": ""})
+    out = run("correction", {**CASE, "tx_kva": "", "tx_z": ""})
     assert out["ok"] and not any(x["worksheet"] == "harmonic_study" for x in out["links"])

@@ -4,7 +4,7 @@
 Independent checks: the power triangle with numpy (circuit theory); the controller's choice
 re-derived by brute force over the step combinations (how step controllers regulate, common
 practice); the back-to-back inrush from the IEEE Std 1036 expression (from memory) written
-out here with numpy; the 71.3 and 38.3 kvar cases of issue 16.
+out here with numpy; two worked cases, 71.3 and 38.3 kvar.
 """
 
 from __future__ import annotations
@@ -15,37 +15,27 @@ import math
 import numpy as np
 import pytest
 
-from app import registry, report
+from app import report
 from app.cautions import RECLOSING, STORED_CHARGE
+from helpers import res, run, titled
 
+SHEET = "correction"
 PF2 = 0.95
-
-
-def run(**inputs):
-    return registry.run("correction", {k: str(v) for k, v in inputs.items()})
-
-
-def res(r, name):
-    return next(x for x in r["results"] if x["name"] == name)
-
-
-def table(r, title):
-    return next(t for t in r["tables"] if t["title"] == title)
 
 
 def need_case(need_kvar, **more):
     """A load of 100 kW whose kvar need to reach 0.95 is need_kvar: Q = need + P·tan(acos 0.95)."""
     q = need_kvar + 100 * math.tan(math.acos(PF2))
-    return run(basis="p_q", p_kw=100, q_kvar=f"{q:.6f}", pf2=PF2, light_p="", tx_kva="", tx_z="", **more)  # default 6-step 1:2:2… pattern
+    return run(SHEET, basis="p_q", p_kw=100, q_kvar=f"{q:.6f}", pf2=PF2, light_p="", tx_kva="", tx_z="", **more)  # default 6-step 1:2:2… pattern
 
 
 @pytest.mark.parametrize("need", [71.3, 38.3])
-def test_issue_cases_get_a_plan_within_15_percent(need):
-    # issue 16: a 71.3 kvar need met with 110 kvar by the default pattern, 38.3 kvar with 55 kvar
+def test_worked_needs_get_a_plan_within_15_percent(need):
+    # worked cases: a 71.3 kvar need met with 110 kvar by the default pattern, 38.3 kvar with 55 kvar
     r = need_case(need)
     assert r["ok"], r
     assert res(r, "q_need")["value"] == pytest.approx(need, rel=1e-6)
-    totals = [float(row[3].split()[0]) for row in table(r, "Step plans")["rows"]]
+    totals = [float(row[3].split()[0]) for row in titled(r, "Step plans")["rows"]]
     assert len(totals) == 3 and all(t >= need - 1e-6 for t in totals)
     assert min(totals) <= 1.15 * need
 
@@ -75,7 +65,7 @@ def test_key_pf_is_what_the_controller_holds_and_never_leads(need):
 
 
 def test_fixed_bank_shows_the_whole_bank_and_no_plans():
-    r = run(bank="fixed")
+    r = run(SHEET, bank="fixed")
     assert r["ok"]
     assert not any(t["title"] == "Step plans" for t in r["tables"])
     assert res(r, "pf_after")["label"] == "Power factor reached at full load"
@@ -83,11 +73,11 @@ def test_fixed_bank_shows_the_whole_bank_and_no_plans():
 
 
 def test_order_list_per_step_and_for_the_bank():
-    r = run()
+    r = run(SHEET)
     assert r["ok"]
-    t = table(r, "What to order")
+    t = titled(r, "What to order")
     assert t["columns"] == ["Section", "Item", "Qty", "Specification"]
-    why = table(r, "Why each part of the order")  # each reason once, with the steps it covers
+    why = titled(r, "Why each part of the order")  # each reason once, with the steps it covers
     assert len({(row[0], row[2]) for row in why["rows"]}) == len(why["rows"])
     assert any(row[0] == "Fuses, gG" and "NEC" in row[2] for row in why["rows"])
     items = {row[1] for row in t["rows"]}
@@ -102,7 +92,7 @@ def test_order_list_per_step_and_for_the_bank():
 def test_back_to_back_inrush_against_the_expression():
     # IEEE Std 1036 (from memory): I_pk = V_LL·√(2/3)·√(C_eq/L_eq); C per phase = Q/(ωV²);
     # each step behind 2 m at 0.5 µH/m (common practice), the others in parallel
-    r = run(run_m=2)
+    r = run(SHEET, run_m=2)
     v, w = 480.0, 2 * math.pi * 60
     steps = [20.0, 40, 40, 40, 40, 40]
     c = [q * 1e3 / (w * v * v) for q in steps]
@@ -110,19 +100,19 @@ def test_back_to_back_inrush_against_the_expression():
     c1, c2 = sum(c[1:]), c[0]
     l_eq = ls + ls / 5
     peak = v * math.sqrt(2 / 3) * math.sqrt(c1 * c2 / (c1 + c2) / l_eq)
-    row = table(r, "Inrush and discharge per step")["rows"][0]
+    row = titled(r, "Inrush and discharge per step")["rows"][0]
     assert float(row[3].split()[0]) == pytest.approx(peak, rel=1e-3)
 
 
 def test_single_phase_has_no_order_list_and_says_so():
-    r = run(phases=1)
+    r = run(SHEET, phases=1)
     assert r["ok"]
     assert not any(t["title"] == "What to order" for t in r["tables"])
     assert any("three-phase banks only" in n for n in r["notes"])
 
 
 def test_bad_contactor_peak_is_refused_at_its_field():
-    r = run(contactor_peak="-5")
+    r = run(SHEET, contactor_peak="-5")
     assert not r["ok"] and "contactor_peak" in r["field_errors"]
 
 
@@ -145,7 +135,7 @@ def test_order_list_in_every_report_and_first_in_the_shared_text():
 
 def test_light_load_key_result_is_what_the_controller_holds():
     # defaults: 90 kW at 0.70 lagging; brute force over the step combinations (common practice)
-    r = run()
+    r = run(SHEET)
     q = 90 * math.tan(math.acos(0.70))
     steps = [20.0, 40, 40, 40, 40, 40]
     kv = _held_by_brute_force(90.0, q, steps)
@@ -158,8 +148,8 @@ def test_light_load_key_result_is_what_the_controller_holds():
 def test_detuned_bank_order_list():
     # a 7 % detuned bank (industry convention) chosen in the bank-type field: its reactors are ordered
     # and its own reactor, not an extra one, limits the inrush
-    r = run(bank_type="p7")
+    r = run(SHEET, bank_type="p7")
     assert r["ok"], r
-    items = [row[1] for row in table(r, "What to order")["rows"]]
+    items = [row[1] for row in titled(r, "What to order")["rows"]]
     assert "Detuning reactor" in items and not any(i.startswith("Inrush-limiting") for i in items)
     assert any("own reactor limits its inrush" in n for n in r["notes"])

@@ -1,4 +1,4 @@
-"""Optional form sections and help behind a button (issue 17), from the worksheets' declarations.
+"""Optional form sections and help behind a button, from the worksheets' declarations.
 
 The browser side (the shell's summary rule against this one, heights on a phone) is in
 tests/browser/test_form_markup.py and tests/browser/test_phone_flow.py."""

@@ -5,7 +5,7 @@ not write as JSON, and outcomes that are no answer at all."""
 import pytest
 
 from app import registry
-from helpers import assert_answered, res, run, table, val
+from helpers import assert_answered, res, run, table, titled, val
 
 
 def test_run_takes_a_dict_and_keywords_together():
@@ -15,6 +15,14 @@ def test_run_takes_a_dict_and_keywords_together():
     assert res(a, "z_mag")["name"] == "z_mag"
     with pytest.raises(KeyError):
         res(a, "no_such_result")
+
+
+def test_titled_finds_a_table_by_its_title():
+    out = run("correction")
+    first = out["tables"][0]
+    assert titled(out, first["title"]) is first
+    with pytest.raises(KeyError):
+        titled(out, "no such table")
 
 
 def test_run_fails_on_an_internal_error_whatever_its_wording(monkeypatch):

@@ -5,27 +5,21 @@ A field is a power-factor field when it carries the shared power-factor quantity
 
 from __future__ import annotations
 
-import json
 
 import pytest
 
-from app import bridge
+from app import registry
 from app import quantities as Q
+from helpers import run
 
 
 def pf_fields():
     out = []
-    for sid, sheet in bridge.sheets().items():
+    for sid, sheet in registry.sheets().items():
         for f in sheet.fields:
             if (f.kind == "number" and f.unit == Q.POWER_FACTOR.unit and f.min == Q.POWER_FACTOR.min
                     and f.max == Q.POWER_FACTOR.max and f.min_open and f.default):
                 out.append((sid, f.name, f.default))
-    return out
-
-
-def run(sheet, inputs):
-    out = json.loads(bridge.compute(sheet, json.dumps(inputs)))
-    out.pop("inputs", None)
     return out
 
 

@@ -10,24 +10,15 @@ P_peak/PF; kvarh charged = max(0, kvarh − kWh·tan(acos PF_threshold)).
 
 from __future__ import annotations
 
-import json
 import math
 
 import pytest
 
-from app import bridge
+from helpers import res, run
 
 ROWS = "\n".join(f"2025-{m:02d}-{d:02d} {h:02d}:00,100,75" for m, d in ((1, 31), (2, 1)) for h in range(24))
 TEXT = "Time,kW,kvar\n" + ROWS
 BASE = {"profile": TEXT, "stamps": "start", "bank": "fixed", "fixed_kvar": "50"}
-
-
-def run(sheet, inputs):
-    return json.loads(bridge.compute(sheet, json.dumps(inputs)))
-
-
-def res(out, name):
-    return next(r for r in out["results"] if r["name"] == name)
 
 
 def test_kvarh_charge_by_hand():

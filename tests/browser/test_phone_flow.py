@@ -1,8 +1,8 @@
-"""The phone-first flow (issue 17), measured at 390 × 844 with the defaults.
+"""The phone-first flow, measured at 390 × 844 with the defaults.
 
 For every worksheet: the page height, the bottom of its lowest essential field (declared on the
 worksheet, ``Worksheet.essential``) and of its headline answer, in CSS px from the top of the page.
-Targets from the issue: the correction worksheet's essential fields and headline answer within
+Targets: the correction worksheet's essential fields and headline answer within
 the first 1,700 px; every worksheet's within four screens (4 × 844 px); every field reachable in at
 most two taps (one to open its section, one on the field). Run as a script
 (``python -m tests.browser.test_phone_flow``) it prints the table.
@@ -63,7 +63,7 @@ def measure_all(page, fallback: dict | None = None) -> dict:
 
 
 FOUR_SCREENS = 4 * SCREEN
-CORRECTION_LIMIT = 1700  # CSS px: the issue's target for the correction worksheet
+CORRECTION_LIMIT = 1700  # CSS px: the project's target for the correction worksheet
 
 
 def test_essential_fields_and_answer_within_reach_on_a_phone(phone):

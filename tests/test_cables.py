@@ -1,10 +1,11 @@
-"""pycore.cables and pycore.protection: the tables as entered (source beside each row), lookups at
-each table edge, and fuse/breaker/contactor choices worked by hand."""
+"""pycore.cables: the tables as entered (source beside each row), lookups at each table edge,
+parallel runs and derating."""
 
 import pytest
 
-from pycore import cables, protection
+from pycore import cables
 from pycore.errors import InputError
+
 
 # NEC Table 310.16, copper, 75 °C column (from memory): size → ampacity [A]
 NEC_75_CU = [("14 AWG", 20), ("12 AWG", 25), ("10 AWG", 35), ("8 AWG", 50), ("6 AWG", 65), ("4 AWG", 85),
@@ -16,10 +17,6 @@ NEC_75_CU = [("14 AWG", 20), ("12 AWG", 25), ("10 AWG", 35), ("8 AWG", 50), ("6 
 IEC_C_PVC = [("1.5 mm²", 17.5), ("2.5 mm²", 24), ("4 mm²", 32), ("6 mm²", 41), ("10 mm²", 57), ("16 mm²", 76),
              ("25 mm²", 96), ("35 mm²", 119), ("50 mm²", 144), ("70 mm²", 184), ("95 mm²", 223), ("120 mm²", 259),
              ("150 mm²", 299), ("185 mm²", 341), ("240 mm²", 403), ("300 mm²", 464)]
-# IEC 60269-1 preferred fuse-link ratings (from memory); NEC 240.6(A) standard ratings (from memory)
-IEC_FUSES = [2, 4, 6, 10, 16, 20, 25, 32, 40, 50, 63, 80, 100, 125, 160, 200, 250, 315, 400, 500, 630, 800, 1000, 1250]
-NEC_RATINGS = [15, 20, 25, 30, 35, 40, 45, 50, 60, 70, 80, 90, 100, 110, 125, 150, 175, 200, 225, 250, 300, 350, 400,
-               450, 500, 600, 700, 800, 1000, 1200, 1600, 2000, 2500, 3000, 4000, 5000, 6000]
 
 
 def test_tables_as_entered_with_their_sources():
@@ -27,8 +24,6 @@ def test_tables_as_entered_with_their_sources():
     assert all("310.16" in r.source and "from memory" in r.source for r in cables.NEC_CU_75.rows)
     assert [(r.size, r.ampacity_a) for r in cables.IEC_C_PVC.rows] == IEC_C_PVC
     assert all("60364-5-52" in r.source and "method C" in r.source for r in cables.IEC_C_PVC.rows)
-    assert list(protection.IEC_FUSE_RATINGS) == IEC_FUSES
-    assert list(protection.NEC_STANDARD_RATINGS) == NEC_RATINGS
     assert cables.NEC_CU_75.assumptions and cables.IEC_C_PVC.assumptions
 
 
@@ -70,26 +65,3 @@ def test_derating_and_own_table():
     for bad in ([("A", 10), ("B", 10)], [("A", 10), ("A", 20)], [("A", -1)], [], [("", 5)]):
         with pytest.raises(InputError):
             cables.check_rows(bad)
-
-
-def test_fuse_ranges_by_hand():
-    # gG 1.43–1.65 × I_N (common practice): 100 A → 143–165 A; IEC 160 A; NEC 150 A
-    f = protection.fuse(100.0, "iec")
-    assert (f.lo_a, f.hi_a, f.rating_a, f.in_range) == (pytest.approx(143), pytest.approx(165), 160, True)
-    assert protection.fuse(100.0, "nec").rating_a == 150
-    # 30 A → 42.9–49.5 A: no IEC rating inside, the next up is 50 A and it is flagged
-    g = protection.fuse(30.0, "iec")
-    assert g.rating_a == 50 and not g.in_range and "50 A" in g.note
-    # beyond the series
-    assert protection.fuse(1000.0, "iec").rating_a is None
-    assert all(protection.CONFIRM in d.note for d in (f, g, protection.breaker(100.0)))
-
-
-def test_breaker_and_contactor():
-    b = protection.breaker(100.0)
-    assert (b.lo_a, b.hi_a, b.rating_a, b.magnetic_min_a) == (pytest.approx(135), pytest.approx(165), 150, pytest.approx(1000))
-    assert protection.contactor(50, True, 900, 5000).duty == protection.STANDARD_DUTY
-    c = protection.contactor(50, False, 9000, 5000)
-    assert c.duty == protection.CAPACITOR_DUTY and c.min_current_a == pytest.approx(67.5)  # 1.35 × 50 (NEC 460.8)
-    assert protection.contactor(50, False, 4000, 5000).duty == protection.STANDARD_DUTY
-    assert protection.contactor(50, False, 4000, 5000, "iec").min_current_a == pytest.approx(71.5)  # 1.43 × 50

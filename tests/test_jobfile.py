@@ -1,4 +1,4 @@
-"""Jobs export files: round trip, and rejection of corrupt, truncated, foreign, future and bad files.
+"""The jobs file format (app/jobfile.py): round trip, and rejection of corrupt, truncated, foreign, future and bad files.
 
 The file format is the project's own; the outside references here are
 the JSON grammar (RFC 8259: what a parser must accept or refuse), Python's own json module
@@ -16,9 +16,9 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import app.bridge as bridge
-from app import demo, registry
 from app import jobfile as jobs
-from helpers import run
+from helpers import bridge_demo
+
 
 STAMP = "2025-03-14T09:26:53.589Z"  # the shape toISOString() gives (ECMA-262, from memory)
 
@@ -66,10 +66,6 @@ def _reject(text):
     return msg
 
 
-# ---------------------------------------------------------------------------------------
-# round trip
-
-
 def test_round_trip_reproduces_every_job_exactly():
     originals = [
         _job(1),
@@ -91,10 +87,6 @@ def test_round_trip_reproduces_every_job_exactly():
     assert jobs.make_export(got, "0.1.0", STAMP).encode("utf-8") == text.encode("utf-8")
 
 
-def bridge_demo():
-    return json.loads(bridge.demo_job())
-
-
 def test_boundary_counts_accepted():
     job = _job(1, n_entries=jobs.MAX_ENTRIES)
     got, msg = jobs.validate_export(_file([job]))
@@ -102,8 +94,14 @@ def test_boundary_counts_accepted():
 
 
 _chars = st.characters(blacklist_categories=("Cs",))  # any character but lone surrogates
+
+
 _ids = st.from_regex(r"[A-Za-z0-9][A-Za-z0-9._:-]{0,30}", fullmatch=True)
+
+
 _dates = st.dates(min_value=datetime.date(1, 1, 1)).map(lambda d: d.isoformat())
+
+
 _stamps = st.datetimes(min_value=datetime.datetime(1000, 1, 1)).map(
     lambda t: t.strftime("%Y-%m-%dT%H:%M:%S.") + f"{t.microsecond // 1000:03d}Z"
 )
@@ -161,10 +159,6 @@ def test_bridge_validate_never_raises():
         assert res["ok"] is False and res["error"]
     assert json.loads(bridge.export_jobs("not json"))["ok"] is False
     assert json.loads(bridge.validate_jobs(None))["ok"] is False
-
-
-# ---------------------------------------------------------------------------------------
-# rejected files
 
 
 def test_truncated_file_rejected_at_every_cut():
@@ -292,51 +286,3 @@ def test_duplicate_key_rejected():
 def test_bom_and_trailing_space_accepted():
     got, msg = jobs.validate_export("\ufeff" + _file([_job(1)]) + "\n\n")
     assert msg is None and got == [_job(1)]
-
-
-# ---------------------------------------------------------------------------------------
-# demo job
-
-
-def test_demo_job_is_valid_and_uses_several_worksheets():
-    job = bridge_demo()
-    assert jobs.check_job(job) is None
-    n_sheets = len(bridge.sheets())
-    assert 3 <= len(job["entries"]) <= 5
-    used = {e["worksheet"] for e in job["entries"]}
-    assert len(used) >= min(3, n_sheets)
-    assert len({e["id"] for e in job["entries"]}) == len(job["entries"])
-    for e in job["entries"]:
-        res = run(e["worksheet"], e["inputs"])
-        assert res["ok"], (e["name"], res.get("field_errors"), res.get("error"))
-        assert res["results"]
-
-
-def test_demo_job_with_only_one_worksheet_present():
-    # a build holding only the impedance worksheet: the demo fills up with its three planned entries
-    only = {"impedance": registry.sheets()["impedance"]}
-    job = demo.demo_job(known=only)
-    assert len(job["entries"]) == 3
-    assert {e["worksheet"] for e in job["entries"]} == {"impedance"}
-    assert jobs.check_job(job, known=only) is None
-    # ... and a file holding it is refused by a build that lacks that worksheet
-    assert "not in this version" in jobs.check_job(job, known={"survey": registry.sheets()["survey"]})
-
-
-def test_demo_job_skips_missing_worksheets():
-    # a build with none of the worksheets the plan names still gives a valid, empty job
-    job = demo.demo_job(known={})
-    assert job["entries"] == [] and jobs.check_job(job, known={}) is None
-
-
-def test_demo_entries_use_the_invented_plant_not_fallbacks():
-    """Each demo entry carries its planned inputs (fields the worksheet has), so the demo's
-    numbers agree with its notes: if a worksheet changes so the plan no longer computes,
-    the demo would silently fall back to that worksheet's defaults; this catches it."""
-    job = bridge_demo()
-    plan = {(ws, name): ov for ws, name, ov in demo.DEMO_PLAN}
-    for e in job["entries"]:
-        fields = {f.name for f in bridge.sheets()[e["worksheet"]].fields}
-        wanted = {k: v for k, v in plan[(e["worksheet"], e["name"])].items() if k in fields}
-        assert {k: e["inputs"][k] for k in wanted} == wanted, e["name"]
-    assert "invented" in job["site"].lower() and "DEMO DATA" in job["notes"]

@@ -1,5 +1,5 @@
-"""Checks of the detuned-bank and capacitor-duty worksheets: defaults, results
-against first principles, links between them, and bad input (a message at the field, no crash)."""
+"""Checks of the detuned-bank worksheet: defaults, results against first principles, its link to
+the capacitor duty worksheet, and bad input (a message at the field, no crash)."""
 
 import json
 import math
@@ -10,9 +10,7 @@ from hypothesis import strategies as st
 
 import app.bridge as bridge
 from helpers import assert_answered, res, run, table
-
-
-# ------------------------------------------------------------------ detuned
+from typed_fixtures import HARMONIC_TEXT
 
 
 def test_detuned_catalog_entry():
@@ -22,8 +20,6 @@ def test_detuned_catalog_entry():
     assert p["suggest"] == ["5.67", "7", "14"]  # common practice
     assert p["unit"] == "%"
     assert len(d["cautions"]) == 3
-    assert "cap_duty" in cat
-    assert any(f["kind"] == "table" for f in cat["cap_duty"]["fields"])
 
 
 def test_detuned_defaults_first_principles():
@@ -146,112 +142,16 @@ def test_detuned_link_opens_cap_duty_consistently():
     assert res(d, "kvar")["value"] == pytest.approx(100 * (50 / 0.93) / (50 * 0.93 * 1.2**2), rel=1e-3)
 
 
-# ------------------------------------------------------------------ capacitor duty
-
-
-def test_cap_duty_defaults():
-    r = run("cap_duty")
-    assert r["ok"], r
-    names = {x["name"] for x in r["results"]}
-    assert {"v_rms", "v_peak", "i_rms", "kvar", "verdict", "thd"} <= names
-    assert len(r["figures"]) == 2
-    # independent: bus 400 V on a 440 V plain bank, spectrum 5/7/11/13 at 4.5/3.2/1.8/1.2 %
-    v = [400 / 440 * x for x in (1, 0.045, 0.032, 0.018, 0.012)]
-    h = [1, 5, 7, 11, 13]
-    assert res(r, "v_rms")["value"] == pytest.approx(100 * math.sqrt(sum(x * x for x in v)), rel=1e-9)
-    assert res(r, "v_peak")["value"] == pytest.approx(100 * sum(v), rel=1e-9)
-    assert res(r, "i_rms")["value"] == pytest.approx(100 * math.sqrt(sum((a * b) ** 2 for a, b in zip(h, v))), rel=1e-9)
-    # IEEE 519-2014 Table 1 ≤ 1 kV: THD limit 8 %
-    assert "8 %" in res(r, "thd")["display"]
-
-
-def test_cap_duty_fail_and_status():
-    # 480 V on a 415 V capacitor: 115.7 % rms voltage > 110 % (IEEE Std 18-2002)
-    r = run("cap_duty", u_rated="415", u_bus="480", spectrum=table((5, 2)))
-    assert r["ok"]
-    assert res(r, "v_rms")["status"] == "fail"
-    assert res(r, "verdict")["status"] == "fail"
-    assert r["warnings"]
-
-
-def test_cap_duty_current_spectrum_and_ieee519_mv():
-    r = run("cap_duty", kind="current", u_rated="13.8 kV", u_bus="13.8 kV", q_rated="1.2 Mvar",
-            spectrum=table((5, 40), (7, 20)))
-    assert r["ok"], r
-    # IEEE 519-2014 Table 1, 1–69 kV: THD 5 % (source), individual 3 % (from memory)
-    assert "limit 5 %" in res(r, "thd")["display"]
-    assert "limit 3 %" in res(r, "worst")["display"]
-    assert res(r, "thd")["value"] == pytest.approx(math.hypot(40 / 5, 20 / 7), rel=1e-9)
-    assert res(r, "i_rms")["value"] == pytest.approx(100 * math.sqrt(1 + 0.4**2 + 0.2**2), rel=1e-9)
-
-
-@pytest.mark.parametrize("rows, words", [
-    ([(1, 3)], "below 2"),
-    ([(0, 3)], "below 2"),
-    ([(51, 1)], "above 50"),
-    ([(5.5, 1)], "whole number"),
-    ([(5, 120)], "at most 100"),
-    ([(5, -3)], "negative"),
-    ([(-5, 3)], "below 2"),
-    ([(5, 3), (5, 2)], "twice"),
-    ([("five", 3)], "number"),
-    ([(5, "")], "enter level"),
-    ([], "at least one"),
-    ([("", "")], "at least one"),
-])
-def test_cap_duty_bad_spectrum_at_field(rows, words):
-    r = run("cap_duty", spectrum=table(*rows))
-    assert r["ok"] is False
-    assert "spectrum" in r["field_errors"], r
-    assert words.lower() in r["field_errors"]["spectrum"].lower()
-
-
-@pytest.mark.parametrize("text", ["", "not json", "{}", "[1, 2]", '[["5"]]', "null"])
-def test_cap_duty_unreadable_table(text):
-    r = run("cap_duty", spectrum=text)
-    assert r["ok"] is False and "spectrum" in r["field_errors"]
-
-
-@pytest.mark.parametrize("field, value, words", [
-    ("p", "100", "below 100"),
-    ("p", "-1", "at least 0"),
-    ("u_rated", "0", "at least 50"),
-    ("q_rated", "-5", "above 0"),
-    ("u_bus", "", "enter"),
-    ("f_sys", "5", "at least 16.7"),
-])
-def test_cap_duty_bad_fields(field, value, words):
-    r = run("cap_duty", **{field: value})
-    assert r["ok"] is False
-    assert words.lower() in r["field_errors"][field].lower()
-
-
-def test_cap_duty_harmonic_at_tuning_order():
-    r = run("cap_duty", p="4", spectrum=table((5, 3)))  # p = 4 % → n = 5 exactly
-    assert not r["ok"] and "tuning order" in r["field_errors"]["spectrum"]
-
-
-def test_cap_duty_below_tuning_warning():
-    r = run("cap_duty", p="7", u_rated="480", spectrum=table((3, 2), (5, 4)))
-    assert r["ok"]
-    assert any("below the tuning order" in w for w in r["warnings"])
-
-
-_TEXTS = st.one_of(
-    st.sampled_from(["", "0", "-1", "1e400", "nan", "inf", "5,67", "7 %", "0.2 Mvar", "abc", "∞", "1/0", "[]", "50 Hz"]),
-    st.text(max_size=12),
-)
-
-
 @settings(max_examples=120, deadline=None)
-@given(sheet=st.sampled_from(["detuned", "cap_duty"]), data=st.data())
-def test_never_crashes(sheet, data):
+@given(data=st.data())
+def test_detuned_never_crashes(data):
+    sheet = "detuned"
     fields = [f["name"] for s in json.loads(bridge.catalog()) if s["id"] == sheet for f in s["fields"]]
     inputs = {}
     for name in data.draw(st.lists(st.sampled_from(fields), max_size=4, unique=True)):
         if name == "spectrum":
             inputs[name] = data.draw(st.one_of(
-                _TEXTS, st.lists(st.lists(_TEXTS, max_size=3), max_size=4).map(json.dumps)))
+                HARMONIC_TEXT, st.lists(st.lists(HARMONIC_TEXT, max_size=3), max_size=4).map(json.dumps)))
         else:
-            inputs[name] = data.draw(_TEXTS)
+            inputs[name] = data.draw(HARMONIC_TEXT)
     assert_answered(run(sheet, inputs))
