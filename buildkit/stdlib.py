@@ -8,7 +8,7 @@ any import anywhere in a file) and from :data:`ALWAYS` (what the interpreter and
 without a visible import statement), then follows the imports each standard-library module makes
 when it is imported (module level, including ``try``/``if`` blocks and class bodies; not function
 bodies, which run only when called: the browser tests run every worksheet and report from this
-archive, and tests/test_stdlib_trim.py runs them in Pyodide under Node.js, to catch any such
+archive, and tests/test_stdlib.py runs them in Pyodide under Node.js, to catch any such
 import actually used). Parsed with this Python's ``ast``; the few 3.14 files it cannot parse are
 read line by line. :func:`write_trimmed` writes the chosen files, byte for byte and in the
 original order, into a new zip with fixed timestamps (reproducible).

@@ -34,7 +34,8 @@ def test_sections_without_an_essential_field_are_collapsed_disclosures():
     tree = formview.form_tree(sheet)
     groups = [n for n in tree if n[0] == "fieldset"]
     optional = {n[1]["data-section"]: n for n in groups if "data-section" in n[1]}
-    assert set(optional) == {"cap_v", "light_p", "tx_kva"}  # Capacitor, Lightest load, Supply
+    # Metering point, Capacitor, Lightest load, Supply, Switching and cables
+    assert set(optional) == {"metering", "cap_v", "light_p", "tx_kva", "run_m"}
     for key, node in optional.items():
         button = next(n for n in _walk(node) if n[0] == "button")
         region = next(n for n in node[2:] if n[0] == "div")

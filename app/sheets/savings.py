@@ -73,7 +73,7 @@ FIELDS = [
     Field("energy_price", "Energy price per kWh", default="0.14", min=0,
           help="In your currency. Prices the reduced losses and the bank's own losses."),
     # the bank's own losses (demo figures: the invented plant's bank of about 200 kvar)
-    Field("bank_kvar", "kvar of capacitors switched in, typically", unit="kvar", default="200", required=False,
+    Field("bank_kvar", "Capacitors switched in, typically", unit="kvar", default="200", required=False,
           min=0, max=1e6, group="The bank's own losses",
           help="The kvar the bank has in service at the typical load. Blank: the bank's own losses are not counted."),
     Field("bank_detuned", "Of which in detuned steps (with reactors)", unit="kvar", default="0", required=False,

@@ -164,6 +164,19 @@ def open_sheet(page, sheet_id: str):
     wait_result(page)
 
 
+def reveal(page, name: str) -> None:
+    """Open, as a user would with one tap, the collapsed optional section holding field ``name``."""
+    toggle = page.locator(f"fieldset.opt:has([data-field='{name}']) [data-toggle-section][aria-expanded='false']")
+    if toggle.count():
+        toggle.first.click()
+
+
+def fill(page, name: str, text: str) -> None:
+    """Type ``text`` into field ``name``, opening its section first when it is collapsed."""
+    reveal(page, name)
+    page.fill(f"#in-{name}", text)
+
+
 def cpython_compute(sheet_id: str, inputs: dict) -> dict:
     """The same worksheet computed in CPython (the reference for what Pyodide showed)."""
     return run(sheet_id, inputs)

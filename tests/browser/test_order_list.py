@@ -76,14 +76,9 @@ def test_bank_health_verdicts_on_phone_and_tablet(phone, tablet):
         region = "[role=region][aria-label='Each phase']"
         inner, past_screen = _overflow(page, region)
         assert inner <= 1 and past_screen <= 1
-        for first, last, what in (("[data-result='bank_state']", "[data-result='verdict_3']", "verdicts"),
-                                  (region, region, "phases")):
-            box = page.evaluate(f"""() => {{
-                const a = document.querySelector("{first}").getBoundingClientRect();
-                const b = document.querySelector("{last}").getBoundingClientRect();
-                return {{x: Math.min(a.x, b.x) + scrollX, y: a.y + scrollY, width: Math.max(a.width, b.width),
-                        height: b.bottom - a.top}}; }}""")
-            page.screenshot(path=_path(f"order-bank-health-{what}-{name}"), full_page=True, clip=box)
+        for sel, what in (("[data-result='bank_state']", "bank-state"), ("[data-result='verdict_3']", "verdict-3"),
+                          (region, "phases")):
+            page.locator(sel).first.screenshot(path=_path(f"order-bank-health-{what}-{name}"))
         shot(page, f"order-bank-health-{name}")
 
 
