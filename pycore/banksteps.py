@@ -16,6 +16,7 @@ Algorithms, dynamic programming).
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 from fractions import Fraction
@@ -33,6 +34,13 @@ MANY_UNITS_PER_STEP = 6  # more units than this in one step draws a warning (com
 
 def _grid(ratings: list[float]) -> tuple[Fraction, list[int]]:
     """The common measure g [kvar] of the ratings and each rating as a whole multiple of g."""
+    g, ints = _grid_of(tuple(ratings))
+    return g, list(ints)
+
+
+@functools.lru_cache(maxsize=64)
+def _grid_of(ratings: tuple) -> tuple[Fraction, tuple]:
+    # the same few rating lists come back for every plan tried (pure: cached by value)
     fr = [Fraction(r).limit_denominator(1000) for r in ratings]
     den = 1
     for f in fr:
@@ -43,7 +51,7 @@ def _grid(ratings: list[float]) -> tuple[Fraction, list[int]]:
         g = math.gcd(g, n)
     if g == 0:
         raise InputError("Unit ratings must be above zero.")
-    return Fraction(g, den), [n // g for n in ints]
+    return Fraction(g, den), tuple(n // g for n in ints)
 
 
 def _clean_ratings(ratings) -> list[float]:

@@ -37,6 +37,9 @@ def _has_nan(value, depth: int = 0) -> bool:
     return False
 
 
+_depth = [0]  # guarded calls in progress (pycore runs on one thread, in CPython and in Pyodide)
+
+
 def guarded(fn):
     """Decorator for public core functions: the contract is a value without NaN or an
     :class:`InputError`. Arithmetic that overflows or divides by zero on extreme finite
@@ -45,13 +48,18 @@ def guarded(fn):
 
     @functools.wraps(fn)
     def wrapper(*args, **kwargs):
+        _depth[0] += 1
         try:
             out = fn(*args, **kwargs)
         except InputError:
             raise
         except (ArithmeticError, ValueError):
             raise InputError(OUT_OF_RANGE) from None
-        if _has_nan(out):
+        finally:
+            _depth[0] -= 1
+        # the outermost guarded call scans what it returns; a NaN made inside reaches it or is dropped,
+        # so scanning every nested result too (a large share of a compute) would check nothing more
+        if _depth[0] == 0 and _has_nan(out):
             raise InputError(OUT_OF_RANGE)
         return out
 

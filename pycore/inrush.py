@@ -201,6 +201,10 @@ def bank_inrush(steps: list, v_ll: float, l_source_h: float, contactor_limit_a=N
     return out
 
 
+# relative width [1] at which the reactor search stops (the answer is shown to 3 figures)
+BISECTION_RTOL = 1e-6
+
+
 @guarded
 def limiting_inductance_h(steps: list, v_ll: float, l_source_h: float, peak_limit_a: float | None = None) -> float:
     """Inductance [H per phase] to add in series with every step so that no step's inrush
@@ -222,7 +226,7 @@ def limiting_inductance_h(steps: list, v_ll: float, l_source_h: float, peak_limi
         lo, hi = hi, hi * 2.0
         if hi > 10.0:
             raise InputError("No practical reactor limits this inrush: check the step sizes and the limit.")
-    for _ in range(60):
+    while hi - lo > BISECTION_RTOL * hi:  # about 20 halvings: far finer than a reactor is wound
         mid = 0.5 * (lo + hi)
         if excess(mid) > 1.0:
             lo = mid
