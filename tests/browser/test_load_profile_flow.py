@@ -122,9 +122,10 @@ def test_tablet_screenshot(browser, site, tmp_path):
 
 
 def test_a_long_compute_shows_working_and_the_page_responds(browser, site, tmp_path):
-    # a year of 15-minute data (35,040 rows, invented) takes the engine longer than 300 ms
-    path = tmp_path / "year-15min.csv"
-    path.write_text(demo_text(days=365, interval_min=15), encoding="utf-8")
+    # two years of 5-minute data (210,240 rows, invented) keep the engine busy well past the 300 ms after
+    # which the shell says "Working…" (a 15-minute year can finish in about 400 ms, too close to test on)
+    path = tmp_path / "two-years-5min.csv"
+    path.write_text(demo_text(days=730, interval_min=5), encoding="utf-8")
     with guarded_page(browser, site, viewport=PHONE, is_mobile=True, has_touch=True) as page:
         page.goto(site + "#/sheet/load_profile")
         wait_ready(page)
@@ -144,4 +145,4 @@ def test_a_long_compute_shows_working_and_the_page_responds(browser, site, tmp_p
         assert page.locator("#results > .working").count() == 1  # still working after the tap
         settle(page, timeout=60_000)
         assert page.locator("#results > .working").count() == 0
-        assert page.inner_text("[data-result='rows'] .r-value").startswith("35,040")
+        assert page.inner_text("[data-result='rows'] .r-value").startswith("210,240")
