@@ -367,10 +367,16 @@ def combinations(steps) -> list[Combination]:
     """Every distinct total [kvar] reachable by switching subsets of ``steps`` [kvar]
     (at most 12 steps), with the fewest steps for each total (then the lowest-numbered),
     smallest total first; the all-off position (0 kvar) is not listed."""
-    st = [float(x) for x in steps]
-    n = len(st)
-    if n > MAX_STEPS:
+    st = tuple(float(x) for x in steps)
+    if len(st) > MAX_STEPS:
         raise InputError(f"At most {MAX_STEPS} steps.")
+    return list(_combinations_of(st))
+
+
+@functools.lru_cache(maxsize=128)
+def _combinations_of(st: tuple) -> tuple:
+    # a worksheet asks for the same step list several times per answer (plans, full and light load): cached by value
+    n = len(st)
     totals = [0.0] * (1 << n)
     best: dict[float, tuple] = {}
     for mask in range(1, 1 << n):
@@ -384,7 +390,7 @@ def combinations(steps) -> list[Combination]:
         on = tuple(i + 1 for i in range(n) if mask >> i & 1)
         if old is None or pc < old[0] or on < old[1]:
             best[key] = (pc, on, totals[mask])
-    return [Combination(on, tot) for _, (_, on, tot) in sorted(best.items())]
+    return tuple(Combination(on, tot) for _, (_, on, tot) in sorted(best.items()))
 
 
 @dataclass(frozen=True)
