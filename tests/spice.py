@@ -35,27 +35,15 @@ def ac_node_voltages(body: str, freqs: list[float], nodes: list[str]) -> dict[st
     return out
 
 
-def _run_ac(body: str, analysis: str, nodes: list[str], timeout: float) -> tuple[list[float], dict[str, list[complex]]]:
-    """Run one ngspice deck (``body`` + the ``.ac`` line ``analysis``) in batch mode and read back
-    (frequencies [Hz], {node: [V(node)…]}) from its ``wrdata`` output."""
+def _run_deck(head: str, vectors: str, timeout: float) -> list[list[str]]:
+    """Run a deck (``head``: title, netlist and analysis line) in batch mode, writing ``vectors``
+    with ``wrdata``; the output's lines split into fields (the first holds the vector names)."""
     if NGSPICE is None:
         pytest.skip("ngspice not installed")
     with tempfile.TemporaryDirectory() as tmp:
         data = os.path.join(tmp, "out.txt")
-        vecs = " ".join(f"v({n})" for n in nodes)
-        deck = (
-            "* fieldphasor reference deck\n"
-            f"{body.strip()}\n"
-            f"{analysis}\n"
-            ".control\n"
-            "set wr_singlescale\n"
-            "set wr_vecnames\n"
-            "option numdgt=12\n"
-            "run\n"
-            f"wrdata {data} {vecs}\n"
-            ".endc\n"
-            ".end\n"
-        )
+        deck = (f"{head}.control\nset wr_singlescale\nset wr_vecnames\noption numdgt=12\nrun\n"
+                f"wrdata {data} {vectors}\n.endc\n.end\n")
         path = os.path.join(tmp, "deck.cir")
         with open(path, "w") as fh:
             fh.write(deck)
@@ -63,7 +51,14 @@ def _run_ac(body: str, analysis: str, nodes: list[str], timeout: float) -> tuple
         if not os.path.exists(data):
             raise RuntimeError(f"ngspice failed:\n{proc.stdout}\n{proc.stderr}")
         with open(data) as fh:
-            lines = [ln.split() for ln in fh if ln.strip()]
+            return [ln.split() for ln in fh if ln.strip()]
+
+
+def _run_ac(body: str, analysis: str, nodes: list[str], timeout: float) -> tuple[list[float], dict[str, list[complex]]]:
+    """Run one ngspice deck (``body`` + the ``.ac`` line ``analysis``) in batch mode and read back
+    (frequencies [Hz], {node: [V(node)…]}) from its ``wrdata`` output."""
+    vecs = " ".join(f"v({n})" for n in nodes)
+    lines = _run_deck(f"* fieldphasor reference deck\n{body.strip()}\n{analysis}\n", vecs, timeout)
     freqs: list[float] = []
     out: dict[str, list[complex]] = {n: [] for n in nodes}
     for ln in lines[1:]:  # first line: vector names; with wr_singlescale: frequency, then re, im per vector
@@ -105,32 +100,9 @@ def transient(body: str, t_step: float, t_stop: float, vectors: list[str], t_max
     most ``t_max`` [s] (default ``t_step``), starting from the initial conditions given (``uic``).
     ``vectors`` are ngspice expressions such as ``v(n1)`` or ``i(vmeas)``; returns
     (times [s], {vector: [values…]})."""
-    if NGSPICE is None:
-        pytest.skip("ngspice not installed")
     t_max = t_step if t_max is None else t_max
-    with tempfile.TemporaryDirectory() as tmp:
-        data = os.path.join(tmp, "out.txt")
-        deck = (
-            "* fieldphasor transient reference deck\n"
-            f"{body.strip()}\n"
-            f".tran {t_step!r} {t_stop!r} 0 {t_max!r} uic\n"
-            ".control\n"
-            "set wr_singlescale\n"
-            "set wr_vecnames\n"
-            "option numdgt=12\n"
-            "run\n"
-            f"wrdata {data} {' '.join(vectors)}\n"
-            ".endc\n"
-            ".end\n"
-        )
-        path = os.path.join(tmp, "deck.cir")
-        with open(path, "w") as fh:
-            fh.write(deck)
-        proc = subprocess.run([NGSPICE, "-b", path], capture_output=True, text=True, timeout=timeout)
-        if not os.path.exists(data):
-            raise RuntimeError(f"ngspice failed:\n{proc.stdout}\n{proc.stderr}")
-        with open(data) as fh:
-            lines = [ln.split() for ln in fh if ln.strip()]
+    lines = _run_deck(f"* fieldphasor transient reference deck\n{body.strip()}\n"
+                      f".tran {t_step!r} {t_stop!r} 0 {t_max!r} uic\n", " ".join(vectors), timeout)
     times: list[float] = []
     out: dict[str, list[float]] = {v: [] for v in vectors}
     for ln in lines[1:]:  # first line: vector names; then time and one real column per vector
