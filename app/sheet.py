@@ -131,10 +131,10 @@ class Worksheet:
             raise ValueError(f"worksheet {self.id}: essential names no field: {unknown}")
 
     def field(self, name: str) -> Field:
-        for f in self.fields:
-            if f.name == name:
-                return f
-        raise KeyError(name)
+        by_name = self.__dict__.get("_by_name")
+        if by_name is None or len(by_name) != len(self.fields):  # built once; a compute asks hundreds of times
+            by_name = self.__dict__["_by_name"] = {f.name: f for f in self.fields}
+        return by_name[name]
 
     def declaration(self) -> dict:
         return {

@@ -123,7 +123,12 @@ class Selection:
         return sorted(out.items(), key=lambda t: -t[0])
 
 
-def _least_sums_by_residue(ints: list[int]) -> tuple[list[float], list[int]]:
+def _least_sums_by_residue(ints) -> tuple[list[float], list[int]]:
+    return _least_sums_of(tuple(ints))
+
+
+@functools.lru_cache(maxsize=32)
+def _least_sums_of(ints: tuple) -> tuple[list[float], list[int]]:
     """For each residue r modulo the smallest unit k0 (grid steps): the least sum of units
     ≡ r (mod k0), and the unit that last reached it (-1 for none). Every larger sum in the
     same class is reachable by adding k0-units, so the least sum ≥ any target follows exactly.
@@ -186,6 +191,19 @@ def select_units(need_kvar: float, ratings, max_states: int = MAX_STATES) -> Sel
         return Selection((), 0.0)
     _check_count(need_kvar, vals)
     g, ints = _grid(vals)
+    total, idx = _select_on_grid(need_kvar, vals, g, ints, max_states)
+    units = tuple(sorted((vals[i] for i in idx), reverse=True))
+    return Selection(units, _kvar(total, g))
+
+
+def _kvar(n: int, g: Fraction) -> float:
+    # n grid steps of g kvar as a float: int/int true division rounds correctly, as float(Fraction) does
+    return n * g.numerator / g.denominator
+
+
+def _select_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[int], max_states: int) -> tuple[int, list[int]]:
+    """select_units on a grid already worked out: (the least sum ≥ need, in grid steps; the unit
+    indices, fewest units for that sum)."""
     # at least one grid step: a need far below the common measure still needs a unit
     target = max(1, math.ceil(Fraction(need_kvar).limit_denominator(10**9) / g - Fraction(1, 10**9)))
     kmax = max(ints)
@@ -201,8 +219,7 @@ def select_units(need_kvar: float, ratings, max_states: int = MAX_STATES) -> Sel
     fewest = _fewest_exact(total, ints, count, last, top, kmax)
     if fewest is not None and len(fewest) <= len(idx):
         idx = fewest
-    units = tuple(sorted((vals[i] for i in idx), reverse=True))
-    return Selection(units, float(sum(Fraction(ints[i]) * g for i in idx)))
+    return total, idx
 
 
 @guarded
@@ -291,32 +308,74 @@ def plan_steps(need_kvar: float, ratings, weights, max_states: int = MAX_STATES)
     the fewest units. The base b is the smallest reachable unit sum with b·Σw ≥ need; step i
     is w_i·b made from the fewest units."""
     vals = _clean_ratings(ratings)
+    w = _weights(weights)
+    if not math.isfinite(need_kvar) or need_kvar <= 0:
+        raise InputError("The kvar needed must be above zero.")
+    _check_count(need_kvar, vals)
+    g, ints = _grid(vals)
+    return _plan_on_grid(need_kvar, vals, g, ints, w, max_states, {})
+
+
+@guarded
+def plan_steps_many(need_kvar: float, ratings, weight_lists, max_states: int = MAX_STATES) -> list:
+    """:func:`plan_steps` for each of ``weight_lists`` (need_kvar [kvar], ratings [kvar]) in one
+    pass: the ratings are checked and put on their grid once, and a base shared by two patterns
+    of the same Σw is found once. Returns a list of :class:`StepPlan`, None where plan_steps
+    would raise (unusable weights or too many units); an empty list when the ratings or the need
+    cannot be used at all."""
+    try:
+        vals = _clean_ratings(ratings)
+        if not math.isfinite(need_kvar) or need_kvar <= 0:
+            return []
+        _check_count(need_kvar, vals)
+        g, ints = _grid(vals)
+    except InputError:
+        return []
+    bases: dict = {}
+    out = []
+    for weights in weight_lists:
+        try:
+            out.append(_plan_on_grid(need_kvar, vals, g, ints, _weights(weights), max_states, bases))
+        except (ArithmeticError, ValueError):  # InputError included: as plan_steps would raise it
+            out.append(None)
+    return out
+
+
+def _weights(weights) -> list[int]:
     w = [int(x) for x in weights]
     if not w or any(x < 1 for x in w):
         raise InputError("Step weights must be whole numbers from 1.")
-    if not math.isfinite(need_kvar) or need_kvar <= 0:
-        raise InputError("The kvar needed must be above zero.")
+    return w
+
+
+def _plan_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[int], w: list[int], max_states: int,
+                  bases: dict) -> StepPlan:
+    """plan_steps on a grid already worked out; ``bases`` keeps each Σw's base selection."""
     wsum = sum(w)
-    _check_count(need_kvar, vals)
-    g, ints = _grid(vals)
     kmax = max(ints)
     # least excess: the base b is the smallest reachable unit sum with b·Σw ≥ need
-    base_sel = select_units(need_kvar / wsum, vals, max_states)
-    base = round(Fraction(base_sel.total).limit_denominator(10**9) / g)
+    hit = bases.get(wsum)
+    if hit is None:
+        _check_count(need_kvar / wsum, vals)
+        hit = bases[wsum] = _select_on_grid(need_kvar / wsum, vals, g, ints, max_states)
+    base, base_idx = hit
     top = min(max_states, base * max(w))
     count, last = _min_count_table(ints, top)
     steps, units = [], []
+    base_units = None
     for x in w:
         idx = _fewest_exact(base * x, ints, count, last, top, kmax)
         if idx is None:  # w_i copies of the base's own units always sum exactly
-            units.append(tuple(sorted(base_sel.units * x, reverse=True)))
+            if base_units is None:
+                base_units = tuple(sorted((vals[i] for i in base_idx), reverse=True))
+            units.append(tuple(sorted(base_units * x, reverse=True)))
         else:
             units.append(tuple(sorted((vals[i] for i in idx), reverse=True)))
-        steps.append(float(Fraction(base * x) * g))
+        steps.append(_kvar(base * x, g))
     n_units = sum(len(u) for u in units)
     if n_units > MAX_UNITS:
         raise InputError(f"This step plan needs {n_units} units: use fewer steps, another pattern or larger unit ratings.")
-    return StepPlan(tuple(steps), tuple(units), float(Fraction(base) * g), float(Fraction(base * wsum) * g))
+    return StepPlan(tuple(steps), tuple(units), _kvar(base, g), _kvar(base * wsum, g))
 
 
 def _fewest_exact(s: int, ints: list[int], count: list[int], last: list[int], top: int, kmax: int) -> list[int] | None:

@@ -28,12 +28,24 @@ def _has_nan(value, depth: int = 0) -> bool:
         try:  # a list of plain numbers (e.g. a load profile's 100 000 intervals) at C speed
             return any(map(math.isnan, value))
         except (TypeError, OverflowError):  # complex, text, None, nested or huge ints: one by one
-            return any(_has_nan(v, depth + 1) for v in value)
-    if isinstance(value, dict):
-        return any(_has_nan(v, depth + 1) for v in value.values())
-    names = getattr(value, "__dataclass_fields__", None)
-    if names:
-        return any(_has_nan(getattr(value, n), depth + 1) for n in names)
+            items = value
+    elif isinstance(value, dict):
+        items = value.values()
+    else:
+        names = getattr(value, "__dataclass_fields__", None)
+        if not names:
+            return False
+        items = [getattr(value, n) for n in names]
+    # plain loops, no generators: the outermost guarded call scans every result it returns
+    for v in items:
+        t = type(v)
+        if t is str or t is int or t is bool or v is None:  # the common leaves, without a call
+            continue
+        if t is float:
+            if v != v:
+                return True
+        elif _has_nan(v, depth + 1):
+            return True
     return False
 
 

@@ -133,7 +133,22 @@ def ringing(v_ll: float, c_eq_f: float, l_eq_h: float) -> Inrush:
     c = _pos(c_eq_f, "The capacitance")
     if not (isinstance(l_eq_h, (int, float)) and math.isfinite(l_eq_h)) or l_eq_h <= 0:
         raise InputError("The inductance between the source and the step must be above zero: enter a length or an inductance.")
-    return Inrush(v * SQRT_2_3 * math.sqrt(c / l_eq_h), 1.0 / (TWO_PI * math.sqrt(l_eq_h * c)), c, float(l_eq_h))
+    return Inrush(_peak(v, c, l_eq_h), 1.0 / (TWO_PI * math.sqrt(l_eq_h * c)), c, float(l_eq_h))
+
+
+def _peak(v_ll: float, c: float, l: float) -> float:
+    # I_pk = V_LL·√(2/3)·√(C/L): the one place the expression is written (ringing and the reactor search)
+    return v_ll * SQRT_2_3 * math.sqrt(c / l)
+
+
+def _b2b(c_in: float, l_in: float, c_on: float, inv_l_on: float) -> tuple[float, float]:
+    # C_eq = C₁C₂/(C₁+C₂) with C₁ = c_on the energized steps' sum; L_eq = L_incoming + their
+    # inductances in parallel (inv_l_on = Σ 1/L, inf when one of them is 0)
+    return c_on * c_in / (c_on + c_in), l_in + (1.0 / inv_l_on if inv_l_on != math.inf else 0.0)
+
+
+def _inv_sum(ls) -> float:
+    return math.inf if any(x <= 0 for x in ls) else sum(1.0 / x for x in ls)
 
 
 @guarded
@@ -143,12 +158,6 @@ def isolated(step: StepCircuit, v_ll: float, l_source_h: float) -> Inrush:
     return ringing(v_ll, step.c_f, _nonneg(l_source_h, "The source inductance") + step.l_h)
 
 
-def _parallel(ls: list[float]) -> float:
-    if any(x <= 0 for x in ls):
-        return 0.0
-    return 1.0 / sum(1.0 / x for x in ls)
-
-
 @guarded
 def back_to_back(incoming: StepCircuit, energized: list, v_ll: float) -> Inrush:
     """Switching ``incoming`` with the steps ``energized`` (a list of :class:`StepCircuit`)
@@ -156,9 +165,8 @@ def back_to_back(incoming: StepCircuit, energized: list, v_ll: float) -> Inrush:
     L_eq = L_incoming + (energized steps' inductances in parallel). IEEE Std 1036 (from memory)."""
     if not energized:
         raise InputError("Back-to-back switching needs at least one step already energized.")
-    c1 = sum(s.c_f for s in energized)
-    c2 = incoming.c_f
-    return ringing(v_ll, c1 * c2 / (c1 + c2), incoming.l_h + _parallel([s.l_h for s in energized]))
+    c_eq, l_eq = _b2b(incoming.c_f, incoming.l_h, sum(s.c_f for s in energized), _inv_sum([s.l_h for s in energized]))
+    return ringing(v_ll, c_eq, l_eq)
 
 
 @dataclass(frozen=True)
@@ -214,13 +222,31 @@ def limiting_inductance_h(steps: list, v_ll: float, l_source_h: float, peak_limi
     if peak_limit_a is not None:
         _pos(peak_limit_a, "The peak current limit")
 
-    def excess(add: float) -> float:
-        grown = [StepCircuit(s.c_f, s.l_h + add, s.reactor_h, s.i_rated_a) for s in steps]
-        res = bank_inrush(grown, v_ll, l_source_h)
-        return max(r.worst / (r.limit_a if peak_limit_a is None else min(peak_limit_a, r.limit_a)) for r in res)
-
-    if excess(0.0) <= 1.0:
+    res = bank_inrush(steps, v_ll, l_source_h)  # checks every value; raises as bank_inrush does
+    limits = [r.limit_a if peak_limit_a is None else min(peak_limit_a, r.limit_a) for r in res]
+    if max(r.worst / lim for r, lim in zip(res, limits)) <= 1.0:
         return 0.0
+    v = float(v_ll)
+    cs = [s.c_f for s in steps]
+    l0 = [s.l_h for s in steps]
+    c_all = sum(cs)
+    n = len(steps)
+
+    def excess(add: float) -> float:
+        # the same peaks as bank_inrush with `add` in series with every step (add > 0), in plain
+        # arithmetic: the search evaluates it about 25 times
+        ls = [x + add for x in l0]  # all above zero: add > 0
+        inv = [1.0 / x for x in ls]
+        inv_all = sum(inv)
+        worst = 0.0
+        for k in range(n):
+            pk = _peak(v, cs[k], l_source_h + ls[k]) if l_source_h is not None else 0.0
+            if n > 1:  # the others: totals less this step's share
+                c_eq, l_eq = _b2b(cs[k], ls[k], c_all - cs[k], inv_all - inv[k])
+                pk = max(pk, _peak(v, c_eq, l_eq))
+            worst = max(worst, pk / limits[k])
+        return worst
+
     lo, hi = 0.0, 1e-6
     while excess(hi) > 1.0:
         lo, hi = hi, hi * 2.0

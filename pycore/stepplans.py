@@ -24,7 +24,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .banksteps import MANY_UNITS_PER_STEP, MAX_STEPS, Combination, StepPlan, combinations, plan_steps, step_weights
+from .banksteps import MANY_UNITS_PER_STEP, MAX_STEPS, Combination, StepPlan, combinations, plan_steps_many, step_weights
 from .correction import Load, tan_phi
 from .errors import InputError, guarded
 
@@ -107,21 +107,32 @@ class Plan:
     acceptable: bool
 
 
-def _candidates(need_rated: float, ratings, max_steps: int) -> list[tuple[str, tuple, StepPlan]]:
-    seen: dict[tuple, tuple] = {}
+def _patterns(max_steps: int) -> list[tuple[str, tuple]]:
+    tried = []
     for pattern in PLAN_PATTERNS:
         for n in range(MIN_AUTO_STEPS, max_steps + 1):
             w = tuple(step_weights(pattern, n))
             if pattern == "binary" and sum(w) > 4096:
                 break
-            try:
-                pl = plan_steps(need_rated, ratings, w)
-            except InputError:
-                continue
-            key = tuple(round(s, 6) for s in pl.steps)
-            if key not in seen:
-                seen[key] = (pattern, w, pl)
+            tried.append((pattern, w))
+    return tried
+
+
+def _candidates(need_rated: float, ratings, tried) -> list[tuple[str, tuple, StepPlan]]:
+    seen: dict[tuple, tuple] = {}
+    for (pattern, w), pl in zip(tried, plan_steps_many(need_rated, ratings, [w for _, w in tried])):
+        if pl is None:
+            continue
+        key = tuple(round(s, 6) for s in pl.steps)
+        if key not in seen:
+            seen[key] = (pattern, w, pl)
     return list(seen.values())
+
+
+def _may_be_acceptable(need_rated: float, ratings, w) -> bool:
+    # every step holds at least one unit, so the total is at least the smallest unit × Σw
+    small = min((r for r in ratings if isinstance(r, (int, float)) and r > 0), default=0.0)
+    return small * sum(w) <= (1 + ACCEPTABLE_EXCESS) * need_rated + 1e-9
 
 
 @guarded
@@ -138,18 +149,23 @@ def three_plans(need_rated: float, ratings, factor: float, full: Load, target_pf
         raise InputError("The output factor must be above zero.")
     if not isinstance(max_steps, int) or not MIN_AUTO_STEPS <= max_steps <= MAX_STEPS:
         raise InputError(f"The most steps must be {MIN_AUTO_STEPS} to {MAX_STEPS}.")
-    cands = _candidates(need_rated, ratings, max_steps)
-    if not cands:
-        raise InputError("No automatic bank can be built from these unit ratings: add larger or smaller ratings.")
-
     def info(c):
         pattern, w, pl = c
         exc = pl.total - need_rated
         ok = exc <= ACCEPTABLE_EXCESS * need_rated + 1e-9 and max(len(u) for u in pl.units) <= UNITS_PER_STEP_LIMIT
         return round(exc, 6), round(min(pl.steps), 6), len(pl.steps), ok
 
-    rows = [(c, info(c)) for c in cands]
-    pool = [r for r in rows if r[1][3]] or rows
+    tried = _patterns(max_steps)
+    # plans that cannot be acceptable (a huge binary pattern of small units) are worked out only
+    # when no acceptable plan exists: they could not be offered otherwise
+    hopeful = [t for t in tried if _may_be_acceptable(need_rated, ratings, t[1])]
+    rows = [(c, info(c)) for c in _candidates(need_rated, ratings, hopeful)]
+    pool = [r for r in rows if r[1][3]]
+    if not pool:
+        cands = _candidates(need_rated, ratings, tried)
+        if not cands:
+            raise InputError("No automatic bank can be built from these unit ratings: add larger or smaller ratings.")
+        pool = rows = [(c, info(c)) for c in cands]
     least = min(pool, key=lambda r: (r[1][0], r[1][1], r[1][2]))
     fewest = min(pool, key=lambda r: (r[1][2], r[1][0], r[1][1]))
     finest = min(pool, key=lambda r: (r[1][1], r[1][0], r[1][2]))
