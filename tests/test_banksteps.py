@@ -157,6 +157,25 @@ def test_plan_steps_least_excess_against_enumeration(need, pattern, n):
         assert all(u in STOCK for u in units)
 
 
+@settings(max_examples=80, deadline=None)
+@given(
+    need=st.floats(min_value=0.5, max_value=900.0),
+    ratings=st.lists(st.sampled_from([2.5, 5, 7.5, 10, 12.5, 15, 20, 25, 33.3, 50, 100]), min_size=1, max_size=4, unique=True),
+    weight_lists=st.lists(st.lists(st.integers(1, 64), min_size=1, max_size=6), min_size=1, max_size=8),
+)
+def test_plan_steps_many_is_plan_steps_for_each(need, ratings, weight_lists):
+    # the batch works the grid and each Σw's base out once: every plan must be the one plan_steps
+    # (checked above against enumeration) gives for those weights alone, None where it refuses
+    many = banksteps.plan_steps_many(need, ratings, weight_lists)
+    assert len(many) == len(weight_lists)
+    for w, got in zip(weight_lists, many):
+        try:
+            one = banksteps.plan_steps(need, ratings, w)
+        except InputError:
+            one = None
+        assert got == one
+
+
 def test_plan_prefers_single_units():
     # 220 kvar as 1:2:2:2:2:2 → 20 + 5 × 40: each step one purchasable unit (fewest units)
     plan = banksteps.plan_steps(198.9, STOCK, [1, 2, 2, 2, 2, 2])

@@ -430,6 +430,7 @@ CASES = {
     "banksteps.step_weights": A(st.sampled_from(list(banksteps.PATTERNS) + ["zigzag"]), st.integers(-2, 15) | F,
                                 st.none() | st.lists(F, max_size=5)),
     "banksteps.plan_steps": A(F, RATINGS, st.lists(st.integers(-1, 8), max_size=6)),
+    "banksteps.plan_steps_many": A(F, RATINGS, st.lists(st.lists(st.integers(-1, 8), max_size=6), max_size=4)),
     "banksteps.best_step_count": A(F, RATINGS, st.sampled_from(["equal", "one_two", "binary", "zigzag"])),
     "banksteps.combinations": A(st.lists(F, max_size=6)),
     "banksteps.light_load_check": A(LOAD, st.lists(F, max_size=5), F),
@@ -713,7 +714,7 @@ CASES.update({
 })
 
 # The dynamic-programming searches are the slow ones: fewer examples keep the file quick.
-SLOW = {"banksteps.best_step_count": 40, "banksteps.plan_steps": 100, "busscan.scan": 60, "busscan.find_peak": 100,
+SLOW = {"banksteps.best_step_count": 40, "banksteps.plan_steps": 100, "banksteps.plan_steps_many": 60, "busscan.scan": 60, "busscan.find_peak": 100,
         "busscan.supply_scan": 40, "stepplans.three_plans": 30, "orderlist.design_bank": 60, "orderlist.order_rows": 20,
         "orderlist.as_table": 10, "orderlist.as_text": 10, "orderlist.merge_alike_steps": 10, "inrush.limiting_inductance_h": 80,
         "harmonicstudy.demo_six_step": 3, "harmonicstudy.recommend": 30,

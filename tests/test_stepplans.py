@@ -5,7 +5,7 @@ import itertools
 import math
 
 import pytest
-from hypothesis import given, settings
+from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from pycore import banksteps, stepplans as sp
@@ -67,6 +67,33 @@ def test_plan_properties(need, ratings, factor, target, light_frac):
         for held, ld in ((p.full, full), (p.light, light)):
             assert held.sense != "leading"
             assert held.kvar_in == pytest.approx(brute_hold(ld, list(p.steps_sys), target), abs=1e-6)
+
+
+@settings(max_examples=40, deadline=None)
+@given(need=st.floats(min_value=3.0, max_value=600.0),
+       ratings=st.lists(st.sampled_from([1, 2.5, 5, 7.5, 10, 12.5, 25, 50, 100]), min_size=1, max_size=3, unique=True))
+def test_offered_plans_match_every_pattern_tried(need, ratings):
+    # three_plans skips patterns whose smallest possible total is already too large; the plans it
+    # offers must be the best over every pattern and step count, each worked out here with plan_steps
+    every = []
+    for pattern in sp.PLAN_PATTERNS:
+        for n in range(sp.MIN_AUTO_STEPS, banksteps.MAX_STEPS + 1):
+            w = banksteps.step_weights(pattern, n)
+            if pattern == "binary" and sum(w) > 4096:
+                break
+            try:
+                every.append(banksteps.plan_steps(need, ratings, w))
+            except InputError:
+                pass
+    assume(every)
+    acceptable = [p for p in every if p.total - need <= sp.ACCEPTABLE_EXCESS * need + 1e-9
+                  and max(len(u) for u in p.units) <= sp.UNITS_PER_STEP_LIMIT]
+    ok = acceptable or every
+    least, fewest, finest = sp.three_plans(need, ratings, 1.0, _load_for_need(need), 0.95)
+    assert least.plan.total == pytest.approx(min(p.total for p in ok))
+    assert len(fewest.plan.steps) == min(len(p.steps) for p in ok)
+    assert finest.smallest_step == pytest.approx(min(min(p.steps) for p in ok))
+    assert least.acceptable == bool(acceptable)
 
 
 def test_controller_holds_worked_example():
