@@ -5,6 +5,7 @@ wall time in milliseconds (``time.perf_counter``)."""
 
 from __future__ import annotations
 
+import json
 import time
 
 from pycore import harmonicstudy
@@ -24,6 +25,14 @@ def _study_sheet_64() -> None:
     registry.run("harmonic_study", SIX_STEP_INPUTS)
 
 
+def _opening_sheet() -> None:
+    """The opening worksheet with its default inputs, its answer written as JSON as the bridge
+    writes it: the Python share of a recompute."""
+    from . import OPENING_SHEET, registry  # late: registry imports the worksheets
+
+    json.dumps(registry.run(OPENING_SHEET, {}), ensure_ascii=False, allow_nan=False)
+
+
 SIX_STEP_INPUTS = {
     "v_ll": "480", "f": "60", "tx_kva": "1500", "tx_z": "5.75", "tx_xr": "6", "fault_mva": "250", "load_kw": "300",
     "motor_kva": "400", "lr_ratio": "6",
@@ -36,6 +45,7 @@ SIX_STEP_INPUTS = {
 CASES = {
     "study_64": _study_64,
     "study_sheet_64": _study_sheet_64,
+    "opening_sheet": _opening_sheet,
 }
 
 

@@ -57,3 +57,36 @@ export function clear(el) {
   while (el.firstChild) el.firstChild.remove();
   return el;
 }
+
+/**
+ * Make `parent`'s children the nodes of `items` ([{key, make}]) in order, reusing a child drawn
+ * before for the same key (a string of the data it shows) and calling `make()` only for new keys.
+ * A recompute that changes a few values then touches a few nodes, and what the user opened (a
+ * "How" disclosure) stays open where its result did not change.
+ */
+export function reconcile(parent, items) {
+  const old = new Map();
+  for (const n of parent.children) {
+    if (n.__key === undefined) continue;
+    const pool = old.get(n.__key);
+    if (pool) pool.push(n);
+    else old.set(n.__key, [n]);
+  }
+  let at = parent.firstChild;
+  for (const it of items) {
+    const pool = old.get(it.key);
+    let node = pool && pool.shift();
+    if (!node) {
+      node = it.make();
+      node.__key = it.key;
+    }
+    if (node === at) at = at.nextSibling;
+    else parent.insertBefore(node, at);
+  }
+  while (at) {
+    const next = at.nextSibling;
+    at.remove();
+    at = next;
+  }
+  return parent;
+}

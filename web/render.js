@@ -1,6 +1,6 @@
 // Renders any worksheet from its declaration (fields from Python) and any compute result.
 // Worksheet-agnostic: nothing here knows a particular worksheet or formula.
-import { h, fromTree, svgNode, clear } from "./dom.js";
+import { h, fromTree, svgNode, clear, reconcile } from "./dom.js";
 
 const unitText = (u) => (u ? ` (${u})` : "");
 const STACK_ABOVE_COLUMNS = 3; // a results table with more columns is drawn as cards on a narrow screen
@@ -384,58 +384,73 @@ export function splitPasted(text, cols) {
 
 export const STATUS_WORD = { ok: "OK", warn: "Check", fail: "Fails" };
 
-/** Render a compute result (the bridge's JSON) into the results container. */
+/**
+ * Render a compute result (the bridge's JSON) into the results container. Each block (an answer,
+ * a result row, a table row, a figure…) is keyed by the data it shows; a recompute redraws only
+ * the blocks whose data changed (dom.js `reconcile`).
+ */
 export function renderResults(el, res, { onLink } = {}) {
-  clear(el);
-  if (res.error) el.append(h("p", { class: "msg fail", role: "alert", text: res.error }));
+  el.__onLink = onLink; // link buttons drawn earlier call the current handler
+  const top = [];
+  const add = (key, make) => top.push({ key, make });
+  if (res.error) add("error\0" + res.error, () => h("p", { class: "msg fail", role: "alert", text: res.error }));
   if (!res.ok) {
     const n = Object.keys(res.field_errors || {}).length;
-    if (n) el.append(h("p", { class: "msg warn", text: `${n} input${n === 1 ? " needs" : "s need"} attention — see the message${n === 1 ? "" : "s"} by the field${n === 1 ? "" : "s"}.` }));
+    if (n) add("attention\0" + n, () => h("p", { class: "msg warn", text: `${n} input${n === 1 ? " needs" : "s need"} attention — see the message${n === 1 ? "" : "s"} by the field${n === 1 ? "" : "s"}.` }));
   }
   const results = res.results || [];
   const keys = results.filter((r) => r.key);
+  const inner = []; // [container key, child items] filled after the top level is in place
   if (keys.length) {
-    el.append(h("div", { class: "answers" }, keys.map((r) => h("div", { class: `answer ${r.status || ""}`, "data-result": r.name },
+    add("answers", () => h("div", { class: "answers" }));
+    inner.push(["answers", keys.map((r) => ({ key: JSON.stringify(r), make: () => h("div", { class: `answer ${r.status || ""}`, "data-result": r.name },
       h("span", { class: "a-label", text: r.label }),
       h("span", { class: "a-value", text: r.display }),
       r.status ? h("span", { class: "a-status", text: STATUS_WORD[r.status] || r.status }) : null,
-      howTo(r)))));
+      howTo(r)) }))]);
   }
-  for (const w of res.warnings || []) el.append(h("p", { class: "msg warn" }, h("strong", { text: "Warning: " }), w));
-  const rest = checksFirst(results.filter((r) => !r.key));
-  if (rest.length) {
-    let group = null;
-    let dl = null;
-    for (const r of rest) {
-      if (!dl || (r.group || "") !== group) {
-        group = r.group || "";
-        if (group) el.append(h("h3", { text: group }));
-        dl = h("dl", { class: "res" });
-        el.append(dl);
-      }
-      dl.append(h("div", { class: `res-row ${r.status || ""}`, "data-result": r.name },
-        h("dt", { text: r.label }),
-        h("dd", {}, h("span", { class: "r-value", text: r.display }), r.status ? h("span", { class: "a-status", text: " " + (STATUS_WORD[r.status] || r.status) }) : null, howTo(r))));
+  for (const w of res.warnings || []) add("warn\0" + w, () => h("p", { class: "msg warn" }, h("strong", { text: "Warning: " }), w));
+  let group = null;
+  let rows = null;
+  let lists = 0;
+  for (const r of checksFirst(results.filter((r) => !r.key))) {
+    if (!rows || (r.group || "") !== group) {
+      group = r.group || "";
+      if (group) { const g = group; add("h3\0" + g, () => h("h3", { text: g })); }
+      const dlKey = "dl\0" + group + "\0" + lists++;
+      add(dlKey, () => h("dl", { class: "res" }));
+      rows = [];
+      inner.push([dlKey, rows]);
     }
+    rows.push({ key: JSON.stringify(r), make: () => h("div", { class: `res-row ${r.status || ""}`, "data-result": r.name },
+      h("dt", { text: r.label }),
+      h("dd", {}, h("span", { class: "r-value", text: r.display }), r.status ? h("span", { class: "a-status", text: " " + (STATUS_WORD[r.status] || r.status) }) : null, howTo(r))) });
   }
-  for (const t of res.tables || []) {
-    el.append(h("h3", { text: t.title }));
+  for (const [ti, t] of (res.tables || []).entries()) {
+    add("h3\0" + t.title, () => h("h3", { text: t.title }));
     // wide tables become one card per row on a narrow screen (app.css), each cell named by its column
     const wide = t.columns.length > STACK_ABOVE_COLUMNS;
-    el.append(h("div", { class: `tbl-scroll${wide ? " stack" : ""}`, tabindex: "0", role: "region", "aria-label": t.title },
-      h("table", {}, h("thead", {}, h("tr", {}, t.columns.map((c) => h("th", { scope: "col", text: c })))),
-        h("tbody", {}, t.rows.map((r) => h("tr", {}, r.map((c, i) => h("td", { text: c, "data-label": t.columns[i] || "" }))))))));
-    if (t.note) el.append(h("p", { class: "muted", text: t.note }));
+    const tKey = "table\0" + ti + "\0" + JSON.stringify([t.title, t.columns]);
+    add(tKey, () => h("div", { class: `tbl-scroll${wide ? " stack" : ""}`, tabindex: "0", role: "region", "aria-label": t.title },
+      h("table", {}, h("thead", {}, h("tr", {}, t.columns.map((c) => h("th", { scope: "col", text: c })))), h("tbody"))));
+    inner.push([tKey, t.rows.map((r) => ({ key: JSON.stringify(r), make: () => h("tr", {}, r.map((c, i) => h("td", { text: c, "data-label": t.columns[i] || "" }))) })), "tbody"]);
+    if (t.note) add("note\0" + t.note, () => h("p", { class: "muted", text: t.note }));
   }
   for (const fig of res.figures || []) {
-    el.append(h("figure", { class: "fig" }, svgNode(fig.svg), h("figcaption", { text: fig.title })));
+    add("fig\0" + fig.title + "\0" + fig.svg, () => h("figure", { class: "fig" }, svgNode(fig.svg), h("figcaption", { text: fig.title })));
   }
-  for (const n of res.notes || []) el.append(h("p", { class: "muted", text: n }));
+  for (const n of res.notes || []) add("note\0" + n, () => h("p", { class: "muted", text: n }));
   if ((res.links || []).length) {
-    el.append(h("div", { class: "links" }, res.links.map((l) => h("button", { type: "button", class: "btn", onclick: () => onLink && onLink(l) }, l.label))));
+    add("links\0" + JSON.stringify(res.links), () => h("div", { class: "links" }, res.links.map((l) => h("button", { type: "button", class: "btn", onclick: () => el.__onLink && el.__onLink(l) }, l.label))));
   }
   if ((res.cautions || []).length) {
-    el.append(h("aside", { class: "cautions", "aria-label": "Safety cautions" }, h("h3", { text: "Cautions" }), h("ul", {}, res.cautions.map((c) => h("li", { text: c })))));
+    add("cautions\0" + JSON.stringify(res.cautions), () => h("aside", { class: "cautions", "aria-label": "Safety cautions" }, h("h3", { text: "Cautions" }), h("ul", {}, res.cautions.map((c) => h("li", { text: c })))));
+  }
+  reconcile(el, top);
+  const byKey = new Map([...el.children].map((n) => [n.__key, n]));
+  for (const [key, items, sel] of inner) {
+    const box = byKey.get(key);
+    reconcile(sel ? box.querySelector(sel) : box, items);
   }
 }
 
