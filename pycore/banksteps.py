@@ -4,8 +4,7 @@
   the need with the least excess, then the fewest units.
 * :func:`step_weights` and :func:`plan_steps` — an automatic bank of N steps in a pattern
   (equal, 1:2:2:…, binary 1:2:4:…, or custom ratios), each step built from purchasable units.
-* :func:`combinations` — the distinct outputs a step controller can reach, and
-  :func:`light_load_check` — which combinations over-correct (lead) at the lightest load.
+(What a controller can switch from the steps is in :mod:`pycore.stepcombos`.)
 
 Ratings and needs are in kvar, all at the same voltage and frequency (the capacitor's rating
 or the system's, consistently). The search is exact on a grid of the greatest common measure
@@ -21,7 +20,6 @@ import math
 from dataclasses import dataclass
 from fractions import Fraction
 
-from .correction import Load
 from .errors import InputError, guarded
 
 MAX_STATES = 60_000  # size of the dynamic-programming table before pre-filling with large units
@@ -411,76 +409,3 @@ def best_step_count(need_kvar: float, ratings, pattern: str, max_steps: int = MA
         if best is None or key < best[0]:
             best = (key, n, plan)
     return None if best is None else (best[1], best[2])
-
-
-@dataclass(frozen=True)
-class Combination:
-    """One controller position: ``on`` the step numbers switched in (1-based), ``total`` [kvar]."""
-
-    on: tuple
-    total: float
-
-
-@guarded
-def combinations(steps) -> list[Combination]:
-    """Every distinct total [kvar] reachable by switching subsets of ``steps`` [kvar]
-    (at most 12 steps), with the fewest steps for each total (then the lowest-numbered),
-    smallest total first; the all-off position (0 kvar) is not listed."""
-    st = tuple(float(x) for x in steps)
-    if len(st) > MAX_STEPS:
-        raise InputError(f"At most {MAX_STEPS} steps.")
-    return list(_combinations_of(st))
-
-
-@functools.lru_cache(maxsize=128)
-def _combinations_of(st: tuple) -> tuple:
-    # a worksheet asks for the same step list several times per answer (plans, full and light load): cached by value
-    n = len(st)
-    totals = [0.0] * (1 << n)
-    best: dict[float, tuple] = {}
-    for mask in range(1, 1 << n):
-        low = mask & -mask
-        totals[mask] = totals[mask ^ low] + st[low.bit_length() - 1]
-        key = round(totals[mask], 6)
-        pc = bin(mask).count("1")
-        old = best.get(key)
-        if old is not None and pc > old[0]:
-            continue
-        on = tuple(i + 1 for i in range(n) if mask >> i & 1)
-        if old is None or pc < old[0] or on < old[1]:
-            best[key] = (pc, on, totals[mask])
-    return tuple(Combination(on, tot) for _, (_, on, tot) in sorted(best.items()))
-
-
-@dataclass(frozen=True)
-class LightLoadCheck:
-    """Outcome at the lightest load. ``full_pf``/``full_sense``: PF with every step in;
-    ``best``: the largest combination that does not lead (None if even the smallest step
-    leads); ``leave_out``: step numbers to keep off at the lightest load; ``leading``: the
-    combinations that lead."""
-
-    full_pf: float
-    full_sense: str
-    best: Combination | None
-    leave_out: tuple
-    leading: tuple
-
-
-@guarded
-def light_load_check(light: Load, steps, existing_kvar: float = 0.0, combos=None) -> LightLoadCheck:
-    """Power factor at the lightest load ``light`` (P [kW], Q [kvar] before the new bank)
-    with the new ``steps`` [kvar at system voltage] and ``existing_kvar`` [kvar] of further
-    capacitors switched in; a combination over-corrects when Q − Q_C < 0 (leading). ``combos``:
-    the result of :func:`combinations` for these steps, if already computed. Power triangle
-    (circuit theory)."""
-    if combos is None:
-        combos = combinations(steps)
-    q0 = light.q_kvar - existing_kvar
-    full = Load(light.p_kw, q0 - sum(steps))
-    tol = -1e-9 * max(1.0, abs(light.p_kw))
-    ok = [c for c in combos if q0 - c.total >= tol]
-    leading = tuple(c for c in combos if q0 - c.total < tol)
-    best = max(ok, key=lambda c: c.total) if ok else None
-    n = len(list(steps))
-    leave = tuple(i for i in range(1, n + 1) if best is None or i not in best.on) if leading else ()
-    return LightLoadCheck(full.pf, full.sense, best, leave, leading)

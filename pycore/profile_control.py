@@ -17,7 +17,8 @@ import math
 from bisect import bisect_left, bisect_right
 from dataclasses import dataclass, field
 
-from .banksteps import MAX_STEPS, combinations
+from .banksteps import MAX_STEPS
+from .stepcombos import combinations
 from .errors import InputError, guarded
 from .profile_stats import billing_pf
 from .profile_time import month_of

@@ -24,7 +24,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .banksteps import MANY_UNITS_PER_STEP, MAX_STEPS, Combination, StepPlan, combinations, plan_steps_many, step_weights
+from .banksteps import MANY_UNITS_PER_STEP, MAX_STEPS, StepPlan, plan_steps_many, step_weights
+from .stepcombos import Combination, combinations
 from .correction import Load, tan_phi
 from .errors import InputError, guarded
 

@@ -31,7 +31,7 @@ from hypothesis import strategies as st
 import pycore
 from pycore import (bankhealth, banksteps, busscan, cables, capacitor, capduty, correction, detuning, harmonicbus,
                     harmonicsources, harmonicstudy, healthverdict, ieee519, inrush, orderlist, phasor, profile_columns,
-                    profile_control, references, resonancescreen, savings, supply, survey)
+                    profile_control, references, resonancescreen, savings, stepcombos, supply, survey)
 from pycore.errors import InputError, guarded
 
 SETTINGS = settings(max_examples=200, deadline=None, database=None,
@@ -432,8 +432,8 @@ CASES = {
     "banksteps.plan_steps": A(F, RATINGS, st.lists(st.integers(-1, 8), max_size=6)),
     "banksteps.plan_steps_many": A(F, RATINGS, st.lists(st.lists(st.integers(-1, 8), max_size=6), max_size=4)),
     "banksteps.best_step_count": A(F, RATINGS, st.sampled_from(["equal", "one_two", "binary", "zigzag"])),
-    "banksteps.combinations": A(st.lists(F, max_size=6)),
-    "banksteps.light_load_check": A(LOAD, st.lists(F, max_size=5), F),
+    "stepcombos.combinations": A(st.lists(F, max_size=6)),
+    "stepcombos.light_load_check": A(LOAD, st.lists(F, max_size=5), F),
     # busscan
     "busscan.bus_model": A(F, F, F, F, OPT, OPT, OPT),
     "busscan.capacitor_reactance": A(F, F),

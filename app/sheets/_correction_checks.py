@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import math
 
-from pycore import banksteps, capacitor, correction, supply
+from pycore import banksteps, capacitor, correction, stepcombos, supply
 from pycore.errors import InputError
 from pycore.stepplans import UNITS_PER_STEP_LIMIT
 
@@ -62,7 +62,7 @@ def rating_and_selection_checks(out, cx):
         out.warn(f"One step of this plan is {most} units in parallel. A step is usually one to a few units: add a larger "
                  "unit rating to the list, or leave out the smallest, for fewer units, connections and fuses.")
 
-    combos = banksteps.combinations(steps_sys)
+    combos = stepcombos.combinations(steps_sys)
     cx.combos = combos
 
 
@@ -77,7 +77,7 @@ def light_load(out, cx):
             raise FieldError("light_p", f"The lightest load is above the full load ({fmt.sig(net.p_kw)} kW); check the figures.")
         light = correction.load_from_p_pf(light_p, light_pf)
         light_net = light.corrected(existing) if (not existing_in and existing > 0) else light
-        light_check = banksteps.light_load_check(light_net, steps_sys, combos=combos)
+        light_check = stepcombos.light_load_check(light_net, steps_sys, combos=combos)
         full_light = light_net.corrected(delivered)
         out.result("pf_light", f"Power factor at the lightest load ({fmt.sig(light_p)} kW), whole bank in", full_light.pf, "",
                    display=_pf_text(full_light.pf, full_light.sense), key=bank == "fixed",
