@@ -40,19 +40,26 @@ def _combinations_of(st: tuple) -> tuple:
     # a worksheet asks for the same step list several times per answer (plans, full and light load): cached by value
     n = len(st)
     totals = [0.0] * (1 << n)
-    best: dict[float, tuple] = {}
+    best: dict[float, list] = {}  # total → [steps on, mask, total, step numbers (worked out on a tie)]
     for mask in range(1, 1 << n):
         low = mask & -mask
-        totals[mask] = totals[mask ^ low] + st[low.bit_length() - 1]
-        key = round(totals[mask], 6)
-        pc = bin(mask).count("1")
+        tot = totals[mask] = totals[mask ^ low] + st[low.bit_length() - 1]
+        key = round(tot, 6)
+        pc = mask.bit_count()
         old = best.get(key)
-        if old is not None and pc > old[0]:
-            continue
-        on = tuple(i + 1 for i in range(n) if mask >> i & 1)
-        if old is None or pc < old[0] or on < old[1]:
-            best[key] = (pc, on, totals[mask])
-    return tuple(Combination(on, tot) for _, (_, on, tot) in sorted(best.items()))
+        if old is None or pc < old[0]:
+            best[key] = [pc, mask, tot, None]
+        elif pc == old[0]:
+            on = _on(mask, n)
+            if old[3] is None:
+                old[3] = _on(old[1], n)
+            if on < old[3]:
+                best[key] = [pc, mask, tot, on]
+    return tuple(Combination(on or _on(m, n), tot) for _, (_, m, tot, on) in sorted(best.items()))
+
+
+def _on(mask: int, n: int) -> tuple:
+    return tuple(i + 1 for i in range(n) if mask >> i & 1)
 
 
 @dataclass(frozen=True)
