@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import math
 
 _PREFIX = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "µ"), (1e-9, "n"), (1e-12, "p")]
@@ -9,6 +10,18 @@ _PREFIX = [(1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "�
 
 def sig(value: float, digits: int = 4) -> str:
     """Format with ``digits`` significant figures, no exponent for everyday magnitudes."""
+    if type(value) is float or type(value) is int:
+        return _sig_number(value, digits)
+    return _sig(value, digits)
+
+
+@functools.lru_cache(maxsize=2048)
+def _sig_number(value: float, digits: int) -> str:
+    # a recompute formats a few hundred numbers, most of them the same as last time: cached by value
+    return _sig(value, digits)
+
+
+def _sig(value: float, digits: int) -> str:
     if value is None:
         return "—"
     if isinstance(value, float) and math.isinf(value):

@@ -32,10 +32,10 @@ def _has_nan(value, depth: int = 0) -> bool:
     elif isinstance(value, dict):
         items = value.values()
     else:
-        names = getattr(value, "__dataclass_fields__", None)
-        if not names:
+        if not hasattr(value, "__dataclass_fields__"):
             return False
-        items = [getattr(value, n) for n in names]
+        d = getattr(value, "__dict__", None)  # a dataclass without slots holds its fields here
+        items = d.values() if d is not None else [getattr(value, n) for n in value.__dataclass_fields__]
     # plain loops, no generators: the outermost guarded call scans every result it returns
     for v in items:
         t = type(v)
