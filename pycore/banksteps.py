@@ -199,11 +199,20 @@ def _kvar(n: int, g: Fraction) -> float:
     return n * g.numerator / g.denominator
 
 
+def _target_steps(need_kvar: float, g: Fraction) -> int:
+    """The need in whole grid steps, rounded up (at least one: a need far below the common measure
+    still needs a unit). Exact: the need as the nearest fraction with a denominator up to 10⁹, less
+    10⁻⁹ of a step; in floats when the answer is clear by a thousandth of a step."""
+    y = need_kvar * g.denominator / g.numerator - 1e-9
+    if abs(y) < 1e12 and abs(y - round(y)) > 1e-3:
+        return max(1, math.ceil(y))
+    return max(1, math.ceil(Fraction(need_kvar).limit_denominator(10**9) / g - Fraction(1, 10**9)))
+
+
 def _select_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[int], max_states: int) -> tuple[int, list[int]]:
     """select_units on a grid already worked out: (the least sum ≥ need, in grid steps; the unit
     indices, fewest units for that sum)."""
-    # at least one grid step: a need far below the common measure still needs a unit
-    target = max(1, math.ceil(Fraction(need_kvar).limit_denominator(10**9) / g - Fraction(1, 10**9)))
+    target = _target_steps(need_kvar, g)
     kmax = max(ints)
     if kmax > MAX_GRID_FACTOR * max_states:
         raise InputError(

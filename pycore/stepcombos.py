@@ -9,6 +9,8 @@ Kvar are all at the same voltage and frequency. Power triangle; controller behav
 from __future__ import annotations
 
 import functools
+import itertools
+import math
 from dataclasses import dataclass
 
 from .banksteps import MAX_STEPS
@@ -39,6 +41,12 @@ def combinations(steps) -> list[Combination]:
 def _combinations_of(st: tuple) -> tuple:
     # a worksheet asks for the same step list several times per answer (plans, full and light load): cached by value
     n = len(st)
+    groups: dict[float, list] = {}  # steps of the same size, lowest number first
+    for i, x in enumerate(st):
+        groups.setdefault(x, []).append(i)
+    vectors = math.prod(len(g) + 1 for g in groups.values())
+    if vectors * 4 < 1 << n:
+        return _by_counts(st, list(groups.values()))
     totals = [0.0] * (1 << n)
     best: dict[float, list] = {}  # total → [steps on, mask, total, step numbers (worked out on a tie)]
     for mask in range(1, 1 << n):
@@ -56,6 +64,25 @@ def _combinations_of(st: tuple) -> tuple:
             if on < old[3]:
                 best[key] = [pc, mask, tot, on]
     return tuple(Combination(on or _on(m, n), tot) for _, (_, m, tot, on) in sorted(best.items()))
+
+
+def _by_counts(st: tuple, groups: list) -> tuple:
+    """The same list from how many steps of each size are on: steps of one size are alike, so the
+    lowest-numbered of them are the ones listed, and 12 equal steps need 13 cases, not 4096."""
+    best: dict[float, tuple] = {}
+    for counts in itertools.product(*(range(len(g) + 1) for g in groups)):
+        pc = sum(counts)
+        if not pc:
+            continue
+        on = tuple(sorted(i + 1 for g, c in zip(groups, counts) for i in g[:c]))
+        tot = 0.0
+        for i in reversed(on):  # the order the subset sums above add in: the same float
+            tot += st[i - 1]
+        key = round(tot, 6)
+        old = best.get(key)
+        if old is None or (pc, on) < (old[0], old[1]):
+            best[key] = (pc, on, tot)
+    return tuple(Combination(on, tot) for _, (_, on, tot) in sorted(best.items()))
 
 
 def _on(mask: int, n: int) -> tuple:

@@ -44,3 +44,22 @@ def test_light_load_no_overcorrection():
     res = stepcombos.light_load_check(Load(300, 250), [20, 40, 40])
     assert res.leading == ()
     assert res.leave_out == ()
+
+
+def brute_combinations(steps):
+    """Every subset enumerated here: for each total (to 1e-6 kvar) the fewest steps, then the
+    lowest-numbered, smallest total first."""
+    best = {}
+    for r in range(1, len(steps) + 1):
+        for on in itertools.combinations(range(1, len(steps) + 1), r):
+            key = round(sum(steps[i - 1] for i in on), 6)
+            if key not in best or (len(on), on) < (len(best[key]), best[key]):
+                best[key] = on
+    return [best[k] for k in sorted(best)]
+
+
+@pytest.mark.parametrize("steps", [[12.5] * 10, [10] + [20] * 9, [25, 50, 50, 100, 25, 50], [33.3, 33.3, 66.6, 5],
+                                   [5, 10, 20, 40, 80, 160], [7.5, 15, 15, 30, 30, 30, 60]])
+def test_combinations_against_every_subset(steps):
+    # alike steps are counted, not enumerated, when that is much shorter: the same list either way
+    assert [c.on for c in stepcombos.combinations(steps)] == brute_combinations(steps)
