@@ -216,7 +216,8 @@ def order_rows(bank: BankDesign) -> list:
         c = d.contactor
         rows.append(OrderRow(sec, "Contactor", 1, f"{c.duty}, rated at least {_sig(c.min_current_a)} A", f"{c.reason} {c.source}"))
         if bank.limiting_uh > 0 and d.reactor is None and not d.inrush.within:
-            rows.append(OrderRow(sec, "Inrush-limiting reactor (instead of damping resistors)", 1,
+            # an alternative, not a second purchase: said in the item the buyer reads first
+            rows.append(OrderRow(sec, "Or, instead of the capacitor-duty contactor: a standard contactor and an inrush-limiting reactor", 1,
                                  f"{_sig(bank.limiting_uh)} µH per phase, at least {_sig(d.cable_needed_a)} A",
                                  f"Worst inrush {_sig(d.inrush.worst)} A peak against {_sig(d.inrush.limit_a)} A "
                                  f"(100 × I_N). {inrush.SOURCE_INRUSH}"))
