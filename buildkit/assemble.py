@@ -25,9 +25,10 @@ from .wheel import build_app_wheel
 FULL_STDLIB = "pyodide/python_stdlib-full.zip"
 ON_DEMAND = ("pyodide/pyodide-lock.json", FULL_STDLIB, *(f"wheels/{w}" for w in WHEELS))
 # Files a static host may send compressed: a gzip copy is written beside each (name + ".gz") when
-# it is at least this much smaller; the zips and wheels are deflated already, PNGs too.
+# it is at least this much smaller; the standard-library zip and micropip's wheel are deflated
+# already (no copy), PNGs too; the app wheel is stored (buildkit/wheel.py) and gets copies.
 GZIP_MIN_SAVING = 0.10
-GZIP_TYPES = (".html", ".js", ".mjs", ".css", ".json", ".webmanifest", ".svg", ".wasm")
+GZIP_TYPES = (".html", ".js", ".mjs", ".css", ".json", ".webmanifest", ".svg", ".wasm", ".whl")
 # Brotli copies (name + ".br") beside the gzip ones, kept when at least this much smaller than the
 # gzip copy: pyodide.asm.wasm is 2.77 MB with Brotli against 3.53 MB with gzip. Made by Node.js's
 # zlib (npm brings Node; the standard library has no Brotli), quality 11, 16 MB window; each

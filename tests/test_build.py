@@ -148,6 +148,9 @@ def test_app_wheel_is_pure_python_and_complete(dist):
         assert not any(n.endswith((".so", ".pyc")) for n in names)
         record = zf.read(next(n for n in names if n.endswith("RECORD"))).decode()
         assert "app/bridge.py,sha256=" in record
+        # stored, so the copies a server sends compress across files
+        assert {i.compress_type for i in zf.infolist()} == {zipfile.ZIP_STORED}
+    assert os.path.getsize(path + ".gz") < 0.9 * os.path.getsize(path)
     with open(path, "rb") as fh:
         assert hashlib.sha256(fh.read()).hexdigest() == engine["app_wheel_sha256"]
 
