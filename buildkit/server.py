@@ -1,7 +1,8 @@
 """The static HTTP server for dist/ (`python3 build.py serve`, and the browser tests and benchmark).
 
-It sends a file's gzip copy (``name.gz``, written by the build) with ``Content-Encoding: gzip`` when
-the browser accepts gzip and the copy is not older than the file, as a static host would; the Content-Type stays the file's own (so
+It sends a file's Brotli or gzip copy (``name.br``, ``name.gz``, written by the build) with its
+``Content-Encoding`` when the browser accepts that coding (Brotli first) and the copy is not older
+than the file, as a static host would; the Content-Type stays the file's own (so
 ``.wasm`` is ``application/wasm`` either way). ETag and Last-Modified let a browser revalidate a file
 it has (304). It counts the bytes it writes (``Server.bytes_sent``), which the benchmark reads.
 """
@@ -53,14 +54,18 @@ class Handler(http.server.SimpleHTTPRequestHandler):
             path = os.path.join(path, "index.html")
         if not os.path.isfile(path):
             return super().send_head()  # index.html, redirects and 404 as before
-        accepts = self.headers.get("Accept-Encoding", "")
-        gz = path + ".gz"
-        # a copy older than its file (the file edited after the build) is never sent
-        coded = os.path.isfile(gz) and os.stat(gz).st_mtime_ns >= os.stat(path).st_mtime_ns and any(a.split(";")[0].strip() == "gzip" and "q=0" not in a.replace(" ", "")
-                                           for a in accepts.split(","))
-        body = gz if coded else path
+        accepts = [a.replace(" ", "") for a in self.headers.get("Accept-Encoding", "").split(",")]
+        coded = None
+        for coding, ext in (("br", ".br"), ("gzip", ".gz")):  # the smaller copy first
+            copy = path + ext
+            # a copy older than its file (the file edited after the build) is never sent
+            if (any(a.split(";")[0] == coding and "q=0" not in a for a in accepts) and os.path.isfile(copy)
+                    and os.stat(copy).st_mtime_ns >= os.stat(path).st_mtime_ns):
+                coded = (coding, copy)
+                break
+        body = coded[1] if coded else path
         st = os.stat(body)
-        etag = f'"{st.st_mtime_ns:x}-{st.st_size:x}{"-gz" if coded else ""}"'
+        etag = f'"{st.st_mtime_ns:x}-{st.st_size:x}{"-" + coded[0] if coded else ""}"'
         if self._unchanged(etag, st.st_mtime):
             self.send_response(304)
             self.send_header("ETag", etag)
@@ -71,7 +76,7 @@ class Handler(http.server.SimpleHTTPRequestHandler):
         self.send_response(200)
         self.send_header("Content-Type", self.guess_type(path))
         if coded:
-            self.send_header("Content-Encoding", "gzip")
+            self.send_header("Content-Encoding", coded[0])
         self.send_header("Vary", "Accept-Encoding")
         self.send_header("Content-Length", str(st.st_size))
         self.send_header("ETag", etag)

@@ -11,14 +11,17 @@ bodies, which run only when called: the browser tests run every worksheet and re
 archive, and tests/test_stdlib.py runs them in Pyodide under Node.js, to catch any such
 import actually used). Parsed with this Python's ``ast``; the few 3.14 files it cannot parse are
 read line by line. :func:`write_trimmed` writes the chosen files, byte for byte and in the
-original order, into a new zip with fixed timestamps (reproducible).
+original order, into a new zip with fixed timestamps (reproducible), each file's comments and
+docstrings blanked (:func:`strip_source`: 0.92 → 0.57 MB deflated; the code is unchanged).
 """
 
 from __future__ import annotations
 
 import ast
+import io
 import os
 import re
+import tokenize
 import zipfile
 
 from .common import ROOT
@@ -180,9 +183,49 @@ def needed_modules(zf: zipfile.ZipFile, roots: set[str]) -> set[str]:
     return seen
 
 
+def _docstrings(tree) -> list:
+    out = []
+    for node in ast.walk(tree):
+        if isinstance(node, (ast.Module, ast.ClassDef, ast.FunctionDef, ast.AsyncFunctionDef)) and node.body:
+            first = node.body[0]
+            if isinstance(first, ast.Expr) and isinstance(first.value, ast.Constant) and isinstance(first.value.value, str):
+                out.append(first)
+    return out
+
+
+def strip_source(text: str) -> str:
+    """``text`` with its comments removed and each docstring replaced by ``''``, every line kept
+    (tracebacks keep their line numbers). About a third of the standard library's text; it is sent
+    to every first visitor and read at every start. The result is checked: its syntax tree must be
+    the original's with empty docstrings, else ``text`` is returned unchanged (as it is for source
+    this Python cannot parse). ``__doc__`` becomes ``''``, a string like any docstring."""
+    try:
+        tree = ast.parse(text)
+        toks = list(tokenize.generate_tokens(io.StringIO(text).readline))
+    except (SyntaxError, tokenize.TokenError, ValueError):
+        return text
+    lines = text.splitlines(keepends=True)
+    edits = [(t.start, t.end, "") for t in toks if t.type == tokenize.COMMENT]
+    edits += [((d.lineno, d.col_offset), (d.end_lineno, d.end_col_offset), "''") for d in _docstrings(tree)]
+    for (row, col), (erow, ecol), rep in sorted(edits, reverse=True):
+        head = lines[row - 1][:col]
+        if not rep:  # a comment runs to the end of its line: drop the spaces before it too
+            head = head.rstrip(" \t")
+        lines[row - 1:erow] = [head + rep + lines[erow - 1][ecol:]] + ["\n"] * (erow - row)
+    out = "".join(lines)
+    try:
+        stripped = ast.parse(out)
+    except SyntaxError:
+        return text
+    for d in _docstrings(tree):
+        d.value.value = ""
+    return out if ast.dump(stripped) == ast.dump(tree) else text
+
+
 def write_trimmed(src_zip: str, dest_zip: str, roots: set[str] | None = None) -> dict:
-    """Write ``dest_zip`` holding the modules :func:`needed_modules` finds (their files byte for
-    byte, each compressed as in the original, with fixed times). Returns a summary."""
+    """Write ``dest_zip`` holding the modules :func:`needed_modules` finds (their code as in the
+    original, comments and docstrings blanked by :func:`strip_source`; deflated, with fixed times).
+    Returns a summary."""
     from .wheel import FIXED_TIME
 
     roots = app_imports() if roots is None else roots
@@ -197,5 +240,8 @@ def write_trimmed(src_zip: str, dest_zip: str, roots: set[str] | None = None) ->
                 zi = zipfile.ZipInfo(info.filename, FIXED_TIME)
                 zi.compress_type = zipfile.ZIP_DEFLATED
                 zi.external_attr = 0o644 << 16
-                out.writestr(zi, zf.read(info.filename), compresslevel=9)
+                data = zf.read(info.filename)
+                if info.filename.endswith(".py"):
+                    data = strip_source(data.decode("utf-8")).encode("utf-8")
+                out.writestr(zi, data, compresslevel=9)
     return {"modules": sorted(mods), "files": len(keep)}

@@ -1,4 +1,8 @@
-"""The app's own code (pycore/ and app/) packed as a pure-Python wheel, byte-identical for the same sources."""
+"""The app's own code (pycore/ and app/) packed as a pure-Python wheel, byte-identical for the same sources.
+
+Its entries are stored, not deflated: the build writes gzip and Brotli copies of the whole wheel
+(assemble.py), which compress across files (0.29 MB deflated per entry; stored, 0.24 MB gzipped and
+0.19 MB with Brotli on the wire). The worker unpacks it once per start either way."""
 
 from __future__ import annotations
 
@@ -42,10 +46,10 @@ def build_app_wheel(out_dir: str) -> str:
     record_lines.append(f"{info}/RECORD,,")
     files.append((f"{info}/RECORD", ("\n".join(record_lines) + "\n").encode()))
     path = os.path.join(out_dir, name)
-    with zipfile.ZipFile(path, "w", zipfile.ZIP_DEFLATED, compresslevel=9) as zf:
+    with zipfile.ZipFile(path, "w", zipfile.ZIP_STORED) as zf:
         for arc, data in files:
             zi = zipfile.ZipInfo(arc, FIXED_TIME)
-            zi.compress_type = zipfile.ZIP_DEFLATED
+            zi.compress_type = zipfile.ZIP_STORED
             zi.external_attr = 0o644 << 16
             zf.writestr(zi, data)
     return name

@@ -4,7 +4,10 @@ import hashlib
 import json
 import os
 import re
+import shutil
 import zipfile
+
+import pytest
 
 import build
 from app import OPENING_SHEET
@@ -28,12 +31,12 @@ def test_building_twice_gives_identical_output(dist):
 
 def test_precache_lists_every_file_with_its_hash(dist):
     """Every file is precached or kept on demand (the micropip path's), with its digest; the gzip
-    copies are never asked for by name (a server sends them in place of the file)."""
+    and Brotli copies are never asked for by name (a server sends them in place of the file)."""
     sw = open(os.path.join(dist, "sw.js"), encoding="utf-8").read()
     assets = json.loads(re.search(r"const ASSETS = (\[.*?\]);", sw, re.S).group(1))
     lazy = json.loads(re.search(r"const ON_DEMAND = (\[.*?\]);", sw, re.S).group(1))
     listed = {p: h for p, h in assets + lazy}
-    on_disk = {k.replace(os.sep, "/"): v for k, v in tree_digest(dist).items() if k != "sw.js" and not k.endswith(".gz")}
+    on_disk = {k.replace(os.sep, "/"): v for k, v in tree_digest(dist).items() if k != "sw.js" and not k.endswith((".gz", ".br"))}
     assert listed == on_disk and len(listed) == len(assets) + len(lazy)
     engine = json.load(open(os.path.join(dist, "engine.json")))
     assert {p for p, _ in lazy} == {"pyodide/pyodide-lock.json", engine["full_stdlib"]} | {f"wheels/{w}" for w in engine["wheels"]}
@@ -76,7 +79,7 @@ def test_server_sends_gzip_when_accepted_with_the_files_own_type(dist):
             return r, body
 
         srv.bytes_sent = 0
-        r, body = get("/pyodide/pyodide.asm.wasm", {"Accept-Encoding": "gzip, deflate, br"})
+        r, body = get("/pyodide/pyodide.asm.wasm", {"Accept-Encoding": "gzip, deflate"})
         assert r.status == 200 and r.getheader("Content-Encoding") == "gzip"
         assert r.getheader("Content-Type") == "application/wasm" and "Accept-Encoding" in r.getheader("Vary")
         assert gzip.decompress(body) == wasm and len(body) < 0.5 * len(wasm)
@@ -91,8 +94,30 @@ def test_server_sends_gzip_when_accepted_with_the_files_own_type(dist):
         assert gzip.decompress(body4) == open(os.path.join(dist, "index.html"), "rb").read()
         r5, body5 = get("/pyodide/python_stdlib.zip", {"Accept-Encoding": "gzip"})
         assert r5.getheader("Content-Encoding") is None and body5[:2] == b"PK"
+        if os.path.exists(os.path.join(dist, "pyodide", "pyodide.asm.wasm.br")):  # built with Node
+            r6, body6 = get("/pyodide/pyodide.asm.wasm", {"Accept-Encoding": "gzip, deflate, br, zstd"})
+            assert r6.getheader("Content-Encoding") == "br" and r6.getheader("Content-Type") == "application/wasm"
+            assert body6 == open(os.path.join(dist, "pyodide", "pyodide.asm.wasm.br"), "rb").read() and len(body6) < 0.85 * len(body)
+            assert r6.getheader("ETag") != r.getheader("ETag")  # one validator per coding
+            r7, _ = get("/pyodide/pyodide.asm.wasm", {"Accept-Encoding": "br;q=0, gzip"})
+            assert r7.getheader("Content-Encoding") == "gzip"
     finally:
         srv.shutdown()
+
+
+@pytest.mark.skipif(not shutil.which("node"), reason="Brotli copies are made with Node.js (npm brings it)")
+def test_brotli_copies_hold_exactly_their_files_and_beat_gzip(dist):
+    import subprocess
+
+    copies = sorted(k.replace(os.sep, "/") for k in tree_digest(dist) if k.endswith(".br"))
+    assert "pyodide/pyodide.asm.wasm.br" in copies and "pyodide/pyodide.asm.mjs.br" in copies
+    for c in copies:
+        packed = os.path.join(dist, c)
+        plain = open(os.path.join(dist, c[:-3]), "rb").read()
+        out = subprocess.run(["node", "-e", "process.stdout.write(require('zlib').brotliDecompressSync(require('fs').readFileSync(process.argv[1])))", packed],
+                             capture_output=True, check=True)
+        assert out.stdout == plain, c
+        assert os.path.getsize(packed) <= 0.97 * os.path.getsize(os.path.join(dist, c[:-3] + ".gz")), c
 
 
 def test_server_never_sends_a_gzip_copy_older_than_its_file(dist, tmp_path):
@@ -106,7 +131,7 @@ def test_server_never_sends_a_gzip_copy_older_than_its_file(dist, tmp_path):
     srv, url = build.serve_in_thread(copy)
     try:
         c = http.client.HTTPConnection("127.0.0.1", srv.server_address[1])
-        c.request("GET", "/app.css", headers={"Accept-Encoding": "gzip"})
+        c.request("GET", "/app.css", headers={"Accept-Encoding": "gzip, br"})
         r = c.getresponse()
         assert r.getheader("Content-Encoding") is None and r.read().endswith(b"/* edited */\n")
     finally:
@@ -123,6 +148,9 @@ def test_app_wheel_is_pure_python_and_complete(dist):
         assert not any(n.endswith((".so", ".pyc")) for n in names)
         record = zf.read(next(n for n in names if n.endswith("RECORD"))).decode()
         assert "app/bridge.py,sha256=" in record
+        # stored, so the copies a server sends compress across files
+        assert {i.compress_type for i in zf.infolist()} == {zipfile.ZIP_STORED}
+    assert os.path.getsize(path + ".gz") < 0.9 * os.path.getsize(path)
     with open(path, "rb") as fh:
         assert hashlib.sha256(fh.read()).hexdigest() == engine["app_wheel_sha256"]
 

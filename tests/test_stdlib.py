@@ -134,3 +134,30 @@ def test_pyodide_runs_every_worksheet_and_report_from_the_trimmed_archive(dist, 
     with zipfile.ZipFile(trimmed_zip) as zf:
         assert sorted(set(whole["files"]) - set(zf.namelist())) == []
     assert trimmed["files"] == whole["files"] and len(whole["files"]) > 50
+
+
+def test_stripped_source_keeps_code_strings_and_line_numbers():
+    from buildkit.stdlib import strip_source
+
+    src = ('"""Module doc."""\n'
+           "import os  # why\n"
+           "# a whole comment line\n"
+           "def f(x):\n"
+           "    '''Doc\n"
+           "    over lines.'''\n"
+           "    s = '# not a comment'  \n"
+           "    t = '''kept  \n"
+           "text'''\n"
+           "    return x, s, t\n"
+           "class C:\n"
+           "    \"\"\"Only a doc.\"\"\"\n")
+    out = strip_source(src)
+    assert len(out.splitlines()) == len(src.splitlines())
+    assert "why" not in out and "whole comment" not in out and "Doc" not in out and "Module doc" not in out
+    assert "'# not a comment'" in out and "'''kept  \ntext'''" in out
+    assert out.splitlines()[9] == "    return x, s, t"  # the same line as before
+    ns = {}
+    exec(compile(out, "m.py", "exec"), ns)
+    assert ns["f"](1) == (1, "# not a comment", "kept  \ntext") and ns["f"].__doc__ == "" and ns["C"].__doc__ == ""
+    assert strip_source("def f[T](x): return x  # newer syntax\n") in ("def f[T](x): return x  # newer syntax\n", "def f[T](x): return x\n")
+    assert strip_source("x = (  # unclosed\n") == "x = (  # unclosed\n"  # not parsable: unchanged

@@ -50,6 +50,18 @@ export function unpackWheel(pyodide, buf) {
 const SNAPSHOT_CACHE = "fp-snapshot";
 const snapshotKey = (info) => here(`./__snapshot/${info.app_wheel_sha256}-${info.pyodide}.bin`);
 
+/** Whether this profile has ever stored a snapshot (none on a first visit). Asked before engine.json
+ * arrives, so a first visit starts Pyodide's downloads at once instead of after that round trip
+ * and a snapshot look-up. */
+export async function maySnapshot() {
+  if (!self.caches) return false;
+  try {
+    return await caches.has(SNAPSHOT_CACHE);
+  } catch {
+    return false;
+  }
+}
+
 export async function findSnapshot(info) {
   if (!self.caches) return null;
   try {

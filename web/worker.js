@@ -5,7 +5,7 @@
 // worker-caches.js.
 import { loadPyodide } from "./pyodide/pyodide.mjs";
 import {
-  here, fetchInfo, pyodideOptions, fetchWheel, unpackWheel, findSnapshot, bootFromSnapshot, makeSnapshot,
+  here, fetchInfo, pyodideOptions, fetchWheel, unpackWheel, maySnapshot, findSnapshot, bootFromSnapshot, makeSnapshot,
   readBytecode, restoreBytecode, saveBytecode,
 } from "./worker-caches.js";
 
@@ -55,7 +55,7 @@ async function bootEngine() {
   let info = null;
   let appWheel = null;
   let booting = null;
-  if (USE_SNAPSHOT) {
+  if (USE_SNAPSHOT && await maySnapshot()) {
     info = await infoP;
     appWheel = fetchWheel(info);
     const hit = await findSnapshot(info);

@@ -16,7 +16,7 @@ Figures (milliseconds from navigation start unless noted):
   throttled_*            the same main-thread figures with CDP CPU throttling 4× (the worker is not slowed)
   precache_bytes         total bytes the service worker precaches
   js_heap_bytes          main-thread JS heap after the first result (the worker's wasm memory is separate)
-First visit (a fresh profile each time, the dev server sending gzip where it helps, CDP network
+First visit (a fresh profile each time, the dev server sending Brotli or gzip where it helps, CDP network
 emulation on the page, its workers and its service worker; `--only-visit` runs just this part):
   first_visit_bytes      bytes the server sent until the app works offline (10 Mbit/s link)
   visit_fast_result_ms   first result on screen, 10 Mbit/s down and up, 40 ms latency
@@ -405,7 +405,7 @@ def report_visits(r: dict) -> str:
     lines = [f"{'first visit (fresh profile, emulated link)':46} {'value':>10}  {'target':12} met"]
     for name, v, unit, target, ok in rows:
         lines.append(f"{name:46} {v:8.1f} {unit:2}  {target:12} {'yes' if ok else 'NO'}")
-    lines.append("(bytes as sent by the dev server, gzip where it helps, until the whole build was precached; "
+    lines.append("(bytes as sent by the dev server, Brotli or gzip where it helps, until the whole build was precached; "
                  "'works offline' also checked by an offline reload reaching a result)")
     return "\n".join(lines)
 
