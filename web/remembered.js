@@ -137,21 +137,22 @@ function withdraw() {
   showPendingAnswer();
 }
 
+const frame = () => new Promise((res) => requestAnimationFrame(res));
+
 async function earlyRecall() {
+  // Nothing here runs before the first frame (which shows the form), so it never delays it: boot.js
+  // notes that frame (a frame callback it asked for has run) when it ran before it.
+  const boot = window.__fpBoot;
+  if (!(boot && boot.framed)) await frame().then(() => new Promise((res) => setTimeout(res, 0)));
   const d = openingDraft();
   if (!d || !showsDraft(d.form, d.inputs, true)) return;
   const rec = readLocal(REMEMBERED);
   if (!rec || rec.slot !== d.slot || rec.inputs !== d.key || !rec.result || Object.keys(rec.result.field_errors || {}).length) return;
   early.state = "waiting";
-  const boot = window.__fpBoot;
-  // After the first frame (which shows the form), so drawing the result never delays it; drawn in a
-  // frame's callback, so nothing else runs between the drawing and its paint. boot.js notes the first
-  // frame (a frame callback it asked for has run) when it ran before it.
-  const frame = () => new Promise((res) => requestAnimationFrame(res));
-  const afterFirstFrame = boot && boot.framed ? frame() : frame().then(() => new Promise((res) => setTimeout(res, 0))).then(frame);
   // this build (engine.json's text, which boot.js reads; app.js has the same rule when boot.js is late)
   const buildRead = boot && boot.build ? boot.build : fetch("./engine.json").then((r) => (r.ok ? r.text() : null), () => null);
-  const [build] = await Promise.all([buildRead, afterFirstFrame]);
+  // drawn in a frame's callback, so nothing else runs between the drawing and its paint
+  const [build] = await Promise.all([buildRead, frame()]);
   const now = openingDraft(); // nothing typed meanwhile, and the same build
   if (early.state !== "waiting" || !build || rec.build !== build.trim() || !now || now.key !== d.key || !showsDraft(now.form, now.inputs, false)) {
     if (early.state === "waiting") early.state = "off";
