@@ -18,5 +18,7 @@
   var build = fetch(new URL("engine.json", document.baseURI))
     .then(function (r) { return r.ok ? r.text() : null; })
     .catch(function () { return null; });
-  window.__fpBoot = { worker: worker, early: early, build: build };
+  var boot = (window.__fpBoot = { worker: worker, early: early, build: build, framed: false });
+  // Set in the first frame when this runs before it (remembered.js draws a remembered result after it).
+  requestAnimationFrame(function () { boot.framed = true; });
 })();

@@ -8,6 +8,7 @@ blocked in these contexts so that every request passes the test's routes."""
 
 from __future__ import annotations
 
+import base64
 import contextlib
 import json
 import os
@@ -51,13 +52,14 @@ def expected_headline(inputs):
 
 
 class HeldEngine:
-    """Requests for the engine's runtime and the app wheel wait until ``release()``."""
+    """Requests for the engine's runtime and the app wheel (or ``patterns``) wait until ``release()``."""
 
     PATTERNS = ("**/pyodide/pyodide.asm.wasm", "**/wheels/*.whl")
 
-    def __init__(self, ctx):
+    def __init__(self, ctx, patterns=PATTERNS):
         self.ctx = ctx
         self.held = []
+        self.PATTERNS = patterns
         for p in self.PATTERNS:
             ctx.route(p, self._hold)
 
@@ -298,3 +300,136 @@ def test_engine_answer_replaces_a_different_remembered_one_entirely(browser, sit
         assert page.evaluate(ROWS_JS) == rows
         assert "STALE" not in page.text_content("#sheet-view")
         assert "STALE" not in page.text_content("#announce")
+
+
+# ---- drawn before the shell (web/remembered.js) ----------------------------------------------------
+SHELL = ("**/app.js",)  # the shell's entry module: held, only index.html and remembered.js have run
+EARLY_JS = """() => ({early: window.fieldphasor && window.fieldphasor.perf.early,
+    shell: !!(window.fieldphasor && window.fieldphasor.state),
+    static: document.getElementById('form').hasAttribute('data-static'),
+    remembered: document.getElementById('results').hasAttribute('data-remembered'),
+    pending: document.getElementById('headline').hasAttribute('data-pending'),
+    marks: [...document.querySelectorAll('.remembered-mark')].map(e => e.textContent)})"""
+
+
+def screen_now(page, name):
+    """What a phone shows now (Playwright's own screenshot waits for the page's load, which waits for the shell)."""
+    data = page.context.new_cdp_session(page).send("Page.captureScreenshot", {"format": "png"})["data"]
+    os.makedirs(ARTIFACTS, exist_ok=True)
+    with open(os.path.join(ARTIFACTS, f"{name}.png"), "wb") as fh:
+        fh.write(base64.b64decode(data))
+
+
+def reopen_before_shell(page):
+    """Reload with the engine and the shell held; wait until remembered.js has decided."""
+    engine, shell = HeldEngine(page.context), HeldEngine(page.context, SHELL)
+    page.reload(wait_until="commit")  # the page's load waits for the shell
+    page.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf.early")
+    s = page.evaluate(EARLY_JS)
+    assert not s["shell"] and s["static"], s  # the shell has not run: the form is index.html's
+    return engine, shell
+
+
+def test_remembered_result_is_drawn_before_the_shell_and_kept_by_it(browser, site):
+    with reopen_page(browser, site) as page:
+        page.goto(site + f"#/sheet/{SHEET}")
+        wait_ready(page)
+        edit_and_settle(page, VALUE)  # a field of the static form: the draft differs from index.html
+        inputs = page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+        want = expected_headline(inputs)
+        rows = page.evaluate(ROWS_JS)
+
+        engine, shell = reopen_before_shell(page)
+        s = page.evaluate(EARLY_JS)
+        assert s["early"] == "drawn" and s["remembered"] and not s["pending"], s
+        assert "Remembered — confirming…" in s["marks"], s
+        assert page.input_value(f"#in-{FIELD}") == VALUE  # the draft's text, put in the static form
+        assert page.evaluate(HEADLINE_JS) == want
+        assert page.evaluate(ROWS_JS) == rows
+        before = field_top(page)
+        page.evaluate("() => scrollTo(0, 0)")
+        screen_now(page, "reopen-early-390-screen")
+
+        shell.release()  # the shell takes the drawn result over as it is
+        page.wait_for_function("() => window.fieldphasor.perf.recall === 'shown'")
+        s = state(page)
+        assert s["engine"] == "starting" and s["remembered"] and s["headRemembered"] and s["value"] == VALUE, s
+        assert page.evaluate(HEADLINE_JS) == want
+        assert page.evaluate(ROWS_JS) == rows
+        assert field_top(page) == before
+
+        engine.release()
+        wait_ready(page)
+        settle(page)
+        s = state(page)
+        assert not s["remembered"] and s["marks"] == [], s
+        assert page.evaluate(HEADLINE_JS) == want
+        assert field_top(page) == before
+        page.screenshot(path=os.path.join(ARTIFACTS, "reopen-early-confirmed-390-screen.png"))
+
+
+def test_edit_before_the_shell_takes_the_early_result_away(browser, site):
+    with reopen_page(browser, site) as page:
+        page.goto(site + f"#/sheet/{SHEET}")
+        wait_ready(page)
+        edit_and_settle(page, VALUE)
+        inputs = page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+
+        engine, shell = reopen_before_shell(page)
+        assert page.evaluate(EARLY_JS)["early"] == "drawn"
+        before = field_top(page)
+        page.fill(f"#in-{FIELD}", OTHER)  # typed into index.html's form: no shell, no engine
+        s = page.evaluate(EARLY_JS)
+        assert not s["remembered"] and s["pending"] and s["marks"] == [], s
+        assert page.evaluate(ROWS_JS) == []
+        assert "pending" in page.text_content("#headline .pending-msg").lower()
+        assert field_top(page) == before
+
+        shell.release()  # the shell keeps the text typed and the pending answer
+        page.wait_for_function("() => window.fieldphasor.perf.recall === 'none'")
+        s = state(page)
+        assert s["value"] == OTHER and not s["remembered"] and s["pending"] and not s["headHidden"], s
+        assert page.evaluate("() => window.fieldphasor.state.inputs.p_kw") == OTHER
+        assert page.evaluate(ROWS_JS) == []
+        assert field_top(page) == before
+
+        engine.release()
+        wait_ready(page)
+        settle(page)
+        assert page.evaluate(HEADLINE_JS) == expected_headline({**inputs, FIELD: OTHER})
+
+
+def test_not_drawn_before_the_shell_under_another_build_or_another_choice(browser, site):
+    with reopen_page(browser, site) as page:
+        page.goto(site + f"#/sheet/{SHEET}")
+        wait_ready(page)
+        edit_and_settle(page, VALUE)
+        page.evaluate("""() => { const r = JSON.parse(localStorage.getItem('fp-remembered'));
+            r.build = r.build.replace(/[0-9a-f]{64}/, '0'.repeat(64));
+            localStorage.setItem('fp-remembered', JSON.stringify(r)); }""")
+        engine, shell = reopen_before_shell(page)
+        s = page.evaluate(EARLY_JS)
+        assert s["early"] == "none" and not s["remembered"] and s["marks"] == [], s
+        assert page.evaluate(ROWS_JS) == []
+        shell.release()
+        engine.release()
+        wait_ready(page)
+        settle(page)
+
+        # a choice in the static form that the draft holds otherwise: left to the shell, which shows
+        # and hides the fields it governs; the shell then shows the remembered result (control)
+        page.check("#in-phases-1")
+        settle(page)
+        page.wait_for_function("""() => {
+            const r = JSON.parse(localStorage.getItem('fp-remembered') || 'null');
+            return r && r.inputs.includes('["phases","1"]'); }""")
+        engine, shell = reopen_before_shell(page)
+        s = page.evaluate(EARLY_JS)
+        assert s["early"] == "none" and not s["remembered"], s
+        assert page.is_checked("#in-phases-3")  # index.html's form as served
+        shell.release()
+        page.wait_for_function("() => window.fieldphasor.perf.recall === 'shown'")
+        assert page.is_checked("#in-phases-1")
+        engine.release()
+        wait_ready(page)
+        settle(page)
