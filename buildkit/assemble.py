@@ -64,7 +64,7 @@ def build(quiet: bool = False) -> str:
     # The standard library the default start reads: only the modules the app, Pyodide and the
     # worker's paths import (buildkit/stdlib.py); the whole one is kept for the micropip path.
     full_stdlib = os.path.join(pyodide_dir, "python_stdlib.zip")
-    write_trimmed(full_stdlib, os.path.join(tmp, "pyodide", "python_stdlib.zip"))
+    write_trimmed(full_stdlib, os.path.join(tmp, "pyodide", "python_stdlib.zip"), pyodide_dir=pyodide_dir)
     shutil.copyfile(full_stdlib, os.path.join(tmp, FULL_STDLIB))
     with open(os.path.join(pyodide_dir, "pyodide-lock.json"), encoding="utf-8") as fh:
         lock_info = json.load(fh)["info"]

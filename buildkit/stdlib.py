@@ -12,7 +12,9 @@ archive, and tests/test_stdlib.py runs them in Pyodide under Node.js, to catch a
 import actually used). Parsed with this Python's ``ast``; the few 3.14 files it cannot parse are
 read line by line. :func:`write_trimmed` writes the chosen files, byte for byte and in the
 original order, into a new zip with fixed timestamps (reproducible), each file's comments and
-docstrings blanked (:func:`strip_source`: 0.92 → 0.57 MB deflated; the code is unchanged).
+docstrings blanked (:func:`strip_source`: 0.92 → 0.57 MB deflated; the code is unchanged). With
+Node.js the build then ships each module as the ``.pyc`` Pyodide's own Python compiles from that
+(buildkit/stdlib_pyc.py; 1.52 MB deflated), so a first visit's boot compiles nothing.
 """
 
 from __future__ import annotations
@@ -222,26 +224,40 @@ def strip_source(text: str) -> str:
     return out if ast.dump(stripped) == ast.dump(tree) else text
 
 
-def write_trimmed(src_zip: str, dest_zip: str, roots: set[str] | None = None) -> dict:
+def write_trimmed(src_zip: str, dest_zip: str, roots: set[str] | None = None, pyodide_dir: str | None = None) -> dict:
     """Write ``dest_zip`` holding the modules :func:`needed_modules` finds (their code as in the
     original, comments and docstrings blanked by :func:`strip_source`; deflated, with fixed times).
-    Returns a summary."""
-    from .wheel import FIXED_TIME
+    With ``pyodide_dir``, each module ships instead as the ``.pyc`` that Pyodide's own Python
+    compiles from that blanked source (buildkit/stdlib_pyc.py), or as source if that step is not
+    available. Returns a summary."""
+    from .stdlib_pyc import compile_archive
 
     roots = app_imports() if roots is None else roots
     with zipfile.ZipFile(src_zip) as zf:
         mods = needed_modules(zf, roots)
         names = set(zf.namelist())
         keep = {_source_path(names, m) for m in mods}
-        with zipfile.ZipFile(dest_zip, "w") as out:
-            for info in zf.infolist():
-                if info.filename not in keep:
-                    continue
-                zi = zipfile.ZipInfo(info.filename, FIXED_TIME)
-                zi.compress_type = zipfile.ZIP_DEFLATED
-                zi.external_attr = 0o644 << 16
+        files = []
+        for info in zf.infolist():
+            if info.filename in keep:
                 data = zf.read(info.filename)
                 if info.filename.endswith(".py"):
                     data = strip_source(data.decode("utf-8")).encode("utf-8")
-                out.writestr(zi, data, compresslevel=9)
-    return {"modules": sorted(mods), "files": len(keep)}
+                files.append((info.filename, data))
+    _write_zip(dest_zip, files)
+    compiled = compile_archive(dest_zip, pyodide_dir) if pyodide_dir else None
+    if compiled:
+        files = [(n + "c", compiled[n + "c"]) if n + "c" in compiled else (n, d) for n, d in files]
+        _write_zip(dest_zip, files)
+    return {"modules": sorted(mods), "files": len(keep), "compiled": bool(compiled)}
+
+
+def _write_zip(dest_zip: str, files) -> None:
+    from .wheel import FIXED_TIME
+
+    with zipfile.ZipFile(dest_zip, "w") as out:
+        for name, data in files:
+            zi = zipfile.ZipInfo(name, FIXED_TIME)
+            zi.compress_type = zipfile.ZIP_DEFLATED
+            zi.external_attr = 0o644 << 16
+            out.writestr(zi, data, compresslevel=9)

@@ -1,7 +1,7 @@
 // Runs the app in Pyodide under Node.js (the same runtime and Python 3.14 as the browser) from a
 // built dist/, with the standard-library archive given, and prints JSON: the standard-library
-// modules loaded from that archive, each worksheet's default result and each report format's
-// text for the job in JOB_JSON. Used by tests/test_stdlib.py.
+// modules loaded from that archive (the files behind them), the interpreter's .pyc magic number,
+// each worksheet's default result and each report format's text for the job in JOB_JSON. Used by tests/test_stdlib.py.
 // Usage: node pyodide_node_check.mjs DIST STDLIB_ZIP JOB_JSON
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -19,7 +19,7 @@ const site = py.runPython("import sys\n[p for p in sys.path if p.endswith('site-
 py.unpackArchive(new Uint8Array(readFileSync(join(dist, "wheels", info.app_wheel))), "wheel", { extractDir: site });
 py.globals.set("job_text", readFileSync(jobFile, "utf-8"));
 const out = py.runPython(`
-import json, sys
+import importlib.util, json, sys
 base = set(sys.modules)
 from app import bridge, bytecache, snapshot
 snapshot.prepare()  # every worksheet on its defaults, every report format, jobs export/validate
@@ -27,6 +27,7 @@ bytecache.archive(base)
 out = {
     "results": {s: bridge.compute(s, "{}") for s in bridge.sheets()},
     "reports": {f: bridge.report(job_text, f, '{"date": "2000-01-01"}') for f in ("html", "text", "csv")},
+    "magic": importlib.util.MAGIC_NUMBER.hex(),  # what this interpreter's .pyc files start with
     # the archive's files behind every loaded module (frozen and aliased modules name theirs too)
     "files": sorted({f.split(".zip/", 1)[1] for m in list(sys.modules.values())
                      if ".zip/" in (f := getattr(m, "__file__", None) or "")}),

@@ -12,6 +12,10 @@ Two checks, because CPython 3.11 here and Pyodide's Python 3.14 import different
   loads for that work when it has the whole library are all in the trimmed archive (so a module
   whose import a library catches and works around is not silently missing either).
 The browser tests run from the same trimmed archive (it is dist/pyodide/python_stdlib.zip).
+With Node.js at build time its modules ship as .pyc compiled by Pyodide's own Python
+(buildkit/stdlib_pyc.py), with no source beside them: a .pyc Pyodide could not load (another
+magic number) would make the Pyodide run fail, and the archive's .pyc headers are checked
+against the magic number that run reports.
 """
 
 import json
@@ -30,12 +34,18 @@ NODE = shutil.which("node")
 
 
 def archive_modules(path):
+    """The modules in a standard-library zip, as source (.py) or compiled (.pyc)."""
     out = set()
     with zipfile.ZipFile(path) as zf:
         for n in zf.namelist():
-            if n.endswith(".py"):
-                out.add(n[:-3].replace("/", ".").removesuffix(".__init__"))
+            if n.endswith((".py", ".pyc")):
+                out.add(n.removesuffix("c")[:-3].replace("/", ".").removesuffix(".__init__"))
     return out
+
+
+def as_source(name: str) -> str:
+    """An archive file's name with a .pyc named as its source (.py)."""
+    return name.removesuffix("c") if name.endswith(".pyc") else name
 
 
 def same_cells(a: str, b: str) -> bool:
@@ -132,8 +142,39 @@ def test_pyodide_runs_every_worksheet_and_report_from_the_trimmed_archive(dist, 
             assert got == ref, fmt
     # what 3.14 loads for that work with the whole library at hand is all in the trimmed one
     with zipfile.ZipFile(trimmed_zip) as zf:
-        assert sorted(set(whole["files"]) - set(zf.namelist())) == []
-    assert trimmed["files"] == whole["files"] and len(whole["files"]) > 50
+        names = zf.namelist()
+        assert sorted(set(whole["files"]) - {as_source(n) for n in names}) == []
+        compiled = {n: zf.read(n)[:8] for n in names if n.endswith(".pyc")}
+    assert {as_source(f) for f in trimmed["files"]} == set(whole["files"]) and len(whole["files"]) > 50
+    if compiled:  # built with Node.js: bytecode for Pyodide's interpreter, and it is what was loaded
+        assert {n for n in names if n.endswith(".py")} == set(), "source shipped beside bytecode"
+        magic = bytes.fromhex(trimmed["magic"])
+        assert sorted(n for n, head in compiled.items() if head[:4] != magic) == []
+        assert sorted(n for n, head in compiled.items() if head[4:8] != (1).to_bytes(4, "little")) == []  # unchecked hash
+        # loaded from bytecode (the .py names left are frozen modules, which name their source)
+        assert len([f for f in trimmed["files"] if f.endswith(".pyc")]) > 50
+
+
+@pytest.mark.skipif(not NODE, reason="Node.js is not installed")
+def test_build_ships_the_standard_library_compiled_when_node_is_there(dist):
+    with zipfile.ZipFile(os.path.join(dist, "pyodide", "python_stdlib.zip")) as zf:
+        names = zf.namelist()
+    assert names and all(n.endswith(".pyc") for n in names)
+
+
+def test_without_node_the_archive_ships_source(tmp_path, monkeypatch):
+    from buildkit import stdlib_pyc
+    from buildkit.fetch import fetch_pyodide
+    from buildkit.stdlib import write_trimmed
+
+    monkeypatch.setattr(stdlib_pyc, "CACHE", str(tmp_path / "cache"))  # nothing compiled yet
+    monkeypatch.setattr(stdlib_pyc.shutil, "which", lambda name: None)
+    pyodide_dir = fetch_pyodide()
+    dest = str(tmp_path / "stdlib.zip")
+    summary = write_trimmed(os.path.join(pyodide_dir, "python_stdlib.zip"), dest, roots={"json"}, pyodide_dir=pyodide_dir)
+    with zipfile.ZipFile(dest) as zf:
+        names = zf.namelist()
+    assert not summary["compiled"] and "json/__init__.py" in names and not [n for n in names if n.endswith(".pyc")]
 
 
 def test_stripped_source_keeps_code_strings_and_line_numbers():
