@@ -130,12 +130,6 @@ def _candidates(need_rated: float, ratings, tried) -> list[tuple[str, tuple, Ste
     return list(seen.values())
 
 
-def _may_be_acceptable(need_rated: float, ratings, w) -> bool:
-    # every step holds at least one unit, so the total is at least the smallest unit × Σw
-    small = min((r for r in ratings if isinstance(r, (int, float)) and r > 0), default=0.0)
-    return small * sum(w) <= (1 + ACCEPTABLE_EXCESS) * need_rated + 1e-9
-
-
 @guarded
 def three_plans(need_rated: float, ratings, factor: float, full: Load, target_pf: float,
                 light: Load | None = None, max_steps: int = MAX_STEPS) -> list:
@@ -159,7 +153,9 @@ def three_plans(need_rated: float, ratings, factor: float, full: Load, target_pf
     tried = _patterns(max_steps)
     # plans that cannot be acceptable (a huge binary pattern of small units) are worked out only
     # when no acceptable plan exists: they could not be offered otherwise
-    hopeful = [t for t in tried if _may_be_acceptable(need_rated, ratings, t[1])]
+    # every step holds at least one unit, so a plan's total is at least the smallest unit × Σw
+    small = min((r for r in ratings if isinstance(r, (int, float)) and r > 0), default=0.0)
+    hopeful = [t for t in tried if small * sum(t[1]) <= (1 + ACCEPTABLE_EXCESS) * need_rated + 1e-9]
     rows = [(c, info(c)) for c in _candidates(need_rated, ratings, hopeful)]
     pool = [r for r in rows if r[1][3]]
     if not pool:

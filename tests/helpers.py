@@ -9,7 +9,10 @@ the browser receives, lists where Python held tuples.
 
 from __future__ import annotations
 
+import csv
+import io
 import json
+import math
 import os
 
 from app import registry
@@ -78,3 +81,20 @@ def bridge_demo() -> dict:
     from app import bridge  # the JSON door itself is what these tests look at
 
     return json.loads(bridge.demo_job())
+
+
+def same_csv_cells(a: str, b: str) -> bool:
+    """Two CSV texts with the same rows and cells, numbers equal to 1e-12 (relative): full-precision
+    floats may differ in the last digit between Python versions (3.12+ sums with compensation)."""
+    ra, rb = list(csv.reader(io.StringIO(a))), list(csv.reader(io.StringIO(b)))
+    if [len(r) for r in ra] != [len(r) for r in rb]:
+        return False
+    for x, y in zip((c for r in ra for c in r), (c for r in rb for c in r)):
+        if x == y:
+            continue
+        try:
+            if not math.isclose(float(x), float(y), rel_tol=1e-12):
+                return False
+        except ValueError:
+            return False
+    return True

@@ -28,6 +28,7 @@ import zipfile
 import pytest
 
 import build
+from helpers import same_csv_cells
 from buildkit.assemble import FULL_STDLIB
 
 NODE = shutil.which("node")
@@ -46,26 +47,6 @@ def archive_modules(path):
 def as_source(name: str) -> str:
     """An archive file's name with a .pyc named as its source (.py)."""
     return name.removesuffix("c") if name.endswith(".pyc") else name
-
-
-def same_cells(a: str, b: str) -> bool:
-    """Two CSV texts with the same cells, numbers equal to 12 significant digits."""
-    import csv
-    import io
-    import math
-
-    ra, rb = list(csv.reader(io.StringIO(a))), list(csv.reader(io.StringIO(b)))
-    if [len(r) for r in ra] != [len(r) for r in rb]:
-        return False
-    for x, y in zip((c for r in ra for c in r), (c for r in rb for c in r)):
-        if x == y:
-            continue
-        try:
-            if not math.isclose(float(x), float(y), rel_tol=1e-12):
-                return False
-        except ValueError:
-            return False
-    return True
 
 
 CPYTHON_RUN = r"""
@@ -137,7 +118,7 @@ def test_pyodide_runs_every_worksheet_and_report_from_the_trimmed_archive(dist, 
         got, ref = json.loads(text), json.loads(bridge.report(demo, fmt, '{"date": "2000-01-01"}'))
         assert got["ok"] and got.keys() == ref.keys(), fmt
         if fmt == "csv":  # raw values may differ in the last bit (another libm): compare as numbers
-            assert same_cells(got["text"], ref["text"])
+            assert same_csv_cells(got["text"], ref["text"])
         else:
             assert got == ref, fmt
     # what 3.14 loads for that work with the whole library at hand is all in the trimmed one

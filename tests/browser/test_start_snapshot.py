@@ -3,12 +3,11 @@ restored engine answers exactly as CPython does; a snapshot that fails its check
 
 from __future__ import annotations
 
-import csv
-import io
 import json
-import math
 
 from app import bridge
+
+from helpers import same_csv_cells
 
 from .conftest import PHONE, cpython_compute, guarded_page, settle, wait_ready
 
@@ -67,26 +66,8 @@ def test_later_start_restores_snapshot_and_every_worksheet_answers_as_cpython(br
             if fmt == "csv":
                 # CSV carries full-precision floats; Python 3.12+ sums floats with compensation, so
                 # the last digit may differ from this CPython's. Numbers agree to 1e-12, text exactly.
-                assert same_csv(got.pop("text"), want.pop("text"))
+                assert same_csv_cells(got.pop("text"), want.pop("text"))
             assert got == want, fmt
-
-
-def same_csv(a: str, b: str) -> bool:
-    ra, rb = list(csv.reader(io.StringIO(a))), list(csv.reader(io.StringIO(b)))
-    if len(ra) != len(rb):
-        return False
-    for row_a, row_b in zip(ra, rb):
-        if len(row_a) != len(row_b):
-            return False
-        for x, y in zip(row_a, row_b):
-            if x == y:
-                continue
-            try:
-                if not math.isclose(float(x), float(y), rel_tol=1e-12):
-                    return False
-            except ValueError:
-                return False
-    return True
 
 
 def test_snapshot_that_fails_its_check_is_refused_and_engine_boots_normally(browser, site):
