@@ -66,11 +66,57 @@ export async function findSnapshot(info) {
   if (!self.caches) return null;
   try {
     const hit = await (await caches.open(SNAPSHOT_CACHE)).match(snapshotKey(info));
-    return hit && hit.headers.get("x-fp-probe") ? hit : null;
+    return hit && hit.headers.get("x-fp-probe") && hit.headers.get("x-fp-layout") ? hit : null;
   } catch (err) {
     console.warn("snapshot cache not readable:", err);
     return null;
   }
+}
+
+// A snapshot is the interpreter's whole memory, about half of it zero pages (never touched, or
+// above the heap's top). It is stored without them: the body holds the non-zero runs of 4 KiB
+// pages, and the x-fp-layout header "size;offset:length,…" says where each run goes. Half the
+// bytes to read back from Cache Storage, which took most of a warm start's wait.
+const PAGE = 4096;
+
+export function packSnapshot(bytes) {
+  if (bytes.byteOffset % 4) bytes = bytes.slice(); // a Uint32Array view needs an aligned start
+  const words = new Uint32Array(bytes.buffer, bytes.byteOffset, bytes.byteLength >>> 2);
+  const pages = Math.ceil(bytes.length / PAGE);
+  const runs = [];
+  let start = -1;
+  for (let p = 0; p <= pages; p++) {
+    let used = false; // p === pages: past the end, closes the last run
+    for (let i = (p * PAGE) >>> 2, end = Math.min(((p + 1) * PAGE) >>> 2, words.length); i < end; i++) {
+      if (words[i] !== 0) { used = true; break; }
+    }
+    // the last bytes of a length that is not a whole number of words
+    for (let i = Math.max(words.length * 4, p * PAGE); !used && i < Math.min((p + 1) * PAGE, bytes.length); i++) used = bytes[i] !== 0;
+    if (used && start < 0) start = p;
+    if (!used && start >= 0) {
+      runs.push([start * PAGE, Math.min(p * PAGE, bytes.length) - start * PAGE]);
+      start = -1;
+    }
+  }
+  const body = new Uint8Array(runs.reduce((n, [, len]) => n + len, 0));
+  let at = 0;
+  for (const [off, len] of runs) { body.set(bytes.subarray(off, off + len), at); at += len; }
+  return { body, layout: `${bytes.length};${runs.map(([o, l]) => `${o}:${l}`).join(",")}` };
+}
+
+/** The whole memory again from a packed body and its layout; throws when they do not fit. */
+export function unpackSnapshot(body, layout) {
+  const [size, list] = String(layout).split(";");
+  const out = new Uint8Array(Number(size));
+  let at = 0;
+  for (const run of list ? list.split(",") : []) {
+    const [off, len] = run.split(":").map(Number);
+    if (!(len > 0) || !(off >= 0) || off + len > out.length || at + len > body.length) throw new Error("its layout does not fit");
+    out.set(body.subarray(at, at + len), off);
+    at += len;
+  }
+  if (at !== body.length) throw new Error("its layout does not fit");
+  return out;
 }
 
 async function dropSnapshot(info) {
@@ -82,7 +128,9 @@ async function dropSnapshot(info) {
 // recorded when it was made. Returns the interpreter, or null after discarding a bad snapshot.
 export async function bootFromSnapshot(info, hit, appWheel, pyodideOpts, mark) {
   try {
-    const pyodide = await loadPyodide({ ...pyodideOpts, _loadSnapshot: hit.arrayBuffer() });
+    const memory = hit.arrayBuffer().then((buf) => unpackSnapshot(new Uint8Array(buf), hit.headers.get("x-fp-layout")));
+    memory.catch(() => {}); // handled: loadPyodide awaits it and the catch below reports it
+    const pyodide = await loadPyodide({ ...pyodideOpts, _loadSnapshot: memory });
     mark("snapshot-restored");
     unpackWheel(pyodide, await appWheel);
     const probe = pyodide.runPython("from app import snapshot\nsnapshot.probe()");
@@ -97,7 +145,7 @@ export async function bootFromSnapshot(info, hit, appWheel, pyodideOpts, mark) {
   }
 }
 
-/** Boot a fresh interpreter, prepare it and store its memory snapshot; returns the snapshot's size. */
+/** Boot a fresh interpreter, prepare it and store its memory snapshot (packed); returns the bytes stored. */
 export async function makeSnapshot(pyodideOpts) {
   const info = await fetchInfo();
   const appWheel = fetchWheel(info);
@@ -105,12 +153,13 @@ export async function makeSnapshot(pyodideOpts) {
   unpackWheel(pyodide, await appWheel);
   // imports every worksheet and runs each on its defaults: no user data is ever in a snapshot
   const probe = pyodide.runPython("from app import snapshot\nsnapshot.prepare()");
-  const bytes = pyodide.makeMemorySnapshot();
+  const { body, layout } = packSnapshot(pyodide.makeMemorySnapshot());
   const cache = await caches.open(SNAPSHOT_CACHE);
   const key = snapshotKey(info);
-  await cache.put(key, new Response(bytes, { headers: { "Content-Type": "application/octet-stream", "x-fp-probe": probe } }));
+  const headers = { "Content-Type": "application/octet-stream", "x-fp-probe": probe, "x-fp-layout": layout };
+  await cache.put(key, new Response(body, { headers }));
   for (const req of await cache.keys()) if (req.url !== key) await cache.delete(req); // keep only this build's
-  return bytes.length;
+  return body.length;
 }
 
 // ---- bytecode cache (see app/bytecache.py): compile once per build, not on every start ----

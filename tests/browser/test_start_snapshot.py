@@ -75,18 +75,22 @@ def test_snapshot_that_fails_its_check_is_refused_and_engine_boots_normally(brow
         first_visit_until_snapshot(page, site)
         key = page.evaluate("async () => (await (await caches.open('fp-snapshot')).keys())[0].url")
         real = "async (key) => new Uint8Array(await (await (await caches.open('fp-snapshot')).match(key)).arrayBuffer())"
-        tamper = """async ([key, kind]) => {
+        layout = page.evaluate("async (key) => (await (await caches.open('fp-snapshot')).match(key)).headers.get('x-fp-layout')", key)
+        tamper = """async ([key, kind, layout]) => {
             const c = await caches.open('fp-snapshot');
             // 'label': a real snapshot whose recorded probe digest is not what it computes;
-            // 'bytes': not a snapshot at all, under a plausible label
+            // 'bytes': not a snapshot at all, under a plausible label and the real layout
             const body = kind === 'label' ? window.__realSnapshot : new Uint8Array(4096);
-            await c.put(key, new Response(body, {headers: {'x-fp-probe': '0'.repeat(64)}}));
+            const headers = {'x-fp-probe': '0'.repeat(64), 'x-fp-layout': layout};
+            await c.put(key, new Response(body, {headers}));
         }"""
         page.context.set_offline(True)  # the refusals, and the snapshot made again, all offline
         for kind in ("label", "bytes"):
             if kind == "label":
                 page.evaluate(f"async (key) => {{ window.__realSnapshot = await ({real})(key); }}", key)
-            page.evaluate(tamper, [key, kind])
+                # stored without its zero pages: the body is well under the memory it restores
+                assert 0 < page.evaluate("() => window.__realSnapshot.length") < int(layout.split(";")[0]) * 0.8
+            page.evaluate(tamper, [key, kind, layout])
             page.reload()
             wait_ready(page)
             settle(page)
