@@ -46,8 +46,14 @@ export function showAnswerBar(res, remembered = false) {
   announce(remembered ? `Remembered result, being confirmed. ${first ? `${first.label}: ${first.display}` : ""}` : res.ok ? `Updated. ${first ? `${first.label}: ${first.display}` : ""}` : `${nErr || "An"} input${nErr === 1 ? "" : "s"} need${nErr === 1 ? "s" : ""} attention. ${Object.values(res.field_errors || {}).join(" ")} ${res.error || ""}`);
 }
 
+/** The engine pill's words while it starts: "Checking…" while a remembered result is on screen (on a
+ * phone the headline's own mark can be clipped by its three-line clamp; the pill always shows). */
+export const ENGINE_STARTING = { plain: "Starting…", remembered: "Checking…" };
+
 /** Mark the result on screen as remembered (not yet confirmed), or clear the mark. */
 export function markRemembered(on) {
+  const pill = $("engine");
+  if (pill && pill.dataset.state === "starting") pill.textContent = ENGINE_STARTING[on ? "remembered" : "plain"];
   const head = $("headline");
   $("results").toggleAttribute("data-remembered", on);
   head.toggleAttribute("data-remembered", on);

@@ -115,7 +115,11 @@ def test_reopened_draft_shows_its_remembered_result_before_the_engine(browser, s
         assert s["recall"] == "shown" and s["remembered"] and s["headRemembered"], s
         assert s["value"] == VALUE
         assert "Remembered — confirming…" in s["marks"], s
-        assert page.is_visible("#headline .remembered-mark")
+        # on a phone the headline's three-line clamp would clip its border mark, so the engine pill
+        # says it instead, and the results open with the note
+        assert not page.is_visible("#headline .remembered-mark")
+        assert page.text_content("#engine") == "Checking…"
+        assert page.is_visible("#results-body .remembered-mark")
         assert page.evaluate(HEADLINE_JS) == want
         assert page.evaluate(ROWS_JS) == rows
         before = field_top(page)
@@ -154,6 +158,7 @@ def test_edit_before_the_engine_shows_pending_never_the_old_answer(browser, site
         s = state(page)
         assert s["engine"] == "starting"
         assert not s["remembered"] and not s["headRemembered"] and s["marks"] == [], s
+        assert page.text_content("#engine") == "Starting…"  # nothing remembered on screen now
         assert s["pending"] and not s["headHidden"], s
         assert "pending" in page.text_content("#headline .pending-msg").lower()
         assert page.evaluate(ROWS_JS) == []  # no answer on screen for the new reading
