@@ -14,6 +14,7 @@ from dataclasses import dataclass
 
 from .capacitor import PROTECTION_RANGE, conductor_basis
 from .errors import InputError, guarded
+from .numtext import sig
 from .references import cite, ref
 
 CONFIRM = "Confirm with the capacitor and device makers' instructions."
@@ -89,7 +90,8 @@ def fuse(i_n: float, series: str = "iec") -> Device:
     if r is None:
         note = f"Above the largest standard rating ({RATING_SERIES[series][-1]} A): split the circuit. {CONFIRM}"
     elif not ok:
-        note = f"No standard rating falls inside {lo:.0f}–{hi:.0f} A; the next one up is {r:g} A. {CONFIRM}"
+        # the range to 3 figures, as the specification lists it (whole amperes once read 59.5 A as 60)
+        note = f"No standard rating falls inside {sig(lo)}–{sig(hi)} A; the next one up is {r:g} A, above the range. {CONFIRM}"
     else:
         note = CONFIRM
     return Device("fuse gG", lo, hi, r, ok, None, SOURCE_FUSE, note)

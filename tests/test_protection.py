@@ -25,6 +25,11 @@ def test_fuse_ranges_by_hand():
     # 30 A → 42.9–49.5 A: no IEC rating inside, the next up is 50 A and it is flagged
     g = protection.fuse(30.0, "iec")
     assert g.rating_a == 50 and not g.in_range and "50 A" in g.note
+    # 36.08 A → 51.6–59.5 A: the note gives the range as the specification does, so the next
+    # rating up (63 A IEC, 60 A NEC) never reads as if it were inside it
+    for series, up in (("iec", "63 A"), ("nec", "60 A")):
+        n = protection.fuse(36.08, series)
+        assert not n.in_range and "51.6–59.5 A" in n.note and f"next one up is {up}, above the range" in n.note
     # beyond the series
     assert protection.fuse(1000.0, "iec").rating_a is None
     assert all(protection.CONFIRM in d.note for d in (f, g, protection.breaker(100.0)))
