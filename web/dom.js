@@ -62,31 +62,37 @@ export function clear(el) {
  * Make `parent`'s children the nodes of `items` ([{key, make}]) in order, reusing a child drawn
  * before for the same key (a string of the data it shows) and calling `make()` only for new keys.
  * A recompute that changes a few values then touches a few nodes, and what the user opened (a
- * "How" disclosure) stays open where its result did not change.
+ * "How" disclosure) stays open where its result did not change. Children no item reuses are
+ * removed first, so a kept child that is already in order is never moved (moving a node in the
+ * live page costs as much as drawing it).
  */
 export function reconcile(parent, items) {
   const old = new Map();
-  for (const n of parent.children) {
+  for (let n = parent.firstElementChild; n; n = n.nextElementSibling) {
     if (n.__key === undefined) continue;
     const pool = old.get(n.__key);
     if (pool) pool.push(n);
     else old.set(n.__key, [n]);
   }
-  let at = parent.firstChild;
-  for (const it of items) {
+  const nodes = items.map((it) => {
     const pool = old.get(it.key);
-    let node = pool && pool.shift();
+    return (pool && pool.shift()) || null;
+  });
+  const kept = new Set(nodes);
+  for (let n = parent.firstChild; n;) {
+    const next = n.nextSibling;
+    if (!kept.has(n)) n.remove();
+    n = next;
+  }
+  let at = parent.firstChild;
+  items.forEach((it, i) => {
+    let node = nodes[i];
     if (!node) {
       node = it.make();
       node.__key = it.key;
     }
     if (node === at) at = at.nextSibling;
     else parent.insertBefore(node, at);
-  }
-  while (at) {
-    const next = at.nextSibling;
-    at.remove();
-    at = next;
-  }
+  });
   return parent;
 }
