@@ -1,5 +1,5 @@
 // Tiny DOM builder: elements from tag, attributes and children. Text is always set as text
-// (never parsed as HTML); SVG from Python is parsed as an SVG document, not as HTML.
+// (never parsed as HTML); SVG from Python is parsed by the XML parser, not as HTML.
 export function h(tag, attrs = {}, ...children) {
   const el = document.createElement(tag);
   for (const [k, v] of Object.entries(attrs || {})) {
@@ -35,13 +35,31 @@ export function fromTree(node) {
   return el;
 }
 
-const parser = new DOMParser();
+// SVG text is parsed by the XML parser as a fragment in one blank XML document kept for the purpose
+// (no browsing context: nothing in it runs or loads), then adopted into the page once cleaned. A
+// fresh DOMParser document per figure gave the same nodes at about three times the cost.
+let xmlRange = null;
+
+function parseXml(text) {
+  if (!xmlRange) {
+    const doc = new DOMParser().parseFromString("<figure/>", "application/xml");
+    xmlRange = doc.createRange();
+    xmlRange.selectNodeContents(doc.documentElement);
+  }
+  try {
+    return xmlRange.createContextualFragment(text);
+  } catch {
+    return null; // not well-formed XML
+  }
+}
 
 /** Parse SVG text from the app's Python code into a node; drops any script or event attribute. */
 export function svgNode(text) {
-  const doc = parser.parseFromString(text, "image/svg+xml");
-  const root = doc.documentElement;
-  if (root.nodeName !== "svg" || doc.getElementsByTagName("parsererror").length) {
+  const frag = parseXml(text);
+  const root = frag && frag.firstElementChild;
+  // as a document would: one root element, an <svg>, and no text beside it
+  if (!root || root.nodeName !== "svg" || frag.childElementCount !== 1 ||
+      [...frag.childNodes].some((n) => n.nodeType === Node.CDATA_SECTION_NODE || (n.nodeType === Node.TEXT_NODE && n.textContent.trim()))) {
     return h("p", { class: "muted", text: "This figure could not be drawn." });
   }
   for (const bad of root.querySelectorAll("script, foreignObject")) bad.remove();
@@ -50,7 +68,7 @@ export function svgNode(text) {
       if (/^on/i.test(a.name) || /^\s*javascript:/i.test(a.value)) el.removeAttribute(a.name);
     }
   }
-  return document.importNode(root, true);
+  return document.adoptNode(root);
 }
 
 export function clear(el) {
@@ -62,31 +80,37 @@ export function clear(el) {
  * Make `parent`'s children the nodes of `items` ([{key, make}]) in order, reusing a child drawn
  * before for the same key (a string of the data it shows) and calling `make()` only for new keys.
  * A recompute that changes a few values then touches a few nodes, and what the user opened (a
- * "How" disclosure) stays open where its result did not change.
+ * "How" disclosure) stays open where its result did not change. Children no item reuses are
+ * removed first, so a kept child that is already in order is never moved (moving a node in the
+ * live page costs as much as drawing it).
  */
 export function reconcile(parent, items) {
   const old = new Map();
-  for (const n of parent.children) {
+  for (let n = parent.firstElementChild; n; n = n.nextElementSibling) {
     if (n.__key === undefined) continue;
     const pool = old.get(n.__key);
     if (pool) pool.push(n);
     else old.set(n.__key, [n]);
   }
-  let at = parent.firstChild;
-  for (const it of items) {
+  const nodes = items.map((it) => {
     const pool = old.get(it.key);
-    let node = pool && pool.shift();
+    return (pool && pool.shift()) || null;
+  });
+  const kept = new Set(nodes);
+  for (let n = parent.firstChild; n;) {
+    const next = n.nextSibling;
+    if (!kept.has(n)) n.remove();
+    n = next;
+  }
+  let at = parent.firstChild;
+  items.forEach((it, i) => {
+    let node = nodes[i];
     if (!node) {
       node = it.make();
       node.__key = it.key;
     }
     if (node === at) at = at.nextSibling;
     else parent.insertBefore(node, at);
-  }
-  while (at) {
-    const next = at.nextSibling;
-    at.remove();
-    at = next;
-  }
+  });
   return parent;
 }
