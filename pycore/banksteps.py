@@ -320,7 +320,7 @@ def plan_steps(need_kvar: float, ratings, weights, max_states: int = MAX_STATES)
         raise InputError("The kvar needed must be above zero.")
     _check_count(need_kvar, vals)
     g, ints = _grid(vals)
-    return _plan_on_grid(need_kvar, vals, g, ints, w, max_states, {})
+    return _plan_on_grid(need_kvar, vals, g, ints, w, max_states, {}, {})
 
 
 @guarded
@@ -339,10 +339,11 @@ def plan_steps_many(need_kvar: float, ratings, weight_lists, max_states: int = M
     except InputError:
         return []
     bases: dict = {}
+    made: dict = {}
     out = []
     for weights in weight_lists:
         try:
-            out.append(_plan_on_grid(need_kvar, vals, g, ints, _weights(weights), max_states, bases))
+            out.append(_plan_on_grid(need_kvar, vals, g, ints, _weights(weights), max_states, bases, made))
         except (ArithmeticError, ValueError):  # InputError included: as plan_steps would raise it
             out.append(None)
     return out
@@ -356,10 +357,10 @@ def _weights(weights) -> list[int]:
 
 
 def _plan_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[int], w: list[int], max_states: int,
-                  bases: dict) -> StepPlan:
-    """plan_steps on a grid already worked out; ``bases`` keeps each Σw's base selection."""
+                  bases: dict, made: dict) -> StepPlan:
+    """plan_steps on a grid already worked out; ``bases`` keeps each Σw's base selection and
+    ``made`` each step size's (kvar, units), shared by the plans of one need."""
     wsum = sum(w)
-    kmax = max(ints)
     # least excess: the base b is the smallest reachable unit sum with b·Σw ≥ need
     hit = bases.get(wsum)
     if hit is None:
@@ -367,22 +368,34 @@ def _plan_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[i
         hit = bases[wsum] = _select_on_grid(need_kvar / wsum, vals, g, ints, max_states)
     base, base_idx = hit
     top = min(max_states, base * max(w))
-    count, last = _min_count_table(ints, top)
     steps, units = [], []
-    base_units = None
     for x in w:
-        idx = _fewest_exact(base * x, ints, count, last, top, kmax)
-        if idx is None:  # w_i copies of the base's own units always sum exactly
-            if base_units is None:
-                base_units = tuple(sorted((vals[i] for i in base_idx), reverse=True))
-            units.append(tuple(sorted(base_units * x, reverse=True)))
-        else:
-            units.append(tuple(sorted((vals[i] for i in idx), reverse=True)))
-        steps.append(_kvar(base * x, g))
+        # within the table a step of s grid steps has the same units in every plan (the fewest that
+        # sum exactly to s: an entry does not depend on how far the table was built); beyond it they
+        # may come from the base's own units, so the base is part of the key there
+        s = base * x
+        key = s if s <= max_states else (s, base)
+        step = made.get(key)
+        if step is None:
+            step = made[key] = (_kvar(s, g), _step_units(s, x, vals, ints, top, base_idx))
+        steps.append(step[0])
+        units.append(step[1])
     n_units = sum(len(u) for u in units)
     if n_units > MAX_UNITS:
         raise InputError(f"This step plan needs {n_units} units: use fewer steps, another pattern or larger unit ratings.")
     return StepPlan(tuple(steps), tuple(units), _kvar(base, g), _kvar(base * wsum, g))
+
+
+def _step_units(s: int, x: int, vals: list[float], ints: list[int], top: int, base_idx: list[int]) -> tuple:
+    """The units [kvar] (largest first) of a step of s = x·base grid steps: the fewest summing
+    exactly to s (the table built to ``top``), else x copies of the base's own units (which
+    always sum exactly)."""
+    count, last = _min_count_table(ints, top)
+    idx = _fewest_exact(s, ints, count, last, top, max(ints))
+    if idx is None:
+        base_units = tuple(sorted((vals[i] for i in base_idx), reverse=True))
+        return tuple(sorted(base_units * x, reverse=True))
+    return tuple(sorted((vals[i] for i in idx), reverse=True))
 
 
 def _fewest_exact(s: int, ints: list[int], count: list[int], last: list[int], top: int, kmax: int) -> list[int] | None:
