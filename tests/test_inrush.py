@@ -119,6 +119,30 @@ def test_detuned_reactor_limits_inrush_and_plain_steps_need_a_reactor():
     assert ir.limiting_inductance_h(tuned, V, ls) == 0.0
 
 
+@pytest.mark.parametrize("sizes,runs,source,contactor", [
+    ((10, 20, 20, 20, 20, 20), (2, 2, 2, 2, 2, 2), True, None),
+    ((50, 25, 25, 100, 25), (1, 3, 3, 0.5, 3), False, None),
+    ((12.5, 25, 25, 50), (2, 2, 2, 2), True, 2500.0),
+    ((40, 40, 40), (0.2, 0.2, 0.2), False, 1500.0),
+])
+def test_limiting_reactor_brings_the_worst_step_to_its_limit(sizes, runs, source, contactor):
+    # steps alike and unlike, with and without the source and a contactor's peak: with the added
+    # inductance the worst step sits at its limit (the bisection's width), every other step below
+    lm = ir.connection_inductance_h
+    steps = [ir.step_circuit(q, V, F, lm(d)) for q, d in zip(sizes, runs)]
+    ls = ir.source_inductance_h(V, F, 1000 / 0.06) if source else None
+    add = ir.limiting_inductance_h(steps, V, ls, contactor)
+    assert add > 0
+
+    def worst(extra):
+        grown = [ir.StepCircuit(s.c_f, s.l_h + extra, 0.0, s.i_rated_a) for s in steps]
+        res = ir.bank_inrush(grown, V, ls)
+        return max(r.worst / (r.limit_a if contactor is None else min(r.limit_a, contactor)) for r in res)
+
+    assert worst(add) == pytest.approx(1.0, rel=1e-5) and worst(add) <= 1.0 + 1e-9
+    assert worst(add * (1 - 1e-4)) > 1.0
+
+
 def test_contactor_limit_is_applied():
     lm = ir.connection_inductance_h
     steps = [ir.step_circuit(q, V, F, lm(3), p=0.07) for q in (25, 50)]
