@@ -198,14 +198,21 @@ def bank_inrush(steps: list, v_ll: float, l_source_h: float, contactor_limit_a=N
     if contactor_limit_a is not None:
         _pos(contactor_limit_a, "The contactor's peak current rating")
     out = []
+    prev = found = None
     for k, st in enumerate(steps):
-        alone = isolated(st, v_ll, l_source_h) if l_source_h is not None else None
-        others = [s for j, s in enumerate(steps) if j != k]
-        b2b = back_to_back(st, others, v_ll) if others else None
-        worst = max(alone.peak_a if alone else 0.0, b2b.peak_a if b2b else 0.0)
-        lim = CAPACITOR_INRUSH_MULTIPLE * st.i_rated_a
-        ok = worst <= lim * (1 + 1e-12) and (contactor_limit_a is None or worst <= contactor_limit_a * (1 + 1e-12))
-        out.append(StepInrush(alone, b2b, worst, lim, contactor_limit_a, ok))
+        # a step alike the one before it (same C, L, I_N) leaves the same others in the same order
+        # (their sums are added alike), so it has the same inrush
+        key = (st.c_f, st.l_h, st.i_rated_a)
+        if key != prev:
+            alone = isolated(st, v_ll, l_source_h) if l_source_h is not None else None
+            others = [s for j, s in enumerate(steps) if j != k]
+            b2b = back_to_back(st, others, v_ll) if others else None
+            worst = max(alone.peak_a if alone else 0.0, b2b.peak_a if b2b else 0.0)
+            lim = CAPACITOR_INRUSH_MULTIPLE * st.i_rated_a
+            ok = worst <= lim * (1 + 1e-12) and (contactor_limit_a is None or worst <= contactor_limit_a * (1 + 1e-12))
+            found = StepInrush(alone, b2b, worst, lim, contactor_limit_a, ok)
+            prev = key
+        out.append(found)
     return out
 
 
