@@ -350,8 +350,8 @@ def plan_steps_many(need_kvar: float, ratings, weight_lists, max_states: int = M
 
 
 def _weights(weights) -> list[int]:
-    w = [int(x) for x in weights]
-    if not w or any(x < 1 for x in w):
+    w = list(map(int, weights))
+    if not w or min(w) < 1:
         raise InputError("Step weights must be whole numbers from 1.")
     return w
 
@@ -368,8 +368,8 @@ def _plan_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[i
         hit = bases[wsum] = _select_on_grid(need_kvar / wsum, vals, g, ints, max_states)
     base, base_idx = hit
     top = min(max_states, base * max(w))
-    steps, units = [], []
-    for x in w:
+    kvar_of, units_of = {}, {}
+    for x in dict.fromkeys(w):  # each weight once (a pattern repeats a few)
         # within the table a step of s grid steps has the same units in every plan (the fewest that
         # sum exactly to s: an entry does not depend on how far the table was built); beyond it they
         # may come from the base's own units, so the base is part of the key there
@@ -378,12 +378,12 @@ def _plan_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[i
         step = made.get(key)
         if step is None:
             step = made[key] = (_kvar(s, g), _step_units(s, x, vals, ints, top, base_idx))
-        steps.append(step[0])
-        units.append(step[1])
-    n_units = sum(len(u) for u in units)
+        kvar_of[x], units_of[x] = step
+    units = tuple(map(units_of.__getitem__, w))
+    n_units = sum(map(len, units))
     if n_units > MAX_UNITS:
         raise InputError(f"This step plan needs {n_units} units: use fewer steps, another pattern or larger unit ratings.")
-    return StepPlan(tuple(steps), tuple(units), _kvar(base, g), _kvar(base * wsum, g))
+    return StepPlan(tuple(map(kvar_of.__getitem__, w)), units, _kvar(base, g), _kvar(base * wsum, g))
 
 
 def _step_units(s: int, x: int, vals: list[float], ints: list[int], top: int, base_idx: list[int]) -> tuple:

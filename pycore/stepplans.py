@@ -21,6 +21,8 @@ it is × ``factor`` (:func:`pycore.capacitor.output_factor`).
 
 from __future__ import annotations
 
+import functools
+import itertools
 import math
 from dataclasses import dataclass
 
@@ -108,7 +110,9 @@ class Plan:
     acceptable: bool
 
 
-def _patterns(max_steps: int) -> list[tuple[str, tuple]]:
+@functools.lru_cache(maxsize=None)
+def _patterns(max_steps: int) -> tuple:
+    # the (pattern, weights) tried for each most-steps: a fixed table, built once
     tried = []
     for pattern in PLAN_PATTERNS:
         for n in range(MIN_AUTO_STEPS, max_steps + 1):
@@ -116,7 +120,10 @@ def _patterns(max_steps: int) -> list[tuple[str, tuple]]:
             if pattern == "binary" and sum(w) > 4096:
                 break
             tried.append((pattern, w))
-    return tried
+    return tuple(tried)
+
+
+_SIX = itertools.repeat(6)  # round's places, for map()
 
 
 def _candidates(need_rated: float, ratings, tried) -> list[tuple[str, tuple, StepPlan]]:
@@ -124,7 +131,7 @@ def _candidates(need_rated: float, ratings, tried) -> list[tuple[str, tuple, Ste
     for (pattern, w), pl in zip(tried, plan_steps_many(need_rated, ratings, [w for _, w in tried])):
         if pl is None:
             continue
-        key = tuple(round(s, 6) for s in pl.steps)
+        key = tuple(map(round, pl.steps, _SIX))
         if key not in seen:
             seen[key] = (pattern, w, pl)
     return list(seen.values())
@@ -147,7 +154,7 @@ def three_plans(need_rated: float, ratings, factor: float, full: Load, target_pf
     def info(c):
         pattern, w, pl = c
         exc = pl.total - need_rated
-        ok = exc <= ACCEPTABLE_EXCESS * need_rated + 1e-9 and max(len(u) for u in pl.units) <= UNITS_PER_STEP_LIMIT
+        ok = exc <= ACCEPTABLE_EXCESS * need_rated + 1e-9 and max(map(len, pl.units)) <= UNITS_PER_STEP_LIMIT
         return round(exc, 6), round(min(pl.steps), 6), len(pl.steps), ok
 
     tried = _patterns(max_steps)
