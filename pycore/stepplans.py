@@ -22,7 +22,6 @@ it is × ``factor`` (:func:`pycore.capacitor.output_factor`).
 from __future__ import annotations
 
 import functools
-import itertools
 import math
 from dataclasses import dataclass
 
@@ -123,15 +122,21 @@ def _patterns(max_steps: int) -> tuple:
     return tuple(tried)
 
 
-_SIX = itertools.repeat(6)  # round's places, for map()
+class _Rounded(dict):
+    """x → round(x, 6), each distinct x rounded once (round to places is dear: it prints the float);
+    one per search, many plans share their step sizes."""
+
+    def __missing__(self, x):
+        r = self[x] = round(x, 6)
+        return r
 
 
-def _candidates(need_rated: float, ratings, tried) -> list[tuple[str, tuple, StepPlan]]:
+def _candidates(need_rated: float, ratings, tried, r6: _Rounded) -> list[tuple[str, tuple, StepPlan]]:
     seen: dict[tuple, tuple] = {}
     for (pattern, w), pl in zip(tried, plan_steps_many(need_rated, ratings, [w for _, w in tried])):
         if pl is None:
             continue
-        key = tuple(map(round, pl.steps, _SIX))
+        key = tuple(map(r6.__getitem__, pl.steps))
         if key not in seen:
             seen[key] = (pattern, w, pl)
     return list(seen.values())
@@ -155,18 +160,19 @@ def three_plans(need_rated: float, ratings, factor: float, full: Load, target_pf
         pattern, w, pl = c
         exc = pl.total - need_rated
         ok = exc <= ACCEPTABLE_EXCESS * need_rated + 1e-9 and max(map(len, pl.units)) <= UNITS_PER_STEP_LIMIT
-        return round(exc, 6), round(min(pl.steps), 6), len(pl.steps), ok
+        return r6[exc], r6[min(pl.steps)], len(pl.steps), ok
 
     tried = _patterns(max_steps)
+    r6 = _Rounded()
     # plans that cannot be acceptable (a huge binary pattern of small units) are worked out only
     # when no acceptable plan exists: they could not be offered otherwise
     # every step holds at least one unit, so a plan's total is at least the smallest unit × Σw
     small = min((r for r in ratings if isinstance(r, (int, float)) and r > 0), default=0.0)
     hopeful = [t for t in tried if small * sum(t[1]) <= (1 + ACCEPTABLE_EXCESS) * need_rated + 1e-9]
-    rows = [(c, info(c)) for c in _candidates(need_rated, ratings, hopeful)]
+    rows = [(c, info(c)) for c in _candidates(need_rated, ratings, hopeful, r6)]
     pool = [r for r in rows if r[1][3]]
     if not pool:
-        cands = _candidates(need_rated, ratings, tried)
+        cands = _candidates(need_rated, ratings, tried, r6)
         if not cands:
             raise InputError("No automatic bank can be built from these unit ratings: add larger or smaller ratings.")
         pool = rows = [(c, info(c)) for c in cands]
