@@ -205,7 +205,9 @@ def _screen(bus, combos, harmonics, tolerances, band):
     # the supply side of B(h) depends on the impedance factor only, the capacitors' side on the
     # capacitance factor and the steps in: each worked once per screen and per combination
     a_of = {kz: _parts(bus, (), 1.0, kz)[0] for kz in (1.0, 1 + t.z_lo, 1 + t.z_hi)}
-    kcs = (1.0, 1 + t.cap_lo, 1 + t.cap_hi)
+    kcs = tuple(dict.fromkeys((1.0, 1 + t.cap_lo, 1 + t.cap_hi)))  # a tolerance end of 0 is the nominal
+    box = (f"with capacitance {_pct(t.cap_lo)} to {_pct(t.cap_hi)} and transformer impedance "
+           f"{_pct(t.z_lo)} to {_pct(t.z_hi)}")
     out = []
     for label, steps_in in combos:
         steps_in = list(steps_in)
@@ -232,8 +234,7 @@ def _screen(bus, combos, harmonics, tolerances, band):
             for H in _hits(lo, hi, harm, band):
                 where = (f"resonates at order {h0:.2f} ({h0 * bus.f_hz:.0f} Hz)" if kind == "parallel"
                          else f"has a detuned branch tuned to order {h0:.2f} ({h0 * bus.f_hz:.0f} Hz)")
-                span = (f"with capacitance {_pct(t.cap_lo)} to {_pct(t.cap_hi)} and transformer impedance "
-                        f"{_pct(t.z_lo)} to {_pct(t.z_hi)} it lies between {lo:.2f} and {hi:.2f}")
+                span = f"{box} it lies between {lo:.2f} and {hi:.2f}"
                 if kind == "tuning":
                     todo = (f"the branch will absorb the {H}{_th(H)} harmonic from the whole network and overload: "
                             "use a higher detuning factor (a lower tuning order)")
