@@ -136,8 +136,13 @@ def design_bank(steps_rated, step_units, v_ll: float, f_hz: float, cap_v: float,
         raise InputError("Give the units of each step.")
     if p and abs(cap_f - f_hz) > 1e-9 * f_hz:
         raise InputError("A detuned bank's capacitors must be rated at the system frequency.")
-    q_sys = [branch_output_kvar(q, v_ll, cap_v, p) if p else q * output_factor(v_ll, cap_v, f_hz, cap_f) for q in st_rated]
-    l_conn = [inrush.connection_inductance_h(x, uh_per_m) for x in _lengths(lengths_m, len(st_rated))]
+    q_sys: list = []
+    for k, q in enumerate(st_rated):  # a step of the same rating as the one before gives the same kvar
+        alike = k and q == st_rated[k - 1]
+        q_sys.append(q_sys[-1] if alike else branch_output_kvar(q, v_ll, cap_v, p) if p else q * output_factor(v_ll, cap_v, f_hz, cap_f))
+    lengths = _lengths(lengths_m, len(st_rated))
+    l_of = {x: inrush.connection_inductance_h(x, uh_per_m) for x in dict.fromkeys(lengths)}  # each length once
+    l_conn = [l_of[x] for x in lengths]
     circuits: list = []
     q_prev = lc_prev = None
     for q, lc in zip(q_sys, l_conn):  # a step alike the one before it shares its circuit

@@ -97,8 +97,14 @@ def _alike_bank(p=0.0):
 def test_alike_steps_each_get_their_own_parts(p):
     # every step's parts are those its own figures give (a step alike the one before shares them;
     # the step on the short run must not)
+    from pycore import capacitor, inrush
     b = _alike_bank(p)
+    runs = [2, 2, 2, 2, 0.05, 2]
     for d in b.steps:
+        q_sys = (detuning.branch_output_kvar(d.q_rated_kvar, 400, 440, p) if p
+                 else d.q_rated_kvar * capacitor.output_factor(400, 440, 50, 50))
+        assert d.q_system_kvar == q_sys
+        assert d.circuit == inrush.step_circuit(q_sys, 400, 50, inrush.connection_inductance_h(runs[d.number - 1]), p)
         assert d.fuse == protection.fuse(d.i_n_a, "iec")
         lim = min(d.inrush.limit_a, 6000)
         assert d.contactor == protection.contactor(d.i_n_a, bool(p), d.inrush.worst, lim, "iec")
