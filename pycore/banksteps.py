@@ -30,10 +30,9 @@ EXCESS_WARN_FRACTION = 0.25  # a plan more than 25 % (and one unit) above the ne
 MANY_UNITS_PER_STEP = 6  # more units than this in one step draws a warning (common practice: 1 to a few)  # the largest rating may span at most this many tables of MAX_STATES grid steps
 
 
-def _grid(ratings: list[float]) -> tuple[Fraction, list[int]]:
+def _grid(ratings: list[float]) -> tuple[Fraction, tuple]:
     """The common measure g [kvar] of the ratings and each rating as a whole multiple of g."""
-    g, ints = _grid_of(tuple(ratings))
-    return g, list(ints)
+    return _grid_of(tuple(ratings))  # the multiples as a tuple: read, never changed
 
 
 @functools.lru_cache(maxsize=64)

@@ -47,8 +47,11 @@ def _isnan_takes(t) -> bool:
     return takes
 
 
-def _has_nan(value, depth: int = 0) -> bool:
-    """True when a float, a complex, or a tuple/list/dict/dataclass of them holds NaN."""
+def _has_nan(value, depth: int = 0, seen: dict | None = None) -> bool:
+    """True when a float, a complex, or a tuple/list/dict/dataclass of them holds NaN. A result that
+    is itself a dataclass (a record of records, e.g. a bank of alike steps sharing their parts) notes
+    in ``seen`` the depth each record inside it was looked at, and looks at a shared one again only
+    from nearer the top."""
     t = type(value)
     kind = _KINDS.get(t)
     if kind is None:
@@ -75,6 +78,13 @@ def _has_nan(value, depth: int = 0) -> bool:
     elif kind == _DICT:
         items = value.values()
     else:
+        if depth == 0:
+            seen = {}
+        if seen is not None:
+            at = seen.get(id(value))
+            if at is not None and at <= depth:  # looked at from as near the top, no NaN (else the scan had ended)
+                return False
+            seen[id(value)] = depth
         d = getattr(value, "__dict__", None)  # a dataclass without slots holds its fields here
         items = d.values() if d is not None else [getattr(value, n) for n in value.__dataclass_fields__]
     # plain loops, no generators: the outermost guarded call scans every result it returns
@@ -85,7 +95,7 @@ def _has_nan(value, depth: int = 0) -> bool:
         if t is float:
             if v != v:
                 return True
-        elif _has_nan(v, depth + 1):
+        elif _has_nan(v, depth + 1, seen):
             return True
     return False
 

@@ -62,6 +62,10 @@ def test_has_nan_cases():
     assert _has_nan([[[[math.nan]]]])
     shared = _Rec(math.nan, 1)
     assert _has_nan([_Rec(shared, 2), _Rec(shared, 3)])
+    # a record shared by a result: first met too deep for its NaN to count, then near the top, where it does
+    deep = _Rec((math.nan,), 0)
+    assert _has_nan(_Rec(_Rec(_Rec(deep, 0), 0), deep))
+    assert not _has_nan(_Rec(_Rec(_Rec(deep, 0), 0), 1))
 
 
 def test_guarded_refuses_a_nan_result():
