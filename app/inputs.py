@@ -29,6 +29,7 @@ class Inputs:
         self.raw = {k: ("" if v is None else v) for k, v in raw.items()}
         self.errors: dict[str, str] = {}
         self.echo: dict[str, Reading] = {}  # what each typed reader read, for reports
+        self._field = sheet.field  # asked hundreds of times per computation: the sheet's own lookup, bound once
 
     def _record(self, name: str, value: Any, cells: Optional[list] = None) -> Any:
         """Note what a reader read from a field (the last read wins) and pass the value on."""
@@ -58,7 +59,7 @@ class Inputs:
         return out
 
     # -- helpers
-    def _field(self, name: str) -> Field:
+    def _field(self, name: str) -> Field:  # replaced per instance by the sheet's bound lookup (see __init__)
         return self.sheet.field(name)
 
     def visible(self, name: str) -> bool:

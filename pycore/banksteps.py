@@ -30,10 +30,9 @@ EXCESS_WARN_FRACTION = 0.25  # a plan more than 25 % (and one unit) above the ne
 MANY_UNITS_PER_STEP = 6  # more units than this in one step draws a warning (common practice: 1 to a few)  # the largest rating may span at most this many tables of MAX_STATES grid steps
 
 
-def _grid(ratings: list[float]) -> tuple[Fraction, list[int]]:
+def _grid(ratings: list[float]) -> tuple[Fraction, tuple]:
     """The common measure g [kvar] of the ratings and each rating as a whole multiple of g."""
-    g, ints = _grid_of(tuple(ratings))
-    return g, list(ints)
+    return _grid_of(tuple(ratings))  # the multiples as a tuple: read, never changed
 
 
 @functools.lru_cache(maxsize=64)
@@ -320,7 +319,7 @@ def plan_steps(need_kvar: float, ratings, weights, max_states: int = MAX_STATES)
         raise InputError("The kvar needed must be above zero.")
     _check_count(need_kvar, vals)
     g, ints = _grid(vals)
-    return _plan_on_grid(need_kvar, vals, g, ints, w, max_states, {})
+    return _plan_on_grid(need_kvar, vals, g, ints, w, max_states, {}, {})
 
 
 @guarded
@@ -339,27 +338,28 @@ def plan_steps_many(need_kvar: float, ratings, weight_lists, max_states: int = M
     except InputError:
         return []
     bases: dict = {}
+    made: dict = {}
     out = []
     for weights in weight_lists:
         try:
-            out.append(_plan_on_grid(need_kvar, vals, g, ints, _weights(weights), max_states, bases))
+            out.append(_plan_on_grid(need_kvar, vals, g, ints, _weights(weights), max_states, bases, made))
         except (ArithmeticError, ValueError):  # InputError included: as plan_steps would raise it
             out.append(None)
     return out
 
 
 def _weights(weights) -> list[int]:
-    w = [int(x) for x in weights]
-    if not w or any(x < 1 for x in w):
+    w = list(map(int, weights))
+    if not w or min(w) < 1:
         raise InputError("Step weights must be whole numbers from 1.")
     return w
 
 
 def _plan_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[int], w: list[int], max_states: int,
-                  bases: dict) -> StepPlan:
-    """plan_steps on a grid already worked out; ``bases`` keeps each Σw's base selection."""
+                  bases: dict, made: dict) -> StepPlan:
+    """plan_steps on a grid already worked out; ``bases`` keeps each Σw's base selection and
+    ``made`` each step size's (kvar, units), shared by the plans of one need."""
     wsum = sum(w)
-    kmax = max(ints)
     # least excess: the base b is the smallest reachable unit sum with b·Σw ≥ need
     hit = bases.get(wsum)
     if hit is None:
@@ -367,22 +367,34 @@ def _plan_on_grid(need_kvar: float, vals: list[float], g: Fraction, ints: list[i
         hit = bases[wsum] = _select_on_grid(need_kvar / wsum, vals, g, ints, max_states)
     base, base_idx = hit
     top = min(max_states, base * max(w))
-    count, last = _min_count_table(ints, top)
-    steps, units = [], []
-    base_units = None
-    for x in w:
-        idx = _fewest_exact(base * x, ints, count, last, top, kmax)
-        if idx is None:  # w_i copies of the base's own units always sum exactly
-            if base_units is None:
-                base_units = tuple(sorted((vals[i] for i in base_idx), reverse=True))
-            units.append(tuple(sorted(base_units * x, reverse=True)))
-        else:
-            units.append(tuple(sorted((vals[i] for i in idx), reverse=True)))
-        steps.append(_kvar(base * x, g))
-    n_units = sum(len(u) for u in units)
+    kvar_of, units_of = {}, {}
+    for x in dict.fromkeys(w):  # each weight once (a pattern repeats a few)
+        # within the table a step of s grid steps has the same units in every plan (the fewest that
+        # sum exactly to s: an entry does not depend on how far the table was built); beyond it they
+        # may come from the base's own units, so the base is part of the key there
+        s = base * x
+        key = s if s <= max_states else (s, base)
+        step = made.get(key)
+        if step is None:
+            step = made[key] = (_kvar(s, g), _step_units(s, x, vals, ints, top, base_idx))
+        kvar_of[x], units_of[x] = step
+    units = tuple(map(units_of.__getitem__, w))
+    n_units = sum(map(len, units))
     if n_units > MAX_UNITS:
         raise InputError(f"This step plan needs {n_units} units: use fewer steps, another pattern or larger unit ratings.")
-    return StepPlan(tuple(steps), tuple(units), _kvar(base, g), _kvar(base * wsum, g))
+    return StepPlan(tuple(map(kvar_of.__getitem__, w)), units, _kvar(base, g), _kvar(base * wsum, g))
+
+
+def _step_units(s: int, x: int, vals: list[float], ints: list[int], top: int, base_idx: list[int]) -> tuple:
+    """The units [kvar] (largest first) of a step of s = x·base grid steps: the fewest summing
+    exactly to s (the table built to ``top``), else x copies of the base's own units (which
+    always sum exactly)."""
+    count, last = _min_count_table(ints, top)
+    idx = _fewest_exact(s, ints, count, last, top, max(ints))
+    if idx is None:
+        base_units = tuple(sorted((vals[i] for i in base_idx), reverse=True))
+        return tuple(sorted(base_units * x, reverse=True))
+    return tuple(sorted((vals[i] for i in idx), reverse=True))
 
 
 def _fewest_exact(s: int, ints: list[int], count: list[int], last: list[int], top: int, kmax: int) -> list[int] | None:

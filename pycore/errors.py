@@ -18,22 +18,73 @@ OUT_OF_RANGE = (
 )
 
 
-def _has_nan(value, depth: int = 0) -> bool:
-    """True when a float, a complex, or a tuple/list/dict/dataclass of them holds NaN."""
-    if isinstance(value, (float, complex)):
+# what _has_nan does with a value of each exact type, worked out once per type (each check below
+# looks at the type only): a number (NaN when unequal to itself), a leaf (text, whole numbers, None:
+# nothing to scan), a sequence, a dict, or a dataclass
+_NUMBER, _LEAF, _SEQUENCE, _DICT, _DATACLASS = range(5)
+_KINDS: dict = {}
+_ISNAN_TAKES: dict = {}  # type → whether math.isnan accepts its values (a float or an index)
+
+
+def _kind(t):
+    if issubclass(t, (float, complex)):
+        return _NUMBER
+    if issubclass(t, (str, bytes, int)) or t is type(None):
+        return _LEAF
+    if issubclass(t, (tuple, list)):
+        return _SEQUENCE
+    if issubclass(t, dict):
+        return _DICT
+    if hasattr(t, "__dataclass_fields__"):
+        return _DATACLASS
+    return None  # not decided by the type: an instance may carry the attribute itself
+
+
+def _isnan_takes(t) -> bool:
+    takes = _ISNAN_TAKES.get(t)
+    if takes is None:
+        takes = _ISNAN_TAKES[t] = hasattr(t, "__float__") or hasattr(t, "__index__")
+    return takes
+
+
+def _has_nan(value, depth: int = 0, seen: dict | None = None) -> bool:
+    """True when a float, a complex, or a tuple/list/dict/dataclass of them holds NaN. A result that
+    is itself a dataclass (a record of records, e.g. a bank of alike steps sharing their parts) notes
+    in ``seen`` the depth each record inside it was looked at, and looks at a shared one again only
+    from nearer the top."""
+    t = type(value)
+    kind = _KINDS.get(t)
+    if kind is None:
+        kind = _kind(t)
+        if kind is None:
+            if depth >= 4 or not hasattr(value, "__dataclass_fields__"):
+                return False
+            kind = _DATACLASS
+        else:
+            _KINDS[t] = kind
+    if kind == _NUMBER:
         return value != value
-    if depth >= 4 or isinstance(value, (str, bytes, int)) or value is None:
+    if kind == _LEAF or depth >= 4:
         return False
-    if isinstance(value, (tuple, list)):
-        try:  # a list of plain numbers (e.g. a load profile's 100 000 intervals) at C speed
-            return any(map(math.isnan, value))
-        except (TypeError, OverflowError):  # complex, text, None, nested or huge ints: one by one
-            items = value
-    elif isinstance(value, dict):
+    if kind == _SEQUENCE:
+        # a list of plain numbers (e.g. a load profile's 100 000 intervals) at C speed; one that starts
+        # with a value math.isnan refuses (a record, text) goes straight to the loop
+        if value and _isnan_takes(type(value[0])):
+            try:
+                return any(map(math.isnan, value))
+            except (TypeError, OverflowError):  # complex, text, None, nested or huge ints: one by one
+                pass
+        items = value
+    elif kind == _DICT:
         items = value.values()
     else:
-        if not hasattr(value, "__dataclass_fields__"):
-            return False
+        if depth == 0:
+            seen = {}
+        if seen is not None:
+            at = seen.get(id(value))
+            if at is not None and at <= depth:  # looked at from as near the top, no NaN (else the scan had ended)
+                return False
+            seen[id(value)] = depth
         d = getattr(value, "__dict__", None)  # a dataclass without slots holds its fields here
         items = d.values() if d is not None else [getattr(value, n) for n in value.__dataclass_fields__]
     # plain loops, no generators: the outermost guarded call scans every result it returns
@@ -44,7 +95,7 @@ def _has_nan(value, depth: int = 0) -> bool:
         if t is float:
             if v != v:
                 return True
-        elif _has_nan(v, depth + 1):
+        elif _has_nan(v, depth + 1, seen):
             return True
     return False
 

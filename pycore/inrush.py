@@ -198,14 +198,21 @@ def bank_inrush(steps: list, v_ll: float, l_source_h: float, contactor_limit_a=N
     if contactor_limit_a is not None:
         _pos(contactor_limit_a, "The contactor's peak current rating")
     out = []
+    prev = found = None
     for k, st in enumerate(steps):
-        alone = isolated(st, v_ll, l_source_h) if l_source_h is not None else None
-        others = [s for j, s in enumerate(steps) if j != k]
-        b2b = back_to_back(st, others, v_ll) if others else None
-        worst = max(alone.peak_a if alone else 0.0, b2b.peak_a if b2b else 0.0)
-        lim = CAPACITOR_INRUSH_MULTIPLE * st.i_rated_a
-        ok = worst <= lim * (1 + 1e-12) and (contactor_limit_a is None or worst <= contactor_limit_a * (1 + 1e-12))
-        out.append(StepInrush(alone, b2b, worst, lim, contactor_limit_a, ok))
+        # a step alike the one before it (same C, L, I_N) leaves the same others in the same order
+        # (their sums are added alike), so it has the same inrush
+        key = (st.c_f, st.l_h, st.i_rated_a)
+        if key != prev:
+            alone = isolated(st, v_ll, l_source_h) if l_source_h is not None else None
+            others = [s for j, s in enumerate(steps) if j != k]
+            b2b = back_to_back(st, others, v_ll) if others else None
+            worst = max(alone.peak_a if alone else 0.0, b2b.peak_a if b2b else 0.0)
+            lim = CAPACITOR_INRUSH_MULTIPLE * st.i_rated_a
+            ok = worst <= lim * (1 + 1e-12) and (contactor_limit_a is None or worst <= contactor_limit_a * (1 + 1e-12))
+            found = StepInrush(alone, b2b, worst, lim, contactor_limit_a, ok)
+            prev = key
+        out.append(found)
     return out
 
 
@@ -231,30 +238,37 @@ def limiting_inductance_h(steps: list, v_ll: float, l_source_h: float, peak_limi
     l0 = [s.l_h for s in steps]
     c_all = sum(cs)
     n = len(steps)
+    vs = v * SQRT_2_3  # _peak's first product
+    # back to back, C_eq does not depend on the added inductance; steps alike (same C, L, limit) are checked once
+    c_eq = [(c_all - cs[k]) * cs[k] / ((c_all - cs[k]) + cs[k]) for k in range(n)]
+    alike: dict = {}
+    for k in range(n):
+        alike.setdefault((cs[k], l0[k], limits[k]), k)
+    ks = list(alike.values())
 
-    def excess(add: float) -> float:
-        # the same peaks as bank_inrush with `add` in series with every step (add > 0), in plain
-        # arithmetic: the search evaluates it about 25 times
+    def exceeds(add: float) -> bool:
+        # whether any step's peak with `add` in series with every step (add > 0) is above its limit: the
+        # same peaks as bank_inrush (the expressions of _peak and _b2b written out), and the same
+        # answer as max over the steps of peak/limit > 1; the search asks about 25 times
         ls = [x + add for x in l0]  # all above zero: add > 0
         inv = [1.0 / x for x in ls]
         inv_all = sum(inv)
-        worst = 0.0
-        for k in range(n):
-            pk = _peak(v, cs[k], l_source_h + ls[k]) if l_source_h is not None else 0.0
-            if n > 1:  # the others: totals less this step's share
-                c_eq, l_eq = _b2b(cs[k], ls[k], c_all - cs[k], inv_all - inv[k])
-                pk = max(pk, _peak(v, c_eq, l_eq))
-            worst = max(worst, pk / limits[k])
-        return worst
+        for k in ks:
+            lim = limits[k]
+            if l_source_h is not None and vs * math.sqrt(cs[k] / (l_source_h + ls[k])) / lim > 1.0:
+                return True
+            if n > 1 and vs * math.sqrt(c_eq[k] / (ls[k] + 1.0 / (inv_all - inv[k]))) / lim > 1.0:
+                return True
+        return False
 
     lo, hi = 0.0, 1e-6
-    while excess(hi) > 1.0:
+    while exceeds(hi):
         lo, hi = hi, hi * 2.0
         if hi > 10.0:
             raise InputError("No practical reactor limits this inrush: check the step sizes and the limit.")
     while hi - lo > BISECTION_RTOL * hi:  # about 20 halvings: far finer than a reactor is wound
         mid = 0.5 * (lo + hi)
-        if excess(mid) > 1.0:
+        if exceeds(mid):
             lo = mid
         else:
             hi = mid

@@ -136,26 +136,36 @@ def design_bank(steps_rated, step_units, v_ll: float, f_hz: float, cap_v: float,
         raise InputError("Give the units of each step.")
     if p and abs(cap_f - f_hz) > 1e-9 * f_hz:
         raise InputError("A detuned bank's capacitors must be rated at the system frequency.")
-    q_sys = [branch_output_kvar(q, v_ll, cap_v, p) if p else q * output_factor(v_ll, cap_v, f_hz, cap_f) for q in st_rated]
-    l_conn = [inrush.connection_inductance_h(x, uh_per_m) for x in _lengths(lengths_m, len(st_rated))]
-    circuits = [inrush.step_circuit(q, v_ll, f_hz, lc, p) for q, lc in zip(q_sys, l_conn)]
+    q_sys: list = []
+    for k, q in enumerate(st_rated):  # a step of the same rating as the one before gives the same kvar
+        alike = k and q == st_rated[k - 1]
+        q_sys.append(q_sys[-1] if alike else branch_output_kvar(q, v_ll, cap_v, p) if p else q * output_factor(v_ll, cap_v, f_hz, cap_f))
+    lengths = _lengths(lengths_m, len(st_rated))
+    l_of = {x: inrush.connection_inductance_h(x, uh_per_m) for x in dict.fromkeys(lengths)}  # each length once
+    l_conn = [l_of[x] for x in lengths]
+    circuits: list = []
+    q_prev = lc_prev = None
+    for q, lc in zip(q_sys, l_conn):  # a step alike the one before it shares its circuit
+        alike = circuits and q == q_prev and lc == lc_prev
+        circuits.append(circuits[-1] if alike else inrush.step_circuit(q, v_ll, f_hz, lc, p))
+        q_prev, lc_prev = q, lc
     l_src = inrush.source_inductance_h(v_ll, f_hz, s_sc_kva) if s_sc_kva else None
     inr = inrush.bank_inrush(circuits, v_ll, l_src, contactor_peak_a)
     limiting = 0.0 if p else inrush.limiting_inductance_h(circuits, v_ll, l_src, contactor_peak_a)
     designs = []
+    prev = None
     for k, (qr, qs, u, circ, ir) in enumerate(zip(st_rated, q_sys, units, circuits, inr), 1):
-        i_n = max(line_current(qr, cap_v), line_current(qs, v_ll))
-        fz = protection.fuse(i_n, series)
-        need = _cable_need(i_n, profile, fz)
-        lim = ir.limit_a if contactor_peak_a is None else min(ir.limit_a, contactor_peak_a)
-        designs.append(StepDesign(
-            k, qr, qs, tuple(sorted(u, reverse=True)), i_n, circ, ir,
-            discharge.discharge_resistor(qr, cap_v, cap_f, connection, rule),
-            fz,
-            protection.contactor(i_n, bool(p), ir.worst, lim, profile),
-            cables.cable_for(need, table, derating), need,
-            design_branch(v_ll, f_hz, qs, p, cap_v) if p else None,
-        ))
+        if (qr, qs, circ, ir) != prev:  # else alike the step before: the same parts
+            i_n = max(line_current(qr, cap_v), line_current(qs, v_ll))
+            fz = protection.fuse(i_n, series)
+            need = _cable_need(i_n, profile, fz)
+            lim = ir.limit_a if contactor_peak_a is None else min(ir.limit_a, contactor_peak_a)
+            dis = discharge.discharge_resistor(qr, cap_v, cap_f, connection, rule)
+            con = protection.contactor(i_n, bool(p), ir.worst, lim, profile)
+            cab = cables.cable_for(need, table, derating)
+            rea = design_branch(v_ll, f_hz, qs, p, cap_v) if p else None
+            prev = (qr, qs, circ, ir)
+        designs.append(StepDesign(k, qr, qs, tuple(sorted(u, reverse=True)), i_n, circ, ir, dis, fz, con, cab, need, rea))
     tot_r, tot_s = sum(st_rated), sum(q_sys)
     i_bank = max(line_current(tot_r, cap_v), line_current(tot_s, v_ll))
     main_fuse = protection.fuse(i_bank, series)
@@ -198,8 +208,15 @@ def order_rows(bank: BankDesign) -> list:
     conn = bank.connection
     rule = discharge.RULES[PROFILES[bank.profile][2]]
     table_assumptions = bank.cable_assumptions
+    last_parts, last_rows = None, []
     for d in bank.steps:
         sec = f"Step {d.number}"
+        parts = (d.units, d.q_rated_kvar, d.q_system_kvar, d.reactor, d.contactor, d.inrush, d.fuse, d.discharge, d.cable,
+                 d.cable_needed_a)
+        if parts == last_parts:  # alike the step before (every figure its rows show): the same rows
+            rows += [OrderRow(sec, r.item, r.quantity, r.spec, r.basis) for r in last_rows]
+            continue
+        first = len(rows)
         counts: dict[float, int] = {}
         for u in d.units:
             counts[u] = counts.get(u, 0) + 1
@@ -232,6 +249,7 @@ def order_rows(bank: BankDesign) -> list:
         rows.append(OrderRow(sec, "Cable", 1, _cable_text(d.cable),
                              f"≥ {_sig(d.cable_needed_a)} A: the NEC 460.8 / IEC 60831-1 current basis and not below the fuse "
                              f"(IEC 60364-4-43, NEC 240.4); {d.cable.row.source}. {table_assumptions}"))
+        last_parts, last_rows = parts, rows[first:]
     ct = f", CT {_sig(bank.ct[0])}/{_sig(bank.ct[1])} A, C/k = {_sig(bank.ck_a)} A" if bank.ck_a is not None else ""
     rows.append(OrderRow("Bank", "Power-factor controller", 1,
                          f"At least {len(bank.steps)} step outputs{ct}; reconnection delay at least {_sig(bank.reclose_s)} s",

@@ -202,20 +202,30 @@ def _screen(bus, combos, harmonics, tolerances, band):
     corners = [(1 + c, 1 + z) for c in (t.cap_lo, t.cap_hi) for z in (t.z_lo, t.z_hi)]
     harm = sorted({int(h) for h in harmonics})
     lowest = harm[0] if harm else 5
+    # the supply side of B(h) depends on the impedance factor only, the capacitors' side on the
+    # capacitance factor and the steps in: each worked once per screen and per combination
+    a_of = {kz: _parts(bus, (), 1.0, kz)[0] for kz in (1.0, 1 + t.z_lo, 1 + t.z_hi)}
+    kcs = tuple(dict.fromkeys((1.0, 1 + t.cap_lo, 1 + t.cap_hi)))  # a tolerance end of 0 is the nominal
+    box = (f"with capacitance {_pct(t.cap_lo)} to {_pct(t.cap_hi)} and transformer impedance "
+           f"{_pct(t.z_lo)} to {_pct(t.z_hi)}")
     out = []
     for label, steps_in in combos:
         steps_in = list(steps_in)
         if not steps_in:
             continue
         q = sum(bus.steps[k].q_kvar for k in steps_in)
-        nominal = _orders(bus, steps_in)
-        at = [_orders(bus, steps_in, kc, kz) for kc, kz in corners]
+        caps = {kc: _parts(bus, steps_in, kc, 1.0)[1:] for kc in kcs}
+        nominal = [h for h in _zeros(a_of[1.0], *caps[1.0]) if h <= H_SEARCH_MAX]
+        at = [[h for h in _zeros(a_of[kz], *caps[kc]) if h <= H_SEARCH_MAX] for kc, kz in corners]
         ranges = []
         for i, h0 in enumerate(nominal):
             vals = [h0] + [r[i] for r in at if len(r) > i]
             ranges.append(("parallel", h0, min(vals), max(vals)))
-        tun0 = _tuning(bus, steps_in)
-        tun = [_tuning(bus, steps_in, 1 + c) for c in (t.cap_lo, t.cap_hi)]
+        if any(bus.steps[k].p > 0 for k in steps_in):
+            tun0 = _tuning(bus, steps_in)
+            tun = [_tuning(bus, steps_in, 1 + c) for c in (t.cap_lo, t.cap_hi)]
+        else:  # no detuned step in: no tuning order
+            tun0, tun = [], [[], []]
         for i, n0 in enumerate(tun0):
             vals = [n0] + [r[i] for r in tun if len(r) > i]
             ranges.append(("tuning", n0, min(vals), max(vals)))
@@ -224,8 +234,7 @@ def _screen(bus, combos, harmonics, tolerances, band):
             for H in _hits(lo, hi, harm, band):
                 where = (f"resonates at order {h0:.2f} ({h0 * bus.f_hz:.0f} Hz)" if kind == "parallel"
                          else f"has a detuned branch tuned to order {h0:.2f} ({h0 * bus.f_hz:.0f} Hz)")
-                span = (f"with capacitance {_pct(t.cap_lo)} to {_pct(t.cap_hi)} and transformer impedance "
-                        f"{_pct(t.z_lo)} to {_pct(t.z_hi)} it lies between {lo:.2f} and {hi:.2f}")
+                span = f"{box} it lies between {lo:.2f} and {hi:.2f}"
                 if kind == "tuning":
                     todo = (f"the branch will absorb the {H}{_th(H)} harmonic from the whole network and overload: "
                             "use a higher detuning factor (a lower tuning order)")

@@ -21,6 +21,7 @@ it is × ``factor`` (:func:`pycore.capacitor.output_factor`).
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -108,7 +109,9 @@ class Plan:
     acceptable: bool
 
 
-def _patterns(max_steps: int) -> list[tuple[str, tuple]]:
+@functools.lru_cache(maxsize=None)
+def _patterns(max_steps: int) -> tuple:
+    # the (pattern, weights) tried for each most-steps: a fixed table, built once
     tried = []
     for pattern in PLAN_PATTERNS:
         for n in range(MIN_AUTO_STEPS, max_steps + 1):
@@ -116,15 +119,24 @@ def _patterns(max_steps: int) -> list[tuple[str, tuple]]:
             if pattern == "binary" and sum(w) > 4096:
                 break
             tried.append((pattern, w))
-    return tried
+    return tuple(tried)
 
 
-def _candidates(need_rated: float, ratings, tried) -> list[tuple[str, tuple, StepPlan]]:
+class _Rounded(dict):
+    """x → round(x, 6), each distinct x rounded once (round to places is dear: it prints the float);
+    one per search, many plans share their step sizes."""
+
+    def __missing__(self, x):
+        r = self[x] = round(x, 6)
+        return r
+
+
+def _candidates(need_rated: float, ratings, tried, r6: _Rounded) -> list[tuple[str, tuple, StepPlan]]:
     seen: dict[tuple, tuple] = {}
     for (pattern, w), pl in zip(tried, plan_steps_many(need_rated, ratings, [w for _, w in tried])):
         if pl is None:
             continue
-        key = tuple(round(s, 6) for s in pl.steps)
+        key = tuple(map(r6.__getitem__, pl.steps))
         if key not in seen:
             seen[key] = (pattern, w, pl)
     return list(seen.values())
@@ -147,19 +159,20 @@ def three_plans(need_rated: float, ratings, factor: float, full: Load, target_pf
     def info(c):
         pattern, w, pl = c
         exc = pl.total - need_rated
-        ok = exc <= ACCEPTABLE_EXCESS * need_rated + 1e-9 and max(len(u) for u in pl.units) <= UNITS_PER_STEP_LIMIT
-        return round(exc, 6), round(min(pl.steps), 6), len(pl.steps), ok
+        ok = exc <= ACCEPTABLE_EXCESS * need_rated + 1e-9 and max(map(len, pl.units)) <= UNITS_PER_STEP_LIMIT
+        return r6[exc], r6[min(pl.steps)], len(pl.steps), ok
 
     tried = _patterns(max_steps)
+    r6 = _Rounded()
     # plans that cannot be acceptable (a huge binary pattern of small units) are worked out only
     # when no acceptable plan exists: they could not be offered otherwise
     # every step holds at least one unit, so a plan's total is at least the smallest unit × Σw
     small = min((r for r in ratings if isinstance(r, (int, float)) and r > 0), default=0.0)
     hopeful = [t for t in tried if small * sum(t[1]) <= (1 + ACCEPTABLE_EXCESS) * need_rated + 1e-9]
-    rows = [(c, info(c)) for c in _candidates(need_rated, ratings, hopeful)]
+    rows = [(c, info(c)) for c in _candidates(need_rated, ratings, hopeful, r6)]
     pool = [r for r in rows if r[1][3]]
     if not pool:
-        cands = _candidates(need_rated, ratings, tried)
+        cands = _candidates(need_rated, ratings, tried, r6)
         if not cands:
             raise InputError("No automatic bank can be built from these unit ratings: add larger or smaller ratings.")
         pool = rows = [(c, info(c)) for c in cands]

@@ -174,6 +174,33 @@ def test_plan_steps_many_is_plan_steps_for_each(need, ratings, weight_lists):
         assert got == one
 
 
+@settings(max_examples=150, deadline=None)
+@given(
+    need=st.floats(min_value=0.5, max_value=400.0),
+    ratings=st.lists(st.sampled_from([2.5, 5, 7.5, 10, 12.5, 15, 20, 25, 50]), min_size=1, max_size=4, unique=True),
+    weight_lists=st.lists(st.lists(st.integers(1, 16), min_size=1, max_size=6), min_size=2, max_size=8),
+    max_states=st.integers(5, 60),
+)
+def test_plan_steps_many_shares_step_units_beyond_a_small_table(need, ratings, weight_lists, max_states):
+    # a small table puts steps beyond it, where their units may be the base's own: a step of the same
+    # size in two plans of different bases must still get each plan's own units, as plan_steps gives
+    many = banksteps.plan_steps_many(need, ratings, weight_lists, max_states)
+    for w, got in zip(weight_lists, many):
+        try:
+            one = banksteps.plan_steps(need, ratings, w, max_states)
+        except InputError:
+            one = None
+        assert got == one
+
+
+def test_plan_steps_many_keeps_each_base_beyond_the_table():
+    # a table of 6 grid steps: 7 × 50 and 10 × 35 kvar are the same 350 kvar step beyond the table,
+    # each made from its own base's units; the batch must not hand one plan's units to the other
+    need, ratings, lists = 333.5, [20, 7.5, 12.5], [[7], [13], [10]]
+    many = banksteps.plan_steps_many(need, ratings, lists, 6)
+    assert many == [banksteps.plan_steps(need, ratings, w, 6) for w in lists]
+
+
 def test_plan_prefers_single_units():
     # 220 kvar as 1:2:2:2:2:2 → 20 + 5 × 40: each step one purchasable unit (fewest units)
     plan = banksteps.plan_steps(198.9, STOCK, [1, 2, 2, 2, 2, 2])

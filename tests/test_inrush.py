@@ -119,6 +119,47 @@ def test_detuned_reactor_limits_inrush_and_plain_steps_need_a_reactor():
     assert ir.limiting_inductance_h(tuned, V, ls) == 0.0
 
 
+@pytest.mark.parametrize("sizes,runs,source,contactor", [
+    ((10, 20, 20, 20, 20, 20), (2, 2, 2, 2, 2, 2), True, None),
+    ((50, 25, 25, 100, 25), (1, 3, 3, 0.5, 3), False, None),
+    ((12.5, 25, 25, 50), (2, 2, 2, 2), True, 2500.0),
+    ((40, 40, 40), (0.2, 0.2, 0.2), False, 1500.0),
+])
+def test_limiting_reactor_brings_the_worst_step_to_its_limit(sizes, runs, source, contactor):
+    # steps alike and unlike, with and without the source and a contactor's peak: with the added
+    # inductance the worst step sits at its limit (the bisection's width), every other step below
+    lm = ir.connection_inductance_h
+    steps = [ir.step_circuit(q, V, F, lm(d)) for q, d in zip(sizes, runs)]
+    ls = ir.source_inductance_h(V, F, 1000 / 0.06) if source else None
+    add = ir.limiting_inductance_h(steps, V, ls, contactor)
+    assert add > 0
+
+    def worst(extra):
+        grown = [ir.StepCircuit(s.c_f, s.l_h + extra, 0.0, s.i_rated_a) for s in steps]
+        res = ir.bank_inrush(grown, V, ls)
+        return max(r.worst / (r.limit_a if contactor is None else min(r.limit_a, contactor)) for r in res)
+
+    assert worst(add) == pytest.approx(1.0, rel=1e-5) and worst(add) <= 1.0 + 1e-9
+    assert worst(add * (1 - 1e-4)) > 1.0
+
+
+def test_bank_inrush_is_each_step_worked_alone():
+    # steps alike in runs and apart, one of them with another run length: every step's inrush is the one
+    # worked out for it alone from isolated() and back_to_back() with the others in bank order
+    lm = ir.connection_inductance_h
+    sizes, runs = (25, 50, 50, 50, 25, 50, 50, 12.5), (2, 2, 2, 3, 2, 2, 2, 2)
+    steps = [ir.step_circuit(q, V, F, lm(d)) for q, d in zip(sizes, runs)]
+    ls = ir.source_inductance_h(V, F, 1000 / 0.06)
+    got = ir.bank_inrush(steps, V, ls, 4000.0)
+    for k, st in enumerate(steps):
+        alone = ir.isolated(st, V, ls)
+        b2b = ir.back_to_back(st, steps[:k] + steps[k + 1:], V)
+        assert got[k].alone == alone and got[k].back_to_back == b2b
+        assert got[k].worst == max(alone.peak_a, b2b.peak_a)
+        assert got[k].limit_a == ir.CAPACITOR_INRUSH_MULTIPLE * st.i_rated_a
+        assert got[k].within == (got[k].worst <= min(got[k].limit_a, 4000.0) * (1 + 1e-12))
+
+
 def test_contactor_limit_is_applied():
     lm = ir.connection_inductance_h
     steps = [ir.step_circuit(q, V, F, lm(3), p=0.07) for q in (25, 50)]

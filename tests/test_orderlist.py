@@ -85,3 +85,50 @@ def test_bad_inputs():
         ol.design_bank([10], [(10,)], 400, 50, 440, 60, p=0.07)
     with pytest.raises(InputError):
         ol.design_bank([10], [(10,)], 400, 50, 440, 50, profile="csa")
+
+
+def _alike_bank(p=0.0):
+    # runs of alike steps, one of them on a shorter run (so its inrush and contactor differ), a source given
+    return ol.design_bank([25, 50, 50, 50, 50, 25], [(25,), (50,), (25, 25), (50,), (50,), (25,)], 400, 50, 440, 50,
+                          "delta", p, "iec", s_sc_kva=1000 / 0.06, lengths_m=[2, 2, 2, 2, 0.05, 2], contactor_peak_a=6000)
+
+
+@pytest.mark.parametrize("p", [0.0, 0.07])
+def test_alike_steps_each_get_their_own_parts(p):
+    # every step's parts are those its own figures give (a step alike the one before shares them;
+    # the step on the short run must not)
+    from pycore import capacitor, inrush
+    b = _alike_bank(p)
+    runs = [2, 2, 2, 2, 0.05, 2]
+    for d in b.steps:
+        q_sys = (detuning.branch_output_kvar(d.q_rated_kvar, 400, 440, p) if p
+                 else d.q_rated_kvar * capacitor.output_factor(400, 440, 50, 50))
+        assert d.q_system_kvar == q_sys
+        assert d.circuit == inrush.step_circuit(q_sys, 400, 50, inrush.connection_inductance_h(runs[d.number - 1]), p)
+        assert d.fuse == protection.fuse(d.i_n_a, "iec")
+        lim = min(d.inrush.limit_a, 6000)
+        assert d.contactor == protection.contactor(d.i_n_a, bool(p), d.inrush.worst, lim, "iec")
+        assert d.discharge == discharge.discharge_resistor(d.q_rated_kvar, 440, 50, "delta", "iec")
+        assert d.reactor == (detuning.design_branch(400, 50, d.q_system_kvar, p, 440) if p else None)
+    assert b.steps[4].inrush != b.steps[3].inrush
+    if not p:  # plain: the short run's inrush needs another contactor
+        assert b.steps[4].contactor != b.steps[3].contactor
+    assert b.steps[2].units == (25, 25) and b.steps[1].units == (50,)
+
+
+@pytest.mark.parametrize("p", [0.0, 0.07])
+def test_order_rows_are_each_step_listed_alone(p):
+    # the rows of every step are those of a bank of that step alone, whatever the steps beside it
+    from dataclasses import replace
+    b = _alike_bank(p)
+    rows = ol.order_rows(b)
+    for d in b.steps:
+        alone = [r for r in ol.order_rows(replace(b, steps=(d,))) if r.section.startswith("Step")]
+        assert [r for r in rows if r.section == f"Step {d.number}"] == alone
+    # a step made alike the one before in all but one part must show that part
+    d1, d2 = b.steps[1], b.steps[3]
+    for part in ("fuse", "cable", "discharge", "inrush", "contactor", "cable_needed_a"):
+        odd = replace(d2, number=3, **{part: getattr(b.steps[0], part)})
+        mixed = replace(b, steps=(d1, odd))
+        three = [r for r in ol.order_rows(mixed) if r.section == "Step 3"]
+        assert three == [r for r in ol.order_rows(replace(b, steps=(odd,))) if r.section == "Step 3"]

@@ -144,23 +144,24 @@ def combinations_table(out, cx):
     """The table of step combinations and the resonance warning it leads to."""
     bank, combos, existing, light_check, light_net, near_orders = cx.bank, cx.combos, cx.existing, cx.light_check, cx.light_net, cx.near_orders
     net, pf2, s_sc, v = cx.net, cx.pf2, cx.s_sc, cx.v
-    target_combo = next((c for c in combos if net.corrected(c.total).pf >= pf2 - 1e-9 and net.corrected(c.total).sense != "leading"), None)
+    # each position's power factor and sense at full load, worked once (the target and the rows use them)
+    full = [(a.pf, a.sense) for a in [net.corrected(c.total) for c in combos]]
+    target_combo = next((c for c, (pf, sense) in zip(combos, full) if pf >= pf2 - 1e-9 and sense != "leading"), None)
     hits = view.by_label(cx.screen)
     rows = []
-    levels = combos
+    levels = list(zip(combos, full))
     note_cut = ""
-    if len(levels) > 64:
-        stride = math.ceil(len(levels) / 64)
-        keep = set(levels[::stride]) | {levels[-1]}
+    if len(combos) > 64:
+        stride = math.ceil(len(combos) / 64)
+        keep = set(combos[::stride]) | {combos[-1]}
         if target_combo:
             keep.add(target_combo)
         if light_check and light_check.best:
             keep.add(light_check.best)
-        levels = [c for c in combos if c in keep]
+        levels = [(c, at) for c, at in levels if c in keep]
         note_cut = f"Showing {len(levels)} of {len(combos)} positions, evenly spread. "
-    for c in levels:
-        a = net.corrected(c.total)
-        row = ["All (fixed bank)" if bank == "fixed" else "+".join(str(i) for i in c.on), fmt.sig(c.total), _pf_text(a.pf, a.sense)]
+    for c, (pf, sense) in levels:
+        row = ["All (fixed bank)" if bank == "fixed" else "+".join(str(i) for i in c.on), fmt.sig(c.total), _pf_text(pf, sense)]
         notes = []
         if light_net is not None:
             lt = light_net.corrected(c.total)

@@ -160,7 +160,7 @@ def bus_resonance_order(cx, on=None) -> float:
 
 def sizing_texts(ins) -> dict:
     """The correction inputs as typed (visible fields), for a round trip through the study."""
-    return {f.name: ins.text_of(f.name) for f in ins.sheet.fields if ins.visible(f.name) and ins.text_of(f.name) != ""}
+    return {f.name: text for f in ins.sheet.fields if ins.visible(f.name) and (text := ins.text_of(f.name)) != ""}
 
 
 def study_link(ins, out, cx) -> None:

@@ -202,12 +202,16 @@ def order_list(out, cx):
 
     # --- per step: inrush and discharge
     srows = []
+    last = None
     for d in bd.steps:
         ir = d.inrush
-        srows.append([str(d.number), fmt.sig(d.q_system_kvar), _inrush_text(ir.alone), _inrush_text(ir.back_to_back),
-                      f"{fmt.sig(ir.limit_a, 3)} A", "yes" if ir.within else "NO",
-                      f"≤ {fmt.sig(d.discharge.r_max_ohm / 1e3, 3)} kΩ, {fmt.sig(d.discharge.p_element_max_w, 2)} W",
-                      f"{fmt.sig(d.discharge.reclose_s, 2)} s"])
+        if last is None or (d.q_system_kvar, ir, d.discharge) != last:  # else alike the step before: the same cells
+            cells = [fmt.sig(d.q_system_kvar), _inrush_text(ir.alone), _inrush_text(ir.back_to_back),
+                     f"{fmt.sig(ir.limit_a, 3)} A", "yes" if ir.within else "NO",
+                     f"≤ {fmt.sig(d.discharge.r_max_ohm / 1e3, 3)} kΩ, {fmt.sig(d.discharge.p_element_max_w, 2)} W",
+                     f"{fmt.sig(d.discharge.reclose_s, 2)} s"]
+            last = (d.q_system_kvar, ir, d.discharge)
+        srows.append([str(d.number)] + cells)
     out.table("Inrush and discharge per step",
               ["Step", f"kvar at {fmt.sig(cx.v)} V", "Inrush alone", "Inrush back to back", "Limit (peak)", "Within",
                "Discharge resistor per element", "Reclose after"], srows,
