@@ -12,13 +12,13 @@ app's own. Units: kvar, V, Hz, A, H/mH/µH as named, Ω, W, s.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from . import cables, discharge, inrush, protection
 from .capacitor import conductor_basis, line_current, output_factor
 from .detuning import branch_output_kvar, design_branch
 from .errors import InputError, guarded
+from .numtext import sig as _sig
 from .stepplans import ck_setting_a
 
 DEFAULT_STEP_LENGTH_M = 2.0
@@ -30,13 +30,6 @@ PROFILES = {
     "nec": ("nec", cables.NEC_CU_75, "nec"),
     "iec": ("iec", cables.IEC_C_PVC, "iec"),
 }
-
-
-def _sig(x: float, n: int = 3) -> str:
-    """x to n significant figures, no exponent, no trailing zeros ('5', '16.1', '1200')."""
-    if not math.isfinite(x):
-        return f"{x:g}"
-    return f"{float(f'{x:.{n}g}'):.12g}"
 
 
 def _cable_need(i_n: float, profile: str, fuse: protection.Device) -> float:
