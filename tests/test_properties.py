@@ -688,6 +688,7 @@ CASES.update({
     "discharge.fast_discharge": A(F, F, F, CONN2, F),
     "discharge.reclose_delay_s": A(F, F),
     "protection.fuse": A(F, st.sampled_from(["iec", "nec", "x"])),
+    "numtext.sig": A(F, st.integers(1, 6)),
     "protection.breaker": A(F, st.sampled_from(["iec", "nec", "x"])),
     "protection.contactor": A(F, BOOL, F, F, PROFILE),
     "cables.check_rows": A(st.lists(st.tuples(st.text(max_size=4), F), max_size=4)),
