@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import json
 import math
-from typing import Any, Optional
+from typing import Any, Callable, Optional
 
 from pycore.complexparse import parse_complex
 from pycore.errors import InputError
@@ -29,7 +29,7 @@ class Inputs:
         self.raw = {k: ("" if v is None else v) for k, v in raw.items()}
         self.errors: dict[str, str] = {}
         self.echo: dict[str, Reading] = {}  # what each typed reader read, for reports
-        self._field = sheet.field  # asked hundreds of times per computation: the sheet's own lookup, bound once
+        self._field: Callable[[str], Field] = sheet.field  # asked hundreds of times per computation: bound once
 
     def _record(self, name: str, value: Any, cells: Optional[list] = None) -> Any:
         """Note what a reader read from a field (the last read wins) and pass the value on."""
@@ -58,10 +58,7 @@ class Inputs:
         self.echo = read
         return out
 
-    # -- helpers
-    def _field(self, name: str) -> Field:  # replaced per instance by the sheet's bound lookup (see __init__)
-        return self.sheet.field(name)
-
+    # -- helpers (``self._field(name)``: the sheet's field lookup, bound in __init__)
     def visible(self, name: str) -> bool:
         f = self._field(name)
         if not f.show_when:

@@ -48,15 +48,15 @@ export function showAnswerBar(res, remembered = false) {
 
 /** The engine pill's words while it starts: "Checking…" while a remembered result is on screen (on a
  * phone the headline's own mark can be clipped by its three-line clamp; the pill always shows). */
-export const ENGINE_STARTING = { plain: "Starting…", remembered: "Checking…" };
+export const startingWords = () => ($("results").hasAttribute("data-remembered") ? "Checking…" : "Starting…");
 
 /** Mark the result on screen as remembered (not yet confirmed), or clear the mark. */
 export function markRemembered(on) {
-  const pill = $("engine");
-  if (pill && pill.dataset.state === "starting") pill.textContent = ENGINE_STARTING[on ? "remembered" : "plain"];
   const head = $("headline");
   $("results").toggleAttribute("data-remembered", on);
   head.toggleAttribute("data-remembered", on);
+  const pill = $("engine");
+  if (pill.dataset.state === "starting") pill.textContent = startingWords();
   for (const el of document.querySelectorAll(".remembered-mark")) el.remove();
   if (!on) return;
   // on the headline's border, out of the flow: the mark does not change the box's size
