@@ -1,5 +1,17 @@
 // The one object that owns the Python worker: id-matched calls, status, and a coalescing
 // compute queue so only the newest edit is computed when typing is fast.
+
+// The memory snapshot's maker (worker.js under the name "snapshot-maker") is started here, by the
+// page, not by the engine worker: only a worker started once the service worker controls the page
+// reads pyodide.asm.wasm from Cache Storage, and Chromium keeps compiled wasm code beside the entry
+// the response came from. A maker started by the engine worker on a first visit (not yet
+// controlled) read it from the network, so later offline starts found no compiled code in 2 of 4
+// fresh profiles and ran unoptimised code until some long session stored it (docs/performance.md).
+const MAKER_DELAY_MS = 3000; // after the first result and the bytecode save, not during them
+// V8 hands its optimised code over for storing only after its compiler has been quiet a while
+// (about 2 s); a maker ended at once sometimes left none stored.
+const MAKER_HOLD_MS = 4000;
+
 export class Engine extends EventTarget {
   constructor(url = "./worker.js", options = {}, adopt = null) {
     super();
@@ -8,7 +20,8 @@ export class Engine extends EventTarget {
     this.nextId = 1;
     this.pending = new Map();
     // Adopt a worker started earlier by boot.js (replaying what it has said so far), or start one.
-    this.worker = adopt ? adopt.worker : new Worker(new URL(url, import.meta.url), { type: "module", name: options.name || "engine" });
+    this.url = adopt ? adopt.url : new URL(url, import.meta.url);
+    this.worker = adopt ? adopt.worker : new Worker(this.url, { type: "module", name: options.name || "engine" });
     this.worker.onmessage = (e) => this._onMessage(e.data);
     if (adopt) for (const m of adopt.early.splice(0)) this._onMessage(m);
     this.worker.onerror = (e) => this._setState("failed", e.message || "the engine could not start");
@@ -24,6 +37,10 @@ export class Engine extends EventTarget {
     if (m.type === "status") {
       this.marks[m.stage] = m.at - performance.timeOrigin; // the worker sends absolute times
       this.dispatchEvent(new CustomEvent("stage", { detail: m }));
+      return;
+    }
+    if (m.type === "snapshot-wanted") {
+      this._startMaker();
       return;
     }
     if (m.type === "ready") {
@@ -42,6 +59,38 @@ export class Engine extends EventTarget {
     this.pending.delete(m.id);
     if ("error" in m) p.reject(new Error(m.error));
     else p.resolve(m.result);
+  }
+
+  _stage(stage) {
+    this.marks[stage] = performance.now();
+    this.dispatchEvent(new CustomEvent("stage", { detail: { type: "status", stage } }));
+  }
+
+  /** Start the snapshot maker once the service worker controls this page; end it a while after it reports. */
+  async _startMaker() {
+    const sw = navigator.serviceWorker;
+    if (this.maker || !sw) return;
+    this.maker = "waiting";
+    if (!sw.controller) await new Promise((resolve) => sw.addEventListener("controllerchange", resolve, { once: true }));
+    await new Promise((resolve) => setTimeout(resolve, MAKER_DELAY_MS));
+    let maker;
+    const end = (stage, why) => {
+      if (why) console.warn("memory snapshot not made:", why);
+      this._stage(stage);
+      setTimeout(() => maker.terminate(), MAKER_HOLD_MS);
+    };
+    try {
+      maker = this.maker = new Worker(this.url, { type: "module", name: "snapshot-maker" });
+    } catch (err) {
+      console.warn("memory snapshot maker not started:", err);
+      return;
+    }
+    maker.onmessage = (e) => {
+      const m = e.data || {};
+      if (m.type === "snapshot-saved") end(m.type);
+      else if (m.type === "snapshot-failed") end(m.type, m.error);
+    };
+    maker.onerror = (e) => end("snapshot-failed", e.message || "the maker failed");
   }
 
   /** Send one operation; resolves with the worker's string result. */

@@ -46,9 +46,21 @@ export function unpackWheel(pyodide, buf) {
   pyodide.unpackArchive(buf, "wheel", { extractDir: site });
 }
 
+// The snapshot's interpreter imports the app from the wheel itself (zipimport), not from unpacked
+// files: a restored interpreter then needs only this one file written back (well under 1 ms),
+// where unpacking the wheel's files took 22–42 ms of every warm start (docs/performance.md).
+// Everything the app imports is in the snapshot already; the path serves anything imported later.
+const APP_ZIP = "/lib/fp-app.whl";
+
+function writeAppZip(pyodide, buf) {
+  pyodide.FS.writeFile(APP_ZIP, new Uint8Array(buf));
+}
+
 // ---- memory snapshot: one per build, made on the device by a short-lived second worker ----
 const SNAPSHOT_CACHE = "fp-snapshot";
-const snapshotKey = (info) => here(`./__snapshot/${info.app_wheel_sha256}-${info.pyodide}.bin`);
+// The key also names how the snapshot's interpreter finds the app ("appzip": imports from APP_ZIP),
+// so a snapshot an older worker made (the wheel unpacked) is never restored by this one.
+const snapshotKey = (info) => here(`./__snapshot/${info.app_wheel_sha256}-${info.pyodide}-appzip.bin`);
 
 /** Whether this profile has ever stored a snapshot (none on a first visit). Asked before engine.json
  * arrives, so a first visit starts Pyodide's downloads at once instead of after that round trip
@@ -123,16 +135,16 @@ async function dropSnapshot(info) {
   try { await (await caches.open(SNAPSHOT_CACHE)).delete(snapshotKey(info)); } catch { /* nothing to drop */ }
 }
 
-// Restore the interpreter from the snapshot, install the wheel's files (for anything imported
-// later) and run the probe worksheet: the snapshot is used only when its answer matches the one
-// recorded when it was made. Returns the interpreter, or null after discarding a bad snapshot.
+// Restore the interpreter from the snapshot, write the app's wheel back where it imports from
+// (for anything imported later) and run the probe worksheet: the snapshot is used only when its
+// answer matches the one recorded when it was made. Returns the interpreter, or null after discarding a bad snapshot.
 export async function bootFromSnapshot(info, hit, appWheel, pyodideOpts, mark) {
   try {
     const memory = hit.arrayBuffer().then((buf) => unpackSnapshot(new Uint8Array(buf), hit.headers.get("x-fp-layout")));
     memory.catch(() => {}); // handled: loadPyodide awaits it and the catch below reports it
     const pyodide = await loadPyodide({ ...pyodideOpts, _loadSnapshot: memory });
     mark("snapshot-restored");
-    unpackWheel(pyodide, await appWheel);
+    writeAppZip(pyodide, await appWheel);
     const probe = pyodide.runPython("from app import snapshot\nsnapshot.probe()");
     if (probe !== hit.headers.get("x-fp-probe")) throw new Error("its probe result differs from a fresh start's");
     mark("snapshot-checked");
@@ -150,9 +162,9 @@ export async function makeSnapshot(pyodideOpts) {
   const info = await fetchInfo();
   const appWheel = fetchWheel(info);
   const pyodide = await loadPyodide({ ...pyodideOpts, _makeSnapshot: true });
-  unpackWheel(pyodide, await appWheel);
-  // imports every worksheet and runs each on its defaults: no user data is ever in a snapshot
-  const probe = pyodide.runPython("from app import snapshot\nsnapshot.prepare()");
+  writeAppZip(pyodide, await appWheel);
+  // Imports the bridge and every worksheet and runs each on its defaults: no user data is ever in a snapshot.
+  const probe = pyodide.runPython(`import sys\nsys.path.append(${JSON.stringify(APP_ZIP)})\nfrom app import bridge, snapshot\nsnapshot.prepare()`);
   const { body, layout } = packSnapshot(pyodide.makeMemorySnapshot());
   const cache = await caches.open(SNAPSHOT_CACHE);
   const key = snapshotKey(info);

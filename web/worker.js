@@ -1,7 +1,7 @@
 // Hosts Pyodide: boots it (from this build's memory snapshot when there is a good one), installs
 // the app's own wheel offline, and answers {id, op, ...} messages with {id, result} or {id, error}.
-// No engineering logic here. The same file, started under the name "snapshot-maker", makes the
-// snapshot (see app/snapshot.py and DEVELOPERS.md). The wheel, snapshot and bytecode caches are in
+// No engineering logic here. The same file, started by the page under the name "snapshot-maker",
+// makes the snapshot (see app/snapshot.py and DEVELOPERS.md). The wheel, snapshot and bytecode caches are in
 // worker-caches.js.
 import { loadPyodide } from "./pyodide/pyodide.mjs";
 import {
@@ -22,26 +22,14 @@ const mark = (name) => {
   postMessage({ type: "status", stage: name, at: marks[name] });
 };
 
-let makerStarted = false;
-function startSnapshotMaker() {
-  if (makerStarted || !USE_SNAPSHOT || typeof Worker === "undefined" || !self.caches) return;
-  makerStarted = true;
-  setTimeout(() => {
-    try {
-      const maker = new Worker(here("./worker.js"), { type: "module", name: "snapshot-maker" });
-      maker.onmessage = (e) => {
-        const m = e.data || {};
-        if (m.type === "snapshot-saved" || m.type === "snapshot-failed") {
-          if (m.type === "snapshot-failed") console.warn("memory snapshot not made:", m.error);
-          mark(m.type);
-          maker.terminate();
-        }
-      };
-      maker.onerror = (e) => { console.warn("memory snapshot maker failed:", e.message); mark("snapshot-failed"); maker.terminate(); };
-    } catch (err) {
-      console.warn("memory snapshot maker not started:", err);
-    }
-  }, 3000); // after the first result and the bytecode save, not during them
+// The snapshot is made by a second, short-lived worker that the page starts when asked (see
+// engine.js: a worker the service worker controls, so Chromium keeps its compiled wasm beside the
+// cached file that later offline starts read).
+let snapshotAsked = false;
+function askForSnapshot() {
+  if (snapshotAsked || !USE_SNAPSHOT || !self.caches) return;
+  snapshotAsked = true;
+  postMessage({ type: "snapshot-wanted" });
 }
 
 // ---- the engine ----
@@ -99,7 +87,7 @@ let savedModules = 0;
 let saveTimer = 0;
 function afterCompute() {
   if (!engine || engine.fromSnapshot || !self.caches) return;
-  startSnapshotMaker();
+  askForSnapshot();
   const n = engine.pyodide.runPython("import sys\nlen(sys.modules)");
   if (n === savedModules) return;
   clearTimeout(saveTimer);

@@ -27,6 +27,19 @@ def reference(page, sheet_id: str) -> list:
     return [(r["name"], r["display"]) for r in cpython_compute(sheet_id, inputs)["results"]]
 
 
+# Every worker the page constructs, with whether the service worker controlled the page then.
+RECORD_WORKERS = """(() => {
+    const Real = window.Worker;
+    window.__workers = [];
+    window.Worker = class extends Real {
+        constructor(url, options) {
+            super(url, options);
+            window.__workers.push({ name: (options || {}).name || '', controlled: !!navigator.serviceWorker.controller });
+        }
+    };
+})()"""
+
+
 def first_visit_until_snapshot(page, site):
     page.goto(site + "#/sheet/correction")
     wait_ready(page)
@@ -68,6 +81,23 @@ def test_later_start_restores_snapshot_and_every_worksheet_answers_as_cpython(br
                 # the last digit may differ from this CPython's. Numbers agree to 1e-12, text exactly.
                 assert same_csv_cells(got.pop("text"), want.pop("text"))
             assert got == want, fmt
+        # The snapshot holds only what the app imported; a module imported later (the benchmark's
+        # timing cases: see test_registry) comes from the app's wheel, written back after a restore.
+        timed = page.evaluate("() => window.fieldphasor.engine.json('time_call', {name: 'opening_sheet', runs: 1})")
+        assert timed.get("name") == "opening_sheet" and len(timed["ms"]) == 1, timed
+
+
+def test_snapshot_maker_is_started_by_the_page_once_the_service_worker_controls_it(browser, site):
+    # Chromium keeps compiled wasm code beside the Cache Storage entry a response came from, which
+    # only a worker the service worker controls reads; the engine worker of a first visit is not.
+    with guarded_page(browser, site, viewport=PHONE) as page:
+        page.context.add_init_script(RECORD_WORKERS)
+        first_visit_until_snapshot(page, site)
+        workers = page.evaluate("() => window.__workers")
+        makers = [w for w in workers if w["name"] == "snapshot-maker"]
+        assert makers == [{"name": "snapshot-maker", "controlled": True}], workers
+        # the engine worker of this first visit started before the service worker took over
+        assert workers[0] == {"name": "engine", "controlled": False}, workers
 
 
 def test_snapshot_that_fails_its_check_is_refused_and_engine_boots_normally(browser, site):
