@@ -17,13 +17,16 @@ from .icons import build_icons
 from .prerender import render_index
 from .stdlib import write_trimmed
 from .wheel import build_app_wheel
+from .workerbundle import bundle
 
 # Shipped but not precached: fetched (and then kept, digest-checked, by the service worker) only by
 # the micropip install path (?installer=micropip), which loads the whole standard library and
 # Pyodide's package list. The default start passes a package list with no packages (engine.json's
 # "pyodide_lock") and reads the trimmed standard library.
 FULL_STDLIB = "pyodide/python_stdlib-full.zip"
-ON_DEMAND = ("pyodide/pyodide-lock.json", FULL_STDLIB, *(f"wheels/{w}" for w in WHEELS))
+# pyodide.mjs, Pyodide's loader, is written into worker.js (buildkit/workerbundle.py); the file
+# itself is kept for the benchmark's bare-boot page and the Node checks, fetched only by them.
+ON_DEMAND = ("pyodide/pyodide-lock.json", "pyodide/pyodide.mjs", FULL_STDLIB, *(f"wheels/{w}" for w in WHEELS))
 # Files a static host may send compressed: a gzip copy is written beside each (name + ".gz") when
 # it is at least this much smaller; the standard-library zip and micropip's wheel are deflated
 # already (no copy), PNGs too; the app wheel is stored (buildkit/wheel.py) and gets copies.
@@ -44,6 +47,18 @@ for (const [src, dest] of JSON.parse(fs.readFileSync(0, "utf8"))) {
     [zlib.constants.BROTLI_PARAM_SIZE_HINT]: data.length } }));
 }
 """
+
+
+# web/ files not copied as they are: written from templates, or joined into worker.js
+BUNDLED = ("sw.js", "icon.svg", "index.html", "worker.js", "worker-caches.js")
+
+
+def worker_bundle(*paths: str) -> str:
+    texts = []
+    for path in paths:
+        with open(path, encoding="utf-8") as fh:
+            texts.append(fh.read())
+    return bundle(*texts)
 
 
 def catalog_json() -> str:
@@ -84,8 +99,11 @@ def build(quiet: bool = False) -> str:
 
     for name in sorted(os.listdir(WEB)):
         src = os.path.join(WEB, name)
-        if os.path.isfile(src) and name not in ("sw.js", "icon.svg", "index.html") and not name.startswith("."):
+        if os.path.isfile(src) and name not in BUNDLED and not name.startswith("."):
             shutil.copyfile(src, os.path.join(tmp, name))
+    with open(os.path.join(tmp, "worker.js"), "w", encoding="utf-8") as fh:
+        fh.write(worker_bundle(*(os.path.join(d, n) for d, n in (
+            (WEB, "worker.js"), (WEB, "worker-caches.js"), (os.path.join(tmp, "pyodide"), "pyodide.mjs")))))
     with open(os.path.join(WEB, "index.html"), encoding="utf-8") as fh:
         index = render_index(fh.read(), json.loads(catalog))
     with open(os.path.join(tmp, "index.html"), "w", encoding="utf-8") as fh:

@@ -30,7 +30,7 @@ def test_building_twice_gives_identical_output(dist):
 
 
 def test_precache_lists_every_file_with_its_hash(dist):
-    """Every file is precached or kept on demand (the micropip path's), with its digest; the gzip
+    """Every file is precached or kept on demand, with its digest; the gzip
     and Brotli copies are never asked for by name (a server sends them in place of the file)."""
     sw = open(os.path.join(dist, "sw.js"), encoding="utf-8").read()
     assets = json.loads(re.search(r"const ASSETS = (\[.*?\]);", sw, re.S).group(1))
@@ -39,7 +39,9 @@ def test_precache_lists_every_file_with_its_hash(dist):
     on_disk = {k.replace(os.sep, "/"): v for k, v in tree_digest(dist).items() if k != "sw.js" and not k.endswith((".gz", ".br"))}
     assert listed == on_disk and len(listed) == len(assets) + len(lazy)
     engine = json.load(open(os.path.join(dist, "engine.json")))
-    assert {p for p, _ in lazy} == {"pyodide/pyodide-lock.json", engine["full_stdlib"]} | {f"wheels/{w}" for w in engine["wheels"]}
+    # on demand: the micropip path's files, and Pyodide's loader file (the worker has it written in)
+    assert {p for p, _ in lazy} == ({"pyodide/pyodide-lock.json", "pyodide/pyodide.mjs", engine["full_stdlib"]}
+                                    | {f"wheels/{w}" for w in engine["wheels"]})
     precached = {p for p, _ in assets}
     assert {"pyodide/pyodide.asm.wasm", "pyodide/python_stdlib.zip", f"wheels/{engine['app_wheel']}"} <= precached
     version = re.search(r'const VERSION = "([0-9a-f]+)"', sw).group(1)

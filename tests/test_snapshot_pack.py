@@ -13,6 +13,8 @@ import subprocess
 
 import pytest
 
+from helpers import ROOT
+
 pytestmark = pytest.mark.skipif(not shutil.which("node"), reason="Node.js is not installed")
 
 PAGE = 4096
@@ -81,7 +83,11 @@ def test_pack_keeps_every_byte_and_stores_only_nonzero_pages(dist, tmp_path):
         files.append(str(f))
     runner = tmp_path / "run.mjs"
     runner.write_text(RUNNER)
-    res = subprocess.run(["node", str(runner), os.path.join(dist, "worker-caches.js"), *files],
+    # web/worker-caches.js as a module beside the loader it imports (dist has it joined into worker.js)
+    (tmp_path / "pyodide").mkdir()
+    shutil.copyfile(os.path.join(dist, "pyodide", "pyodide.mjs"), tmp_path / "pyodide" / "pyodide.mjs")
+    shutil.copyfile(os.path.join(ROOT, "web", "worker-caches.js"), tmp_path / "worker-caches.js")
+    res = subprocess.run(["node", str(runner), str(tmp_path / "worker-caches.js"), *files],
                          capture_output=True, text=True, timeout=120)
     assert res.returncode == 0, res.stderr
     got = dict(zip(data, json.loads(res.stdout)))

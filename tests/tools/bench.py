@@ -149,6 +149,8 @@ def measure(args) -> dict:
                     const u = new URL('__bench/' + f, location.href).href;
                     await c.put(u, await fetch(u));
                 }
+                // Pyodide's loader as a file (the app's worker has it written in): kept once fetched
+                await fetch(new URL('pyodide/pyodide.mjs', location.href));
             }""")
             precache = page.evaluate("""async () => {
                 const keys = await caches.keys();
