@@ -77,7 +77,7 @@ export class Engine extends EventTarget {
     const end = (stage, why) => {
       if (why) console.warn("memory snapshot not made:", why);
       this._stage(stage);
-      setTimeout(() => maker.terminate(), MAKER_HOLD_MS);
+      setTimeout(() => { maker.terminate(); this._stage("snapshot-maker-ended"); }, MAKER_HOLD_MS);
     };
     try {
       maker = this.maker = new Worker(this.url, { type: "module", name: "snapshot-maker" });

@@ -86,7 +86,8 @@ class Guard:
         page.on("request", self._on_request)
         page.on("pageerror", lambda e: self.errors.append(f"pageerror: {e}"))
         page.on("console", lambda m: m.type == "error" and self.errors.append(f"console: {m.text}"))
-        page.on("worker", lambda w: w.on("request", self._on_request) if hasattr(w, "on") else None)
+        # Workers' requests (the engine's, the snapshot maker's) reach the page's "request" event too;
+        # a listener on each worker raced the maker's end and left Playwright tasks failing at exit.
 
     def _on_request(self, req):
         url = req.url

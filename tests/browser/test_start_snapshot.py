@@ -98,6 +98,10 @@ def test_snapshot_maker_is_started_by_the_page_once_the_service_worker_controls_
         assert makers == [{"name": "snapshot-maker", "controlled": True}], workers
         # the engine worker of this first visit started before the service worker took over
         assert workers[0] == {"name": "engine", "controlled": False}, workers
+        # kept a few seconds after saving, for V8 to hand over its compiled code (web/engine.js)
+        page.wait_for_function("() => 'snapshot-maker-ended' in window.fieldphasor.engine.marks", timeout=30_000)
+        m = marks(page)
+        assert m["snapshot-maker-ended"] - m["snapshot-saved"] >= 3_900, m
 
 
 def test_snapshot_that_fails_its_check_is_refused_and_engine_boots_normally(browser, site):

@@ -142,6 +142,10 @@ def measure(args) -> dict:
             page.wait_for_function("() => 'bytecode-saved' in window.fieldphasor.engine.marks", timeout=60_000)
             if args.snapshot:
                 page.wait_for_function("() => 'snapshot-saved' in window.fieldphasor.engine.marks", timeout=120_000)
+                # and the maker's few seconds after it (web/engine.js MAKER_HOLD_MS), in which Chromium
+                # stores its compiled wasm beside the cached file: a first visit closed sooner leaves
+                # later starts on unoptimised code until some longer session (docs/performance.md)
+                page.wait_for_function("() => 'snapshot-maker-ended' in window.fieldphasor.engine.marks", timeout=60_000)
             page.evaluate("""async () => {
                 const keys = await caches.keys();
                 const c = await caches.open(keys.find(k => k.startsWith('fieldphasor-')));
