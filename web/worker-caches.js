@@ -137,7 +137,8 @@ async function dropSnapshot(info) {
 
 // Restore the interpreter from the snapshot, write the app's wheel back where it imports from
 // (for anything imported later) and run the probe worksheet: the snapshot is used only when its
-// answer matches the one recorded when it was made. Returns the interpreter, or null after discarding a bad snapshot.
+// answer matches the one recorded when it was made. Returns the interpreter, or null after
+// discarding a bad snapshot.
 export async function bootFromSnapshot(info, hit, appWheel, pyodideOpts, mark) {
   try {
     const memory = hit.arrayBuffer().then((buf) => unpackSnapshot(new Uint8Array(buf), hit.headers.get("x-fp-layout")));

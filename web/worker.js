@@ -1,8 +1,8 @@
 // Hosts Pyodide: boots it (from this build's memory snapshot when there is a good one), installs
 // the app's own wheel offline, and answers {id, op, ...} messages with {id, result} or {id, error}.
 // No engineering logic here. The same file, started by the page under the name "snapshot-maker",
-// makes the snapshot (see app/snapshot.py and DEVELOPERS.md). The wheel, snapshot and bytecode caches are in
-// worker-caches.js.
+// makes the snapshot (see app/snapshot.py and DEVELOPERS.md). The wheel, snapshot and bytecode
+// caches are in worker-caches.js; the build joins both with Pyodide's loader into one dist/worker.js.
 import { loadPyodide } from "./pyodide/pyodide.mjs";
 import {
   here, fetchInfo, pyodideOptions, fetchWheel, unpackWheel, maySnapshot, findSnapshot, bootFromSnapshot, makeSnapshot,
