@@ -50,7 +50,7 @@ for (const [src, dest] of JSON.parse(fs.readFileSync(0, "utf8"))) {
 
 
 # web/ files not copied as they are: written from templates, or joined into worker.js
-BUNDLED = ("sw.js", "icon.svg", "index.html", "worker.js", "worker-caches.js")
+NOT_COPIED = ("sw.js", "icon.svg", "index.html", "worker.js", "worker-caches.js")
 
 
 def worker_bundle(*paths: str) -> str:
@@ -99,7 +99,7 @@ def build(quiet: bool = False) -> str:
 
     for name in sorted(os.listdir(WEB)):
         src = os.path.join(WEB, name)
-        if os.path.isfile(src) and name not in BUNDLED and not name.startswith("."):
+        if os.path.isfile(src) and name not in NOT_COPIED and not name.startswith("."):
             shutil.copyfile(src, os.path.join(tmp, name))
     with open(os.path.join(tmp, "worker.js"), "w", encoding="utf-8") as fh:
         fh.write(worker_bundle(*(os.path.join(d, n) for d, n in (

@@ -69,18 +69,21 @@ export class Engine extends EventTarget {
   /** Start the snapshot maker once the service worker controls this page; end it a while after it reports. */
   async _startMaker() {
     const sw = navigator.serviceWorker;
-    if (this.maker || !sw) return;
-    this.maker = "waiting";
+    if (this.makerAsked || !sw) return;
+    this.makerAsked = true;
     if (!sw.controller) await new Promise((resolve) => sw.addEventListener("controllerchange", resolve, { once: true }));
     await new Promise((resolve) => setTimeout(resolve, MAKER_DELAY_MS));
     let maker;
+    let ended = false;
     const end = (stage, why) => {
+      if (ended) return; // an error after the report, or a second report
+      ended = true;
       if (why) console.warn("memory snapshot not made:", why);
       this._stage(stage);
       setTimeout(() => { maker.terminate(); this._stage("snapshot-maker-ended"); }, MAKER_HOLD_MS);
     };
     try {
-      maker = this.maker = new Worker(this.url, { type: "module", name: "snapshot-maker" });
+      maker = new Worker(this.url, { type: "module", name: "snapshot-maker" });
     } catch (err) {
       console.warn("memory snapshot maker not started:", err);
       return;
