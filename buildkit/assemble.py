@@ -4,6 +4,7 @@ Same sources → byte-identical output."""
 
 from __future__ import annotations
 
+import base64
 import gzip
 import hashlib
 import json
@@ -50,7 +51,9 @@ for (const [src, dest] of JSON.parse(fs.readFileSync(0, "utf8"))) {
 
 
 # web/ files not copied as they are: written from templates, or joined into worker.js
-NOT_COPIED = ("sw.js", "icon.svg", "index.html", "worker.js", "worker-caches.js")
+# index.html's build placeholder, filled with engine.json's SHA-256
+BUILD_META = '<meta name="fp-build" content="{}">'
+NOT_COPIED = ("sw.js", "icon.svg", "index.html", "worker.js", "worker-caches.js", "early.js")
 
 
 def worker_bundle(*paths: str) -> str:
@@ -59,6 +62,24 @@ def worker_bundle(*paths: str) -> str:
         with open(path, encoding="utf-8") as fh:
             texts.append(fh.read())
     return bundle(*texts)
+
+
+# early.js goes into index.html in place of this element; the CSP's script-src then allows it by its hash
+EARLY_SLOT = '<script data-inline="early.js"></script>'
+CSP_SCRIPTS = "script-src 'self' 'wasm-unsafe-eval'"
+
+
+def inline_early(index: str) -> str:
+    """index.html with web/early.js as its one inline script, allowed by the CSP through the script's
+    SHA-256 (CSP Level 3, hash-source) and nothing else: it runs while the page is parsed, before the
+    first frame, without a fetch (remembered result in the first frame)."""
+    with open(os.path.join(WEB, "early.js"), encoding="utf-8") as fh:
+        code = "\n" + fh.read()
+    assert "</script" not in code.lower() and "<!--" not in code, "early.js cannot sit inside <script>"
+    digest = base64.b64encode(hashlib.sha256(code.encode("utf-8")).digest()).decode("ascii")
+    assert index.count(EARLY_SLOT) == 1 and index.count(CSP_SCRIPTS) == 1, "index.html: early.js slot or CSP changed"
+    index = index.replace(CSP_SCRIPTS, f"{CSP_SCRIPTS} 'sha256-{digest}'")
+    return index.replace(EARLY_SLOT, f"<script>{code}</script>")
 
 
 def catalog_json() -> str:
@@ -104,8 +125,29 @@ def build(quiet: bool = False) -> str:
     with open(os.path.join(tmp, "worker.js"), "w", encoding="utf-8") as fh:
         fh.write(worker_bundle(*(os.path.join(d, n) for d, n in (
             (WEB, "worker.js"), (WEB, "worker-caches.js"), (os.path.join(tmp, "pyodide"), "pyodide.mjs")))))
+    # Engine facts the worker needs, with the app wheel's digest for its integrity check.
+    engine = {
+        "version": version,
+        "pyodide": PYODIDE_VERSION,
+        "wheels": sorted(WHEELS),
+        "app_wheel": app_wheel,
+        "app_wheel_sha256": sha256_file(os.path.join(tmp, "wheels", app_wheel)),
+        # loadPyodide waits for a package list before it returns; the app installs no Pyodide
+        # packages, so the default start passes this one (Pyodide's own "info", no packages)
+        # instead of fetching pyodide-lock.json (119 kB). The micropip path reads the real one.
+        "pyodide_lock": {"info": lock_info, "packages": {}},
+        "full_stdlib": FULL_STDLIB,
+    }
+    with open(os.path.join(tmp, "engine.json"), "w", encoding="utf-8") as fh:
+        json.dump(engine, fh, indent=2, sort_keys=True)
+
+    # The build's name in the page (engine.json's SHA-256), read synchronously by remembered.js and app.js:
+    # a result remembered under another build never matches (docs/performance.md, remembered result).
     with open(os.path.join(WEB, "index.html"), encoding="utf-8") as fh:
         index = render_index(fh.read(), json.loads(catalog))
+    assert index.count(BUILD_META.format("")) == 1, "index.html needs its build placeholder"
+    index = index.replace(BUILD_META.format(""), BUILD_META.format(sha256_file(os.path.join(tmp, "engine.json"))))
+    index = inline_early(index)
     with open(os.path.join(tmp, "index.html"), "w", encoding="utf-8") as fh:
         fh.write(index)
     shutil.copyfile(os.path.join(WEB, "icon.svg"), os.path.join(tmp, "icons", "icon.svg"))
@@ -129,22 +171,6 @@ def build(quiet: bool = False) -> str:
     }
     with open(os.path.join(tmp, "manifest.webmanifest"), "w", encoding="utf-8") as fh:
         json.dump(manifest, fh, indent=2, ensure_ascii=False)
-
-    # Engine facts the worker needs, with the app wheel's digest for its integrity check.
-    engine = {
-        "version": version,
-        "pyodide": PYODIDE_VERSION,
-        "wheels": sorted(WHEELS),
-        "app_wheel": app_wheel,
-        "app_wheel_sha256": sha256_file(os.path.join(tmp, "wheels", app_wheel)),
-        # loadPyodide waits for a package list before it returns; the app installs no Pyodide
-        # packages, so the default start passes this one (Pyodide's own "info", no packages)
-        # instead of fetching pyodide-lock.json (119 kB). The micropip path reads the real one.
-        "pyodide_lock": {"info": lock_info, "packages": {}},
-        "full_stdlib": FULL_STDLIB,
-    }
-    with open(os.path.join(tmp, "engine.json"), "w", encoding="utf-8") as fh:
-        json.dump(engine, fh, indent=2, sort_keys=True)
 
     assets, cache_version = write_service_worker(tmp, version)
     gz = write_gzip_copies(tmp)

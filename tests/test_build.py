@@ -180,12 +180,21 @@ def test_pyodide_pinned_and_wasm_served_with_right_type(dist):
     assert build.Handler.extensions_map[".wasm"] == "application/wasm"
 
 
-def test_csp_forbids_inline_and_eval(dist):
+def test_csp_forbids_inline_and_eval_but_early_js_by_its_hash(dist):
+    """The one inline script is web/early.js as it is in the source, allowed by its SHA-256 (CSP Level 3
+    hash-source); nothing else inline, no eval."""
+    import base64
+    import hashlib
+
     html = open(os.path.join(dist, "index.html"), encoding="utf-8").read()
     csp = re.search(r'http-equiv="Content-Security-Policy" content="([^"]+)"', html).group(1)
     assert "'unsafe-inline'" not in csp and "'unsafe-eval'" not in csp
-    assert "script-src 'self' 'wasm-unsafe-eval'" in csp
-    assert "<script>" not in html  # no inline script
+    inline = re.findall(r"<script>(.*?)</script>", html, flags=re.S)
+    assert len(inline) == 1 and "<script " not in html.replace('<script src=', '').replace('<script type="module" src=', '')
+    assert inline[0].strip() == open(os.path.join(build.ROOT, "web", "early.js"), encoding="utf-8").read().strip()
+    digest = base64.b64encode(hashlib.sha256(inline[0].encode("utf-8")).digest()).decode("ascii")
+    scripts = re.search(r"script-src ([^;]+)", csp).group(1).split()
+    assert scripts == ["'self'", "'wasm-unsafe-eval'", f"'sha256-{digest}'"], scripts
 
 
 def test_snapshot_prepare_runs_every_worksheet_and_returns_the_probe():

@@ -14,12 +14,5 @@
   var worker = new Worker(url, { type: "module", name: name });
   // Keep messages that arrive before the Engine takes over (status marks, "ready").
   worker.onmessage = function (e) { early.push(e.data); };
-  // This build's engine.json, read now so the shell knows the build when it runs (a remembered result
-  // is shown only under the build that computed it; see recall in app.js).
-  var build = fetch(new URL("engine.json", document.baseURI))
-    .then(function (r) { return r.ok ? r.text() : null; })
-    .catch(function () { return null; });
-  var boot = (window.__fpBoot = { worker: worker, url: url, early: early, build: build, framed: false });
-  // Set in the first frame when this runs before it (remembered.js draws a remembered result after it).
-  requestAnimationFrame(function () { boot.framed = true; });
+  window.__fpBoot = { worker: worker, url: url, early: early };
 })();

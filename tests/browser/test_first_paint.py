@@ -1,9 +1,10 @@
 """The first frame shows the whole opening form, not the header alone.
 
 index.html carries the opening worksheet's first form sections (build.py) and holds rendering
-until the parser is past that form: ``<link rel="expect" href="#results-body" blocking="render">``
+until the parser is past that form and the inline early.js after it (which puts a reopened draft's
+remembered answer in the first frame): ``<link rel="expect" href="#jobs-view" blocking="render">``
 (HTML Standard, the "expect" link type and the ``blocking`` attribute; Chromium lifts the hold
-when the element with that id is inserted, so the id is on an element after the form). On a slow
+when the element with that id is inserted, so the id is on an element after both). On a slow
 phone the parser otherwise yields part-way and the browser paints a frame with half a form.
 
 The test sends index.html in two parts with a pause in the middle of the form, first as built
@@ -26,7 +27,7 @@ from app import OPENING_SHEET
 from .conftest import PHONE
 
 PAUSE_S = 1.0
-EXPECT = '<link rel="expect" href="#results-body" blocking="render">'
+EXPECT = '<link rel="expect" href="#jobs-view" blocking="render">'
 
 
 def serve_split(dist: str, keep_expect: bool):

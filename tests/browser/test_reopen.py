@@ -348,6 +348,11 @@ def test_remembered_result_is_drawn_before_the_shell_and_kept_by_it(browser, sit
         s = page.evaluate(EARLY_JS)
         assert s["early"] == "drawn" and s["remembered"] and not s["pending"], s
         assert "Remembered — confirming…" in s["marks"], s
+        # drawn before the first frame (index.html holds it for remembered.js), so that frame shows it
+        page.wait_for_function("() => performance.getEntriesByName('first-contentful-paint').length")
+        shown, fcp = page.evaluate("""() => [window.fieldphasor.perf.rememberedShown,
+            performance.getEntriesByName('first-contentful-paint')[0].startTime]""")
+        assert shown < fcp, (shown, fcp)
         assert page.input_value(f"#in-{FIELD}") == VALUE  # the draft's text, put in the static form
         assert page.evaluate(HEADLINE_JS) == want
         assert page.evaluate(ROWS_JS) == rows
@@ -398,6 +403,44 @@ def test_edit_before_the_shell_takes_the_early_result_away(browser, site):
         assert page.evaluate(ROWS_JS) == []
         assert field_top(page) == before
 
+        engine.release()
+        wait_ready(page)
+        settle(page)
+        assert page.evaluate(HEADLINE_JS) == expected_headline({**inputs, FIELD: OTHER})
+
+
+def test_edit_before_any_module_takes_the_first_frame_answer_away(browser, site):
+    """Only index.html and its inline early.js have run (remembered.js and the shell held): the first
+    frame's answer bar goes at the first keystroke, and the modules keep it pending when they arrive."""
+    with reopen_page(browser, site) as page:
+        page.goto(site + f"#/sheet/{SHEET}")
+        wait_ready(page)
+        edit_and_settle(page, VALUE)
+        inputs = page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+        want = expected_headline(inputs)
+
+        engine, modules = HeldEngine(page.context), HeldEngine(page.context, ("**/remembered.js", "**/app.js"))
+        page.reload(wait_until="commit")
+        page.wait_for_function("() => window.__fpEarly && window.__fpEarly.state === 'drawn'")
+        assert page.evaluate("() => !window.fieldphasor || !window.fieldphasor.state")  # no module has run
+        assert page.input_value(f"#in-{FIELD}") == VALUE
+        assert page.evaluate(HEADLINE_JS) == want
+        # and at the top of the results, for a wide screen where the answer bar is hidden
+        assert page.text_content("#results-body .early-answer") == want.removesuffix(" — all results ↓")
+        before = field_top(page)
+        page.fill(f"#in-{FIELD}", OTHER)
+        s = page.evaluate(EARLY_JS.replace("window.fieldphasor && window.fieldphasor.perf.early", "window.__fpEarly.state"))
+        assert s["early"] == "withdrawn" and not s["remembered"] and s["pending"] and s["marks"] == [], s
+        assert want.split(" — ")[0] not in page.evaluate(HEADLINE_JS)
+        assert want.split(" — ")[0] not in page.text_content("#results-body")
+        assert "pending" in page.text_content("#headline .pending-msg").lower()
+        assert field_top(page) == before
+
+        modules.release()  # the modules and the shell keep the text typed and the pending answer
+        page.wait_for_function("() => window.fieldphasor.perf.recall === 'none'")
+        s = state(page)
+        assert s["value"] == OTHER and not s["remembered"] and s["pending"] and s["marks"] == [], s
+        assert page.evaluate(ROWS_JS) == []
         engine.release()
         wait_ready(page)
         settle(page)
