@@ -437,7 +437,7 @@ def test_edit_before_any_module_takes_the_first_frame_answer_away(browser, site)
         assert field_top(page) == before
 
         modules.release()  # the modules and the shell keep the text typed and the pending answer
-        page.wait_for_function("() => window.fieldphasor.perf.recall === 'none'")
+        page.wait_for_function("() => window.fieldphasor && window.fieldphasor.perf && window.fieldphasor.perf.recall === 'none'")
         s = state(page)
         assert s["value"] == OTHER and not s["remembered"] and s["pending"] and s["marks"] == [], s
         assert page.evaluate(ROWS_JS) == []
