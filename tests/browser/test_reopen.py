@@ -93,16 +93,21 @@ def edit_and_settle(page, value):
         return r && r.inputs.includes(JSON.stringify([field, value])); }""", arg=[FIELD, value])
 
 
+def open_draft(page, site):
+    """Open the opening worksheet, type VALUE and wait until its answer is remembered; its inputs."""
+    page.goto(site + f"#/sheet/{SHEET}")
+    wait_ready(page)
+    edit_and_settle(page, VALUE)
+    return page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+
+
 def field_top(page):
     return page.evaluate("() => document.querySelector('#form .field').getBoundingClientRect().top + scrollY")
 
 
 def test_reopened_draft_shows_its_remembered_result_before_the_engine(browser, site):
     with reopen_page(browser, site) as page:
-        page.goto(site + f"#/sheet/{SHEET}")
-        wait_ready(page)
-        edit_and_settle(page, VALUE)
-        inputs = page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+        inputs = open_draft(page, site)
         assert inputs[FIELD] == VALUE
         want = expected_headline(inputs)
         assert want != expected_headline({**inputs, FIELD: OTHER})  # the readings give different answers
@@ -146,10 +151,7 @@ def test_reopened_draft_shows_its_remembered_result_before_the_engine(browser, s
 
 def test_edit_before_the_engine_shows_pending_never_the_old_answer(browser, site):
     with reopen_page(browser, site) as page:
-        page.goto(site + f"#/sheet/{SHEET}")
-        wait_ready(page)
-        edit_and_settle(page, VALUE)
-        inputs = page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+        inputs = open_draft(page, site)
 
         held = reopen_held(page)
         assert state(page)["recall"] == "shown"
@@ -380,10 +382,7 @@ def test_remembered_result_is_drawn_before_the_shell_and_kept_by_it(browser, sit
 
 def test_edit_before_the_shell_takes_the_early_result_away(browser, site):
     with reopen_page(browser, site) as page:
-        page.goto(site + f"#/sheet/{SHEET}")
-        wait_ready(page)
-        edit_and_settle(page, VALUE)
-        inputs = page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+        inputs = open_draft(page, site)
 
         engine, shell = reopen_before_shell(page)
         assert page.evaluate(EARLY_JS)["early"] == "drawn"
@@ -413,10 +412,7 @@ def test_edit_before_any_module_takes_the_first_frame_answer_away(browser, site)
     """Only index.html and its inline early.js have run (remembered.js and the shell held): the first
     frame's answer bar goes at the first keystroke, and the modules keep it pending when they arrive."""
     with reopen_page(browser, site) as page:
-        page.goto(site + f"#/sheet/{SHEET}")
-        wait_ready(page)
-        edit_and_settle(page, VALUE)
-        inputs = page.evaluate("() => ({...window.fieldphasor.state.inputs})")
+        inputs = open_draft(page, site)
         want = expected_headline(inputs)
 
         engine, modules = HeldEngine(page.context), HeldEngine(page.context, ("**/remembered.js", "**/app.js"))
