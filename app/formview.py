@@ -182,13 +182,16 @@ def field_node(f: Field, value: str) -> list:
 
 def file_node(f: Field) -> list:
     """The "Open file…" control of a ``file`` widget: a file input (kept in the focus order, drawn
-    as its label button) and a line for the chosen file's name and size, filled by the shell."""
+    as its label button), a line for the chosen file's name and size, filled by the shell, and the
+    button that shows a text too long to lay out at once (the shell holds it back: web/render.js)."""
     fid = f"file-{f.name}"
     return ["div", {"class": "file-open"},
             ["input", {"type": "file", "id": fid, "class": "file-input", "data-file": True,
                        "accept": ".csv,.txt,.tsv,.dat,.prn,text/csv,text/plain,text/tab-separated-values"}],
             ["label", {"for": fid, "class": "btn file-btn"}, "Open file…"],
-            ["span", {"class": "muted file-info", "data-file-info": True, "aria-live": "polite"}]]
+            ["span", {"class": "muted file-info", "data-file-info": True, "aria-live": "polite"}],
+            ["button", {"type": "button", "class": "btn ghost", "data-show-text": True, "hidden": True,
+                        "aria-controls": f"in-{f.name}"}, "Show the text"]]
 
 
 def paste_nodes(f: Field) -> list:

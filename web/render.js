@@ -176,10 +176,13 @@ function bindField(f, w, value, set) {
   }
   const control = w.querySelector("input[type=text], textarea");
   if (!control) return;
-  control.defaultValue = text;
   control.addEventListener("input", () => set(control.value));
   const file = w.querySelector("input[type=file][data-file]");
-  if (file) file.addEventListener("change", () => openFile(f, file, control, w.querySelector("[data-file-info]"), set));
+  if (file) {
+    const held = holder(w, control);
+    held.put(text, "", true);
+    file.addEventListener("change", () => openFile(f, file, held, w.querySelector("[data-file-info]"), set));
+  } else control.defaultValue = text;
   for (const b of w.querySelectorAll("button[data-insert]")) b.addEventListener("click", () => insertAtCursor(control, b.dataset.insert, set));
   for (const b of w.querySelectorAll("button[data-set]")) {
     b.addEventListener("click", () => { control.value = b.dataset.set; set(b.dataset.set); control.focus(); });
@@ -188,8 +191,56 @@ function bindField(f, w, value, set) {
 
 const sizeText = (n) => (n >= 1e6 ? `${(n / 1e6).toFixed(1)} MB` : n >= 1e3 ? `${(n / 1e3).toFixed(0)} kB` : `${n} bytes`);
 
+/**
+ * A text longer than this is held, not put into a file widget's text area: laying out megabytes of
+ * text holds the page's main thread for seconds (a 6 MB logger file, two years of 5-minute rows, held
+ * a phone-sized page for over 10 s). The text still goes to the engine and into the draft; the file
+ * line says what is held, and a button puts it into the text area for whoever wants to read or edit it.
+ */
+export const SHOWN_CHARS = 200_000;
+
+/**
+ * A file widget's text area and its "Show the text" button. put(text, what, first) shows a text, or
+ * holds a long one; `first`: the value the form is drawn with (the text area's default, as markup).
+ */
+function holder(w, control) {
+  const info = w.querySelector("[data-file-info]");
+  const show = w.querySelector("button[data-show-text]");
+  let held = null;
+  let named = ""; // the open file's name and size, when a file was opened
+  show.addEventListener("click", () => {
+    control.hidden = false;
+    show.hidden = true;
+    control.value = held;
+    held = null;
+    info.textContent = named;
+    control.setSelectionRange(0, 0); // from its first line
+    control.focus();
+    control.scrollTop = 0;
+  });
+  return {
+    put(t, what, first = false) {
+      named = what;
+      const big = t.length > SHOWN_CHARS;
+      held = big ? t : null;
+      control.hidden = big;
+      show.hidden = !big;
+      if (first) control.defaultValue = big ? "" : t;
+      else control.value = big ? "" : t;
+      if (!big) {
+        info.textContent = what;
+        return;
+      }
+      let lines = 1;
+      for (let i = t.indexOf("\n"); i !== -1 && i < t.length - 1; i = t.indexOf("\n", i + 1)) lines++;
+      info.textContent = `${what || `${sizeText(t.length)} of text`}: ${lines.toLocaleString("en")} lines held, not shown ` +
+        "(showing them can hold a phone for seconds).";
+    },
+  };
+}
+
 /** A file chosen in a "file" widget, read as text into its text area (Python judges the text). */
-async function openFile(f, input, control, info, set) {
+async function openFile(f, input, held, info, set) {
   const chosen = input.files && input.files[0];
   if (!chosen) return;
   const what = `${chosen.name}, ${sizeText(chosen.size)}`;
@@ -202,8 +253,7 @@ async function openFile(f, input, control, info, set) {
   info.textContent = `${what}: reading…`;
   try {
     const text = await chosen.text();
-    control.value = text;
-    info.textContent = what;
+    held.put(text, what);
     set(text);
   } catch {
     info.textContent = `${what}: the file could not be read.`;
