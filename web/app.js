@@ -201,7 +201,11 @@ let saveAgain = false;
 function journalWrite() {
   try {
     localStorage.setItem(JOURNAL, JSON.stringify({ sheet: state.sheet.id, target: state.target, inputs: state.inputs }));
-  } catch { /* storage off or full: IndexedDB (or memory) still holds the inputs */ }
+  } catch {
+    // storage off or full (a long logger file can outgrow it): IndexedDB (or memory) holds the inputs.
+    // The journal left behind is older than them and would win on the next opening: it goes.
+    try { localStorage.removeItem(JOURNAL); } catch { /* storage off: there is no journal */ }
+  }
 }
 function journalFor(sheetId, target) {
   const j = readLocal(JOURNAL);

@@ -152,6 +152,38 @@ def test_a_long_file_is_held_not_laid_out_kept_in_the_draft_and_shown_on_request
         assert page.evaluate("document.activeElement.id") == "in-profile"
 
 
+# localStorage with a small quota (phones give an origin a few MB; a logger file can be larger): a
+# write over 200,000 characters fails as a full store does (QuotaExceededError, the Web Storage standard)
+SMALL_QUOTA_JS = """(() => { const set = Storage.prototype.setItem;
+    Storage.prototype.setItem = function (k, v) {
+      if (String(v).length > 200000) throw new DOMException('quota (simulated)', 'QuotaExceededError');
+      return set.call(this, k, v); }; })();"""
+
+
+def test_a_draft_too_long_for_local_storage_survives_a_reload(browser, site, tmp_path):
+    text = logger_export(days=100)
+    path = tmp_path / "feeder3-100-days.csv"
+    path.write_text(text, encoding="utf-8")
+    with guarded_page(browser, site, viewport=PHONE, is_mobile=True, has_touch=True) as page:
+        page.add_init_script(SMALL_QUOTA_JS)
+        page.goto(site + "#/sheet/load_profile")
+        wait_ready(page)
+        page.fill("#in-target_pf", "0.93")  # a short edit: the journal holds it
+        settle(page)
+        wait_saved(page)
+        assert '"0.93"' in page.evaluate("localStorage.getItem('fp-journal')")
+        page.set_input_files("#file-profile", str(path))  # too long for the journal: IndexedDB keeps it
+        page.wait_for_function("() => document.querySelector('[data-file-info]').textContent.includes('held')")
+        settle(page)
+        wait_saved(page)
+        page.reload()
+        wait_ready(page)
+        settle(page)
+        kept = page.evaluate("() => window.fieldphasor.state.inputs")
+        assert len(kept.get("profile", "")) == len(text) and kept["target_pf"] == "0.93"
+        assert "held" in page.inner_text("[data-file-info]")
+
+
 def test_tablet_screenshot(browser, site, tmp_path):
     path = tmp_path / "feeder3-logger.csv"
     path.write_text(logger_export(), encoding="utf-8")
