@@ -48,6 +48,17 @@ def val(out: dict, name: str):
     return res(out, name)["value"]
 
 
+def steps_shown(display: str) -> list[float]:
+    """The step sizes [kvar], step 1 first, read from a shown steps answer as a person reads it:
+    '30, 5 steps of 60 (2 × 30) kvar' is 30 and five 60s (a step's units in brackets are its make-up)."""
+    out: list[float] = []
+    for part in display.removesuffix(" kvar").split(", "):
+        head = part.split(" (")[0]
+        n, _, size = head.rpartition(" steps of ")
+        out += [float(size)] * (int(n) if n else 1)
+    return out
+
+
 def titled(out: dict, title: str) -> dict:
     """The result table called ``title`` in an outcome."""
     for t in out["tables"]:

@@ -17,7 +17,7 @@ import pytest
 
 from app import report
 from app.cautions import RECLOSING, STORED_CHARGE
-from helpers import res, run, titled
+from helpers import res, run, steps_shown, titled
 
 SHEET = "correction"
 PF2 = 0.95
@@ -52,7 +52,7 @@ def _held_by_brute_force(p, q, steps):
 @pytest.mark.parametrize("need", [38.3, 71.3, 104.0, 199.0, 12.0])
 def test_key_pf_is_what_the_controller_holds_and_never_leads(need):
     r = need_case(need)
-    steps = [float(s.split()[0]) for s in res(r, "steps")["display"].replace(" kvar", "").split(", ")]
+    steps = steps_shown(res(r, "steps")["display"])
     q = need + 100 * math.tan(math.acos(PF2))
     kv = _held_by_brute_force(100.0, q, steps)
     pf = res(r, "pf_after")

@@ -13,7 +13,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 import app.bridge as bridge
-from helpers import assert_answered, res, run, val
+from helpers import assert_answered, res, run, steps_shown, val
 from spice import ac_node_voltages, impedance_at, needs_ngspice
 
 SHEET = "correction"
@@ -224,11 +224,18 @@ def test_no_light_load_skips_check():
     assert not any(x["name"] == "pf_light" for x in r["results"])
 
 
+def test_a_run_of_equal_steps_is_said_once():
+    # a phone shows the key answer in a narrow box: '20, 5 steps of 40 kvar', not every step again
+    shown = res(run(SHEET, pattern="custom", custom_steps="1:2:2:2:2:2"), "steps")["display"]
+    steps = steps_shown(shown)
+    assert len(steps) == 6 and shown.count("5 steps of ") == 1 and shown.count(",") == 1, shown
+
+
 def test_custom_and_binary_patterns():
     r = run(SHEET, pattern="custom", custom_steps="25:50:50:100")
     assert r["ok"]
-    steps = res(r, "steps")["display"]
-    assert steps.count(",") == 3  # four steps
+    steps = steps_shown(res(r, "steps")["display"])  # four steps in the pattern 1:2:2:4, step 1 first
+    assert [s / steps[0] for s in steps] == pytest.approx([1, 2, 2, 4])
     r = run(SHEET, pattern="binary", n_steps="4")
     assert r["ok"] and len(r["tables"][0]["rows"]) == 15  # 2⁴ − 1 positions
 

@@ -16,7 +16,7 @@ from pycore.references import cite, ref
 from . import _correction_harmonics as harm
 from .. import cautions, fmt
 from ..sheet import Field, FieldError
-from ._correction_steps import SRC_TRIANGLE, _pf_text, _units_text
+from ._correction_steps import SRC_TRIANGLE, _pf_text, _steps_text
 
 G_ORDER = "Switching, discharge and protection"
 SRC_PLANS = cite("this_app", "practice_controller")
@@ -103,18 +103,6 @@ def _held_text(h) -> str:
     if h is None:
         return "—"
     return f"{fmt.sig(h.kvar_in)} kvar in, PF {_pf_text(h.pf, h.sense)}"
-
-
-def _steps_text(steps, units) -> str:
-    """'10, 10 steps of 20' — runs of equal steps said once; a step of several units as '100 (2 × 50)'."""
-    runs: list = []
-    for s, u in zip(steps, units):
-        one = fmt.sig(s) + (f" ({_units_text(u)})" if len(u) > 1 else "")
-        if runs and runs[-1][0] == one:
-            runs[-1][1] += 1
-        else:
-            runs.append([one, 1])
-    return ", ".join(one if n == 1 else f"{n} steps of {one}" for one, n in runs)
 
 
 def plans(out, cx):

@@ -70,6 +70,18 @@ def _units_text(units) -> str:
     return " + ".join((f"{n} × " if n > 1 else "") + fmt.sig(r) for r, n in sorted(counts.items(), reverse=True))
 
 
+def _steps_text(steps, units) -> str:
+    """'10, 10 steps of 20' — runs of equal steps said once; a step of several units as '100 (2 × 50)'."""
+    runs: list = []
+    for s, u in zip(steps, units):
+        one = fmt.sig(s) + (f" ({_units_text(u)})" if len(u) > 1 else "")
+        if runs and runs[-1][0] == one:
+            runs[-1][1] += 1
+        else:
+            runs.append([one, 1])
+    return ", ".join(one if n == 1 else f"{n} steps of {one}" for one, n in runs)
+
+
 def _is_hp(text: str) -> bool:
     try:
         _, rest = split_number(text)

@@ -25,7 +25,7 @@ from . import _correction_metering as metering
 from . import _correction_harmonics as harm
 from . import _correction_steps as steps
 from ._correction_steps import (BASES, SRC_141, SRC_CAP, SRC_IEC, SRC_NEC, SRC_STEPS, SRC_TRIANGLE, _PF_SETS, _SENSE_SETS,
-                                _is_hp, _load_method, _pf_text, _q_text, _triangle_figure, _units_text)
+                                _is_hp, _load_method, _pf_text, _q_text, _steps_text, _triangle_figure)
 
 FIELDS = [
     # --- the system
@@ -156,7 +156,7 @@ def _key_results(out, cx):
                source=SRC_STEPS)
     if bank == "auto":
         out.result("steps", "Steps (rated kvar, step 1 first)", None, "kvar", key=True,
-                   display=", ".join(fmt.sig(s) + (f" ({_units_text(u)})" if len(u) > 1 else "") for s, u in zip(steps_rated, step_units)) + " kvar",
+                   display=_steps_text(steps_rated, step_units) + " kvar",
                    method="Step i = w_i × base; pattern " + ":".join(str(w) for w in weights) + f"; base {fmt.sig(plan.base)} kvar",
                    source=SRC_STEPS)
     out.result("q_need", "kvar needed at system voltage", need, "kvar", key=True,
