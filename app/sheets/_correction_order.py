@@ -102,7 +102,8 @@ def pf_result(out, cx):
 def _held_text(h) -> str:
     if h is None:
         return "—"
-    return f"{fmt.sig(h.kvar_in)} kvar in, PF {_pf_text(h.pf, h.sense)}"
+    short = "" if h.reaches_target else ", short of the target"  # no step fits without leading
+    return f"{fmt.sig(h.kvar_in)} kvar in, PF {_pf_text(h.pf, h.sense)}{short}"
 
 
 def plans(out, cx):
@@ -116,9 +117,11 @@ def plans(out, cx):
         on = "none" if held.combo is None else "+".join(str(i) for i in held.combo.on)
         out.result("pf_light_held", f"Power factor the controller holds at the lightest load ({fmt.sig(cx.light_p)} kW)",
                    held.pf, "", display=f"{_pf_text(held.pf, held.sense)} (steps {on} in, {fmt.sig(held.kvar_in)} kvar)",
-                   key=True, status="ok" if held.sense != "leading" else "warn",
+                   key=True, status="ok" if held.reaches_target and held.sense != "leading" else "warn",
                    method="The smallest step combination reaching the target without leading, else the largest that "
-                          "does not lead", source=cite("practice_controller", "circuits_ac_power"))
+                          "does not lead" + ("" if held.reaches_target else
+                                             ": no combination reaches the target at this load (finer steps would: see Step plans)"),
+                   source=cite("practice_controller", "circuits_ac_power"))
     try:
         offered = stepplans.three_plans(cx.need_rated, cx.ratings, cx.factor, cx.net, cx.pf2, cx.light_net)
     except InputError as e:
@@ -141,7 +144,7 @@ def plans(out, cx):
     if excess > banksteps.EXCESS_WARN_FRACTION * cx.need_rated and excess > min(cx.ratings):
         hint = "Fewer steps, another pattern or more unit ratings would fit closer."
         if excess > best.excess_kvar + 1e-6:
-            hint = (f"The least-excess plan is {', '.join(fmt.sig(s) for s in best.plan.steps)} kvar "
+            hint = (f"The least-excess plan is {_steps_text(best.plan.steps, best.plan.units)} kvar "
                     f"({fmt.sig(best.plan.total)} kvar rated, {fmt.sig(100 * best.excess_fraction, 2)} % above the need; "
                     "see Step plans): choose Custom ratios to order it.")
         out.warn(f"The step plan orders {fmt.sig(100 * excess / cx.need_rated, 3)} % more than needed. " + hint)
