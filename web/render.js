@@ -179,9 +179,9 @@ function bindField(f, w, value, set) {
   control.addEventListener("input", () => set(control.value));
   const file = w.querySelector("input[type=file][data-file]");
   if (file) {
-    const held = holder(w, control);
-    held.put(text, "", true);
-    file.addEventListener("change", () => openFile(f, file, held, w.querySelector("[data-file-info]"), set));
+    const box = holder(w, control);
+    box.put(text, "", true);
+    file.addEventListener("change", () => openFile(f, file, box, set));
   } else control.defaultValue = text;
   for (const b of w.querySelectorAll("button[data-insert]")) b.addEventListener("click", () => insertAtCursor(control, b.dataset.insert, set));
   for (const b of w.querySelectorAll("button[data-set]")) {
@@ -200,7 +200,7 @@ const sizeText = (n) => (n >= 1e6 ? `${(n / 1e6).toFixed(1)} MB` : n >= 1e3 ? `$
 export const SHOWN_CHARS = 200_000;
 
 /**
- * A file widget's text area and its "Show the text" button. put(text, what, first) shows a text, or
+ * A file widget's text area, its file line (`info`) and its "Show the text" button. put(text, what, first) shows a text, or
  * holds a long one; `first`: the value the form is drawn with (the text area's default, as markup).
  */
 function holder(w, control) {
@@ -219,6 +219,7 @@ function holder(w, control) {
     control.scrollTop = 0;
   });
   return {
+    info,
     put(t, what, first = false) {
       named = what;
       const big = t.length > SHOWN_CHARS;
@@ -240,7 +241,8 @@ function holder(w, control) {
 }
 
 /** A file chosen in a "file" widget, read as text into its text area (Python judges the text). */
-async function openFile(f, input, held, info, set) {
+async function openFile(f, input, box, set) {
+  const info = box.info;
   const chosen = input.files && input.files[0];
   if (!chosen) return;
   const what = `${chosen.name}, ${sizeText(chosen.size)}`;
@@ -253,7 +255,7 @@ async function openFile(f, input, held, info, set) {
   info.textContent = `${what}: reading…`;
   try {
     const text = await chosen.text();
-    held.put(text, what);
+    box.put(text, what);
     set(text);
   } catch {
     info.textContent = `${what}: the file could not be read.`;

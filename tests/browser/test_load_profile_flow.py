@@ -115,22 +115,29 @@ HELD_JS = """() => { const t = document.getElementById('in-profile'); const b = 
             limit: window.__shownChars}; }"""
 
 
-def test_a_long_file_is_held_not_laid_out_kept_in_the_draft_and_shown_on_request(browser, site, tmp_path):
-    # a text over the shell's display limit (SHOWN_CHARS, web/render.js) is computed and kept in the
-    # draft but not put into the text area, whose layout would hold the page for seconds
+def open_held_export(page, tmp_path) -> str:
+    """Open a 100-day export (longer than the shell shows at once) through the file control and wait
+    until it is held and computed; its text."""
     text = logger_export(days=100)
     path = tmp_path / "feeder3-100-days.csv"
     path.write_text(text, encoding="utf-8")
-    expect = cpython_compute("load_profile", {"profile": text})
-    rows = next(r["display"] for r in expect["results"] if r["name"] == "rows")
+    page.set_input_files("#file-profile", str(path))
+    page.wait_for_function("() => document.querySelector('[data-file-info]').textContent.includes('held')")
+    settle(page)
+    return text
+
+
+def test_a_long_file_is_held_not_laid_out_kept_in_the_draft_and_shown_on_request(browser, site, tmp_path):
+    # a text over the shell's display limit (SHOWN_CHARS, web/render.js) is computed and kept in the
+    # draft but not put into the text area, whose layout would hold the page for seconds
     with guarded_page(browser, site, viewport=PHONE, is_mobile=True, has_touch=True) as page:
         page.goto(site + "#/sheet/load_profile")
         wait_ready(page)
         settle(page)
         page.evaluate("async () => { window.__shownChars = (await import('./render.js')).SHOWN_CHARS; }")
-        page.set_input_files("#file-profile", str(path))
-        page.wait_for_function("() => document.querySelector('[data-file-info]').textContent.includes('held')")
-        settle(page)
+        text = open_held_export(page, tmp_path)
+        expect = cpython_compute("load_profile", {"profile": text})
+        rows = next(r["display"] for r in expect["results"] if r["name"] == "rows")
         held = page.evaluate(HELD_JS)
         assert len(text) > held["limit"] > 0
         assert not held["shown"] and held["length"] == 0 and held["button"], held
@@ -161,9 +168,6 @@ SMALL_QUOTA_JS = """(() => { const set = Storage.prototype.setItem;
 
 
 def test_a_draft_too_long_for_local_storage_survives_a_reload(browser, site, tmp_path):
-    text = logger_export(days=100)
-    path = tmp_path / "feeder3-100-days.csv"
-    path.write_text(text, encoding="utf-8")
     with guarded_page(browser, site, viewport=PHONE, is_mobile=True, has_touch=True) as page:
         page.add_init_script(SMALL_QUOTA_JS)
         page.goto(site + "#/sheet/load_profile")
@@ -172,9 +176,7 @@ def test_a_draft_too_long_for_local_storage_survives_a_reload(browser, site, tmp
         settle(page)
         wait_saved(page)
         assert '"0.93"' in page.evaluate("localStorage.getItem('fp-journal')")
-        page.set_input_files("#file-profile", str(path))  # too long for the journal: IndexedDB keeps it
-        page.wait_for_function("() => document.querySelector('[data-file-info]').textContent.includes('held')")
-        settle(page)
+        text = open_held_export(page, tmp_path)  # too long for the journal: IndexedDB keeps it
         wait_saved(page)
         page.reload()
         wait_ready(page)
