@@ -117,3 +117,37 @@ def test_year_of_15_minute_data_through_the_bridge_is_timed():
     assert out["ok"] and res(out, "rows")["value"] == 35040
     assert len(next(t for t in out["tables"] if t["title"] == "By calendar month")["rows"]) == 13  # 2025-03-03 to 2026-03-02: March to March
     print(f"\nload_profile, 35,040 rows through app.bridge.compute: {ms:.0f} ms CPU (CPython)")
+
+
+def test_an_edit_to_another_field_reuses_the_file_already_read(monkeypatch):
+    # Editing the target, share or bank must not read the file again (a year of 5-minute rows is a
+    # third of an answer), yet every answer must be what a fresh read gives, the error too.
+    from app.sheets import load_profile as sheet
+
+    calls = []
+
+    def counted(text, **kw):
+        calls.append(len(text))
+        return read_profile(text, **kw)
+
+    monkeypatch.setattr(sheet, "read_profile", counted)
+    monkeypatch.setattr(sheet, "_last_read", [None, None])
+    text = demo_text(days=20, interval_min=15, seed=5)
+    edits = [{}, {"target_pf": "0.92"}, {"share": "90"}, {"bank": "fixed", "fixed_kvar": "120"},
+             {"bank": "steps", "steps": "40,40,40"}, {}]
+    answers = [run("load_profile", {"profile": text, **e}) for e in edits]
+    assert calls == [len(text)], calls  # read once for all six answers
+    for e, got in zip(edits, answers):
+        sheet._last_read[:] = [None, None]  # a fresh read: the reference for the same inputs
+        assert got == run("load_profile", {"profile": text, **e}), e
+    calls.clear()
+    run("load_profile", {"profile": text, "stamps": "start"})  # another reading of the same file: read again
+    run("load_profile", {"profile": text + "\n", "stamps": "start"})  # another file: read again
+    assert len(calls) == 2, calls
+    # a file that cannot be read gives its message each time, from one read
+    calls.clear()
+    ambiguous = "Time,kW,kvar\n" + "".join(f"03/04/2025 {h:02d}:00,5,5\n" for h in range(1, 5))
+    for target in ("0.95", "0.9"):
+        out = run("load_profile", {"profile": ambiguous, "target_pf": target})
+        assert set(out["field_errors"]) == {"date_order"} and "choose" in out["field_errors"]["date_order"].lower()
+    assert len(calls) == 1, calls

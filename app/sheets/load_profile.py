@@ -86,6 +86,26 @@ def _pf_short(pf: float, sense: str) -> str:
     return f"{pf:.3f}" + (" lead" if sense == "leading" else "")
 
 
+# The last file read and what came of it (a profile or the error), kept for the next answer: an edit to
+# another field (the target, the share, the bank) then re-reads nothing. A year of 5-minute rows takes
+# about a third of an answer to read. One entry: the worksheet holds one file at a time.
+_last_read: list = [None, None]  # [(text, date_order, roles, stamps), Profile or InputError]
+
+
+def _read_profile_once(text: str, date_order: str, roles: str, stamps: str):
+    """``read_profile`` for these arguments, from the last call when they are the same."""
+    key = (text, date_order, roles, stamps)
+    if _last_read[0] != key:
+        try:
+            got = read_profile(text, date_order=date_order, roles=roles, stamps=stamps)
+        except InputError as e:
+            got = e
+        _last_read[:] = [key, got]
+    if isinstance(_last_read[1], InputError):
+        raise _last_read[1].with_traceback(None)  # the same error again, without the old frames
+    return _last_read[1]
+
+
 def _read(ins):
     text = ins.text("profile")
     roles = ins.text("roles").strip()
@@ -96,7 +116,7 @@ def _read(ins):
             ins.fail("roles", str(e))
             return None
     try:
-        return read_profile(text, date_order=ins.choice("date_order"), roles=roles, stamps=ins.choice("stamps"))
+        return _read_profile_once(text, ins.choice("date_order"), roles, ins.choice("stamps"))
     except DateOrderError as e:
         ins.fail("date_order", str(e))
     except InputError as e:
