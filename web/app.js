@@ -122,14 +122,21 @@ function showResult(res, { remembered = false } = {}) {
 const build = BUILD;
 const slotOf = (sheetId, target) => (target ? `entry:${target.jobId}/${target.entryId}` : `sheet:${sheetId}`);
 let lastRemembered = "";
+let rememberedRefusedAt = Infinity; // as the journal's: inputs this long were refused by localStorage
 
 function remember(slot, sheetId, inputs, result) {
   if (!build) return;
   const rec = { build, inputs: inputsKey(sheetId, inputs), result, bar: answerBar(result) }; // bar: for early.js
-  const text = JSON.stringify({ slot, ...rec });
-  if (text === lastRemembered) return;
-  lastRemembered = text;
-  try { localStorage.setItem(REMEMBERED, text); } catch { /* storage off or full: IndexedDB still has it */ }
+  if (rec.inputs.length < rememberedRefusedAt) {
+    const text = JSON.stringify({ slot, ...rec });
+    if (text === lastRemembered) return;
+    lastRemembered = text;
+    try {
+      localStorage.setItem(REMEMBERED, text);
+    } catch (err) { // storage off or full: IndexedDB still has it
+      if (err && err.name === "QuotaExceededError") rememberedRefusedAt = rec.inputs.length;
+    }
+  }
   store.putRemembered(slot, rec).catch(() => { /* a cache: nothing lost */ });
 }
 
@@ -198,12 +205,20 @@ function rememberSection(sheetId, key, isOpen) {
 // therefore loses nothing, even in the milliseconds before IndexedDB commits.
 let saving = false;
 let saveAgain = false;
+// A draft too long for localStorage (a long logger file) is not tried again on every keystroke: writing
+// out a 6 MB draft only to be refused cost about 25 ms a keystroke. Drafts whose text is at least as long
+// as the shortest one refused go to IndexedDB alone.
+let journalRefusedAt = Infinity;
+const draftLength = (inputs) => Object.values(inputs).reduce((n, v) => n + String(v).length, 0);
 function journalWrite() {
+  const length = draftLength(state.inputs);
   try {
+    if (length >= journalRefusedAt) throw new Error("too long for the journal");
     localStorage.setItem(JOURNAL, JSON.stringify({ sheet: state.sheet.id, target: state.target, inputs: state.inputs }));
-  } catch {
-    // storage off or full (a long logger file can outgrow it): IndexedDB (or memory) holds the inputs.
-    // The journal left behind is older than them and would win on the next opening: it goes.
+  } catch (err) {
+    // storage off or full: IndexedDB (or memory) holds the inputs. The journal left behind is older
+    // than them and would win on the next opening: it goes.
+    if (err && err.name === "QuotaExceededError") journalRefusedAt = Math.min(journalRefusedAt, length);
     try { localStorage.removeItem(JOURNAL); } catch { /* storage off: there is no journal */ }
   }
 }

@@ -162,7 +162,9 @@ def test_a_long_file_is_held_not_laid_out_kept_in_the_draft_and_shown_on_request
 # localStorage with a small quota (phones give an origin a few MB; a logger file can be larger): a
 # write over 200,000 characters fails as a full store does (QuotaExceededError, the Web Storage standard)
 SMALL_QUOTA_JS = """(() => { const set = Storage.prototype.setItem;
+    window.__setItemTries = {};  // key → how many writes were tried
     Storage.prototype.setItem = function (k, v) {
+      window.__setItemTries[k] = (window.__setItemTries[k] || 0) + 1;
       if (String(v).length > 200000) throw new DOMException('quota (simulated)', 'QuotaExceededError');
       return set.call(this, k, v); }; })();"""
 
@@ -178,11 +180,23 @@ def test_a_draft_too_long_for_local_storage_survives_a_reload(browser, site, tmp
         assert '"0.93"' in page.evaluate("localStorage.getItem('fp-journal')")
         text = open_held_export(page, tmp_path)  # too long for the journal: IndexedDB keeps it
         wait_saved(page)
+        assert page.evaluate("localStorage.getItem('fp-journal')") is None  # the short, older copy went
+        # once refused, the long draft is not written out again on every keystroke (25 ms each for 6 MB)
+        tries = page.evaluate("() => window.__setItemTries['fp-journal']")
+        remembered = page.evaluate("() => window.__setItemTries['fp-remembered']")  # the result's copy: likewise
+        page.press("#in-target_pf", "End")
+        page.type("#in-target_pf", "25", delay=20)  # 0.9325: each keystroke a longer draft
+        settle(page)
+        wait_saved(page)
+        assert page.evaluate("() => window.__setItemTries['fp-journal']") == tries
+        assert page.evaluate("() => window.__setItemTries['fp-remembered']") == remembered
+        assert page.evaluate("() => window.fieldphasor.state.inputs.target_pf") == "0.9325"  # the typing reached the draft
+        assert page.evaluate("localStorage.getItem('fp-journal')") is None
         page.reload()
         wait_ready(page)
         settle(page)
         kept = page.evaluate("() => window.fieldphasor.state.inputs")
-        assert len(kept.get("profile", "")) == len(text) and kept["target_pf"] == "0.93"
+        assert len(kept.get("profile", "")) == len(text) and kept["target_pf"] == "0.9325"
         assert "held" in page.inner_text("[data-file-info]")
 
 
