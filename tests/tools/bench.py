@@ -484,8 +484,8 @@ def measure_profile(args) -> dict:
         for name, minutes, _ in PROFILE_CASES:
             text = demo_text(days=365, interval_min=minutes)
             # Each run a new file (a title line above the header, which the reader passes over), so
-            # every run reads it; then edits of the target with the file already read (the worksheet
-            # keeps the last file it read), the wait after any edit but the file's.
+            # every run reads it; each followed by an edit of the target with that file already read (the
+            # worksheet keeps the last file it read): the wait after any edit but the file's.
             times = page.evaluate("""async ([text, n]) => {
                 const out = {read: [], edit: []};
                 const run = async (key, profile, target) => {
@@ -494,8 +494,11 @@ def measure_profile(args) -> dict:
                     if (!res.ok) throw new Error(JSON.stringify(res.field_errors));
                     out[key].push(performance.now() - t0);
                 };
-                for (let i = 0; i < n; i++) await run('read', `Meter export, run ${i + 1}\n` + text, '0.95');
-                for (let i = 0; i < n; i++) await run('edit', `Meter export, run ${n}\n` + text, ['0.93', '0.95', '0.97'][i % 3]);
+                for (let i = 0; i < n; i++) {  // alternated, so a drift in the machine's speed hits both alike
+                    const file = `Meter export, run ${i + 1}\n` + text;
+                    await run('read', file, '0.95');
+                    await run('edit', file, ['0.93', '0.97'][i % 2]);
+                }
                 return out;
             }""", [text, PROFILE_RUNS])
             out[name] = median(times["read"])
