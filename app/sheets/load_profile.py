@@ -96,6 +96,7 @@ def _read_profile_once(text: str, date_order: str, roles: str, stamps: str):
     """``read_profile`` for these arguments, from the last call when they are the same."""
     key = (text, date_order, roles, stamps)
     if _last_read[0] != key:
+        _last_read[:] = [None, None]  # let the old file go before the new one is read (a long one is tens of MB)
         try:
             got = read_profile(text, date_order=date_order, roles=roles, stamps=stamps)
         except InputError as e:
