@@ -122,20 +122,31 @@ function showResult(res, { remembered = false } = {}) {
 const build = BUILD;
 const slotOf = (sheetId, target) => (target ? `entry:${target.jobId}/${target.entryId}` : `sheet:${sheetId}`);
 let lastRemembered = "";
-let rememberedRefusedAt = Infinity; // as the journal's: inputs this long were refused by localStorage
+
+// localStorage refuses what outgrows its quota (a long logger file in a draft). After a refusal, values
+// of at least that length under the same key are not written out again: writing a 6 MB draft only to be
+// refused cost about 25 ms a keystroke. ``length`` is the caller's measure of the value, cheap to take.
+const refusedAt = new Map(); // key → the shortest length refused
+const mayFitLocal = (key, length) => length < (refusedAt.get(key) ?? Infinity);
+/** localStorage[key] = text; false when storage is off or full (and a full one is remembered). */
+function writeLocal(key, length, text) {
+  try {
+    localStorage.setItem(key, text);
+    return true;
+  } catch (err) {
+    if (err && err.name === "QuotaExceededError") refusedAt.set(key, length); // only shorter ones are tried
+    return false;
+  }
+}
 
 function remember(slot, sheetId, inputs, result) {
   if (!build) return;
   const rec = { build, inputs: inputsKey(sheetId, inputs), result, bar: answerBar(result) }; // bar: for early.js
-  if (rec.inputs.length < rememberedRefusedAt) {
+  if (mayFitLocal(REMEMBERED, rec.inputs.length)) { // else IndexedDB alone has it
     const text = JSON.stringify({ slot, ...rec });
     if (text === lastRemembered) return;
     lastRemembered = text;
-    try {
-      localStorage.setItem(REMEMBERED, text);
-    } catch (err) { // storage off or full: IndexedDB still has it
-      if (err && err.name === "QuotaExceededError") rememberedRefusedAt = rec.inputs.length;
-    }
+    writeLocal(REMEMBERED, rec.inputs.length, text);
   }
   store.putRemembered(slot, rec).catch(() => { /* a cache: nothing lost */ });
 }
@@ -205,22 +216,14 @@ function rememberSection(sheetId, key, isOpen) {
 // therefore loses nothing, even in the milliseconds before IndexedDB commits.
 let saving = false;
 let saveAgain = false;
-// A draft too long for localStorage (a long logger file) is not tried again on every keystroke: writing
-// out a 6 MB draft only to be refused cost about 25 ms a keystroke. Drafts whose text is at least as long
-// as the shortest one refused go to IndexedDB alone.
-let journalRefusedAt = Infinity;
 const draftLength = (inputs) => Object.values(inputs).reduce((n, v) => n + String(v).length, 0);
 function journalWrite() {
   const length = draftLength(state.inputs);
-  try {
-    if (length >= journalRefusedAt) throw new Error("too long for the journal");
-    localStorage.setItem(JOURNAL, JSON.stringify({ sheet: state.sheet.id, target: state.target, inputs: state.inputs }));
-  } catch (err) {
-    // storage off or full: IndexedDB (or memory) holds the inputs. The journal left behind is older
-    // than them and would win on the next opening: it goes.
-    if (err && err.name === "QuotaExceededError") journalRefusedAt = Math.min(journalRefusedAt, length);
-    try { localStorage.removeItem(JOURNAL); } catch { /* storage off: there is no journal */ }
-  }
+  const journal = { sheet: state.sheet.id, target: state.target, inputs: state.inputs };
+  if (mayFitLocal(JOURNAL, length) && writeLocal(JOURNAL, length, JSON.stringify(journal))) return;
+  // storage off, full, or the draft too long for it: IndexedDB (or memory) holds the inputs. The journal
+  // left behind is older than them and would win on the next opening: it goes.
+  try { localStorage.removeItem(JOURNAL); } catch { /* storage off: there is no journal */ }
 }
 function journalFor(sheetId, target) {
   const j = readLocal(JOURNAL);
