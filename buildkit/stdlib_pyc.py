@@ -7,7 +7,10 @@ browser, so the same magic number), compiles each ``.py`` of the given zip and r
 ``{name.pyc: bytes}``: hash-based *unchecked* ``.pyc`` files (PEP 552: no timestamp; the source
 hash is written but never checked, as no source ships beside them), ``co_filename`` set to the
 module's path inside Pyodide's standard-library zip (tracebacks name the module), with
-``PYTHONHASHSEED=0`` so set and frozenset constants marshal in the same order on every build.
+``PYTHONHASHSEED=0`` so set and frozenset constants marshal in the same order on every build, and
+``PYTHONNODEBUGRANGES=1`` (Python's ``-X no_debug_ranges``): line numbers kept, column ranges left
+out, so a traceback through the standard library names the line without underlining the part of it.
+That makes the archive 1.50 → 1.14 MB deflated, sent to every first visitor.
 The result is kept in ``.cache/pyc`` under the SHA-256 of the input zip, the Pyodide version and
 this file, so a rebuild is quick and gives the same bytes. Without Node.js, or if the step fails,
 it returns ``None`` and the archive ships source only (the browser then compiles it, as before).
@@ -31,7 +34,7 @@ const { pathToFileURL } = await import("node:url");
 const { loadPyodide } = await import(pathToFileURL(indexURL + "pyodide.mjs").href);
 const info = JSON.parse(fs.readFileSync(indexURL + "pyodide-lock.json", "utf-8")).info;
 const py = await loadPyodide({ indexURL, lockFileContents: Promise.resolve({ info, packages: {} }),
-  env: { PYTHONHASHSEED: "0" }, stdout: () => {}, stderr: (s) => console.error(s) });
+  env: { PYTHONHASHSEED: "0", PYTHONNODEBUGRANGES: "1" }, stdout: () => {}, stderr: (s) => console.error(s) });
 py.FS.writeFile("/tmp/src.zip", fs.readFileSync(src));
 py.runPython(`
 import _imp, importlib.util, marshal, os, sys, zipfile
