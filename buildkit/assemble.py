@@ -106,7 +106,7 @@ def build(quiet: bool = False) -> str:
         lock_info = json.load(fh)["info"]
     for w in WHEELS:
         shutil.copyfile(os.path.join(wheels_dir, w), os.path.join(tmp, "wheels", w))
-    app_wheel = build_app_wheel(os.path.join(tmp, "wheels"))
+    app_wheel = build_app_wheel(os.path.join(tmp, "wheels"), pyodide_dir)
     build_icons(os.path.join(tmp, "icons"))
     version = read_version()
 

@@ -1,4 +1,5 @@
-"""The trimmed standard library's modules compiled to ``.pyc`` by Pyodide's own Python, at build time.
+"""The trimmed standard library's modules, and the app wheel's, compiled to ``.pyc`` by Pyodide's
+own Python at build time.
 
 A first visit has no bytecode cache yet, so Pyodide compiles every standard-library module it
 imports while it boots (about 140 modules, 3.4 s of a 5.3 s boot under Node.js on this machine).
@@ -28,7 +29,7 @@ import zipfile
 from .common import CACHE, log
 
 COMPILE_JS = r"""
-const [, , indexURL, src, dest] = process.argv;
+const [, , indexURL, src, dest, where] = process.argv;
 const fs = await import("node:fs");
 const { pathToFileURL } = await import("node:url");
 const { loadPyodide } = await import(pathToFileURL(indexURL + "pyodide.mjs").href);
@@ -36,11 +37,19 @@ const info = JSON.parse(fs.readFileSync(indexURL + "pyodide-lock.json", "utf-8")
 const py = await loadPyodide({ indexURL, lockFileContents: Promise.resolve({ info, packages: {} }),
   env: { PYTHONHASHSEED: "0", PYTHONNODEBUGRANGES: "1" }, stdout: () => {}, stderr: (s) => console.error(s) });
 py.FS.writeFile("/tmp/src.zip", fs.readFileSync(src));
+py.globals.set("where", where);
 py.runPython(`
 import _imp, importlib.util, marshal, os, sys, zipfile
 assert os.environ.get("PYTHONHASHSEED") == "0" and hash("fp") == hash("f" + "p")
-# where Pyodide's standard library lives, as module __file__ shows it (e.g. /lib/python314.zip)
-home = os.__file__.split(".zip/", 1)[0] + ".zip"
+# where the modules will live, as their __file__ shows it: inside Pyodide's standard-library zip
+# (e.g. /lib/python314.zip, each .pyc in place of its source) or in site-packages (each .pyc in
+# __pycache__ beside its source, named with this interpreter's cache tag)
+if where == "stdlib":
+    home = os.__file__.split(".zip/", 1)[0] + ".zip"
+    place = lambda name: name + "c"
+else:
+    home = [p for p in sys.path if p.endswith("site-packages")][0]
+    place = importlib.util.cache_from_source
 with zipfile.ZipFile("/tmp/src.zip") as src, zipfile.ZipFile("/tmp/out.zip", "w") as out:
     for name in sorted(src.namelist()):
         if not name.endswith(".py"):
@@ -49,14 +58,17 @@ with zipfile.ZipFile("/tmp/src.zip") as src, zipfile.ZipFile("/tmp/out.zip", "w"
         code = compile(data, f"{home}/{name}", "exec", dont_inherit=True, optimize=0)
         # PEP 552 header: magic, flags 0b01 (hash-based, unchecked), the source's hash
         pyc = importlib.util.MAGIC_NUMBER + (1).to_bytes(4, "little") + importlib.util.source_hash(data) + marshal.dumps(code)
-        out.writestr(zipfile.ZipInfo(name + "c", (1980, 1, 1, 0, 0, 0)), pyc)
+        out.writestr(zipfile.ZipInfo(place(name), (1980, 1, 1, 0, 0, 0)), pyc)
 `);
 fs.writeFileSync(dest, py.FS.readFile("/tmp/out.zip"));
 """
 
 
-def _digest(src_zip: str, pyodide_dir: str) -> str:
-    h = hashlib.sha256()
+LABELS = {"stdlib": "standard library", "site": "app wheel"}
+
+
+def _digest(src_zip: str, pyodide_dir: str, where: str) -> str:
+    h = hashlib.sha256(where.encode())
     with open(src_zip, "rb") as fh:
         h.update(fh.read())
     h.update(os.path.basename(os.path.normpath(pyodide_dir)).encode())
@@ -65,14 +77,16 @@ def _digest(src_zip: str, pyodide_dir: str) -> str:
     return h.hexdigest()
 
 
-def compile_archive(src_zip: str, pyodide_dir: str) -> dict[str, bytes] | None:
+def compile_archive(src_zip: str, pyodide_dir: str, where: str = "stdlib") -> dict[str, bytes] | None:
     """``{"pkg/mod.pyc": bytes}`` for every ``.py`` in ``src_zip``, compiled by the Pyodide in
-    ``pyodide_dir`` under Node.js; ``None`` when Node.js is missing or compiling fails."""
-    cached = os.path.join(CACHE, "pyc", _digest(src_zip, pyodide_dir) + ".zip")
+    ``pyodide_dir`` under Node.js; ``None`` when Node.js is missing or compiling fails.
+    ``where="site"``: the modules are to be unpacked into site-packages, so each is named
+    ``pkg/__pycache__/mod.<cache tag>.pyc`` (beside its source) and its code names its file there."""
+    cached = os.path.join(CACHE, "pyc", _digest(src_zip, pyodide_dir, where) + ".zip")
     if not os.path.exists(cached):
         node = shutil.which("node")
         if not node or os.environ.get("FP_NO_PYC"):
-            log("standard library shipped as source (no Node.js, or FP_NO_PYC set)")
+            log(f"{LABELS[where]} shipped as source (no Node.js, or FP_NO_PYC set)")
             return None
         os.makedirs(os.path.dirname(cached), exist_ok=True)
         with tempfile.TemporaryDirectory() as tmp:
@@ -81,16 +95,16 @@ def compile_archive(src_zip: str, pyodide_dir: str) -> dict[str, bytes] | None:
                 fh.write(COMPILE_JS)
             part = os.path.join(tmp, "out.zip")
             try:
-                subprocess.run([node, script, os.path.abspath(pyodide_dir) + "/", os.path.abspath(src_zip), part],
+                subprocess.run([node, script, os.path.abspath(pyodide_dir) + "/", os.path.abspath(src_zip), part, where],
                                check=True, capture_output=True, timeout=600)
             except (OSError, subprocess.SubprocessError) as err:
                 detail = getattr(err, "stderr", b"") or b""
-                log(f"standard library shipped as source: compiling under Node.js failed ({err}) "
+                log(f"{LABELS[where]} shipped as source: compiling under Node.js failed ({err}) "
                     + detail.decode("utf-8", "replace")[-500:])
                 return None
             shutil.move(part, cached)
     elif os.environ.get("FP_NO_PYC"):
-        log("standard library shipped as source (FP_NO_PYC set)")
+        log(f"{LABELS[where]} shipped as source (FP_NO_PYC set)")
         return None
     with zipfile.ZipFile(cached) as zf:
         return {n: zf.read(n) for n in zf.namelist()}

@@ -2,7 +2,11 @@
 
 Its entries are stored, not deflated: the build writes gzip and Brotli copies of the whole wheel
 (assemble.py), which compress across files (0.29 MB deflated per entry; stored, 0.24 MB gzipped and
-0.19 MB with Brotli on the wire). The worker unpacks it once per start either way."""
+0.19 MB with Brotli on the wire). The worker unpacks it once per start either way.
+
+With Node.js the wheel also carries each module's ``.pyc`` in ``__pycache__`` beside its source,
+compiled by Pyodide's own Python (buildkit/stdlib_pyc.py, hash-based and unchecked, no column
+ranges), so a first visit imports the app without compiling it."""
 
 from __future__ import annotations
 
@@ -16,8 +20,9 @@ from .common import ROOT, read_version
 FIXED_TIME = (2020, 2, 2, 0, 0, 0)  # zip entries get one fixed time so builds are byte-identical
 
 
-def build_app_wheel(out_dir: str) -> str:
-    """Pack pycore/ and app/ as a pure-Python wheel with fixed timestamps (reproducible)."""
+def build_app_wheel(out_dir: str, pyodide_dir: str | None = None) -> str:
+    """Pack pycore/ and app/ as a pure-Python wheel with fixed timestamps (reproducible); with
+    ``pyodide_dir``, each module's bytecode for that Pyodide too (when Node.js can compile it)."""
     version = read_version()
     name = f"fieldphasor-{version}-py3-none-any.whl"
     info = f"fieldphasor-{version}.dist-info"
@@ -30,6 +35,8 @@ def build_app_wheel(out_dir: str) -> str:
                     full = os.path.join(folder, n)
                     with open(full, "rb") as fh:
                         files.append((os.path.relpath(full, ROOT).replace(os.sep, "/"), fh.read()))
+    if pyodide_dir:
+        files += sorted(_bytecode(files, pyodide_dir).items())
     meta = (
         "Metadata-Version: 2.1\n"
         f"Name: fieldphasor\nVersion: {version}\n"
@@ -53,3 +60,17 @@ def build_app_wheel(out_dir: str) -> str:
             zi.external_attr = 0o644 << 16
             zf.writestr(zi, data)
     return name
+
+
+def _bytecode(sources: list[tuple[str, bytes]], pyodide_dir: str) -> dict[str, bytes]:
+    """``{"app/__pycache__/x.<tag>.pyc": bytes}`` for ``sources``, or ``{}`` without Node.js."""
+    import tempfile
+
+    from .stdlib_pyc import compile_archive
+
+    with tempfile.TemporaryDirectory() as tmp:
+        src = os.path.join(tmp, "src.zip")
+        with zipfile.ZipFile(src, "w") as zf:
+            for arc, data in sources:
+                zf.writestr(zipfile.ZipInfo(arc, FIXED_TIME), data)
+        return compile_archive(src, pyodide_dir, "site") or {}

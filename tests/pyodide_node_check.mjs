@@ -1,6 +1,7 @@
 // Runs the app in Pyodide under Node.js (the same runtime and Python 3.14 as the browser) from a
 // built dist/, with the standard-library archive given, and prints JSON: the standard-library
 // modules loaded from that archive (the files behind them), the interpreter's .pyc magic number,
+// the app modules compiled from source rather than loaded from the wheel's bytecode,
 // each worksheet's default result and each report format's text for the job in JOB_JSON. Used by tests/test_stdlib.py.
 // Usage: node pyodide_node_check.mjs DIST STDLIB_ZIP JOB_JSON
 import { readFileSync } from "node:fs";
@@ -19,7 +20,14 @@ const site = py.runPython("import sys\n[p for p in sys.path if p.endswith('site-
 py.unpackArchive(new Uint8Array(readFileSync(join(dist, "wheels", info.app_wheel))), "wheel", { extractDir: site });
 py.globals.set("job_text", readFileSync(jobFile, "utf-8"));
 const out = py.runPython(`
-import importlib.util, json, sys
+import importlib._bootstrap_external as bootstrap, importlib.util, json, sys
+# every module compiled from source from here on (one loaded from a .pyc is not)
+from_source = []
+to_code = bootstrap.SourceLoader.source_to_code
+def counted(self, data, path, *args, **kwargs):
+    from_source.append(path)
+    return to_code(self, data, path, *args, **kwargs)
+bootstrap.SourceLoader.source_to_code = counted
 base = set(sys.modules)
 from app import bridge, bytecache, snapshot
 snapshot.prepare()  # every worksheet on its defaults, every report format, jobs export/validate
@@ -28,6 +36,9 @@ out = {
     "results": {s: bridge.compute(s, "{}") for s in bridge.sheets()},
     "reports": {f: bridge.report(job_text, f, '{"date": "2000-01-01"}') for f in ("html", "text", "csv")},
     "magic": importlib.util.MAGIC_NUMBER.hex(),  # what this interpreter's .pyc files start with
+    "cache_tag": sys.implementation.cache_tag,  # and what their names in __pycache__ carry
+    # the app's own modules that had to be compiled here (none when the wheel carries their bytecode)
+    "app_from_source": sorted(p for p in from_source if "/site-packages/" in p),
     # column ranges in one archive module's code (compiled here, they are always there)
     "columns": sum(p[2] is not None for p in sys.modules["dataclasses"].dataclass.__code__.co_positions()),
     # the archive's files behind every loaded module (frozen and aliased modules name theirs too)

@@ -147,9 +147,12 @@ def test_app_wheel_is_pure_python_and_complete(dist):
     with zipfile.ZipFile(path) as zf:
         names = set(zf.namelist())
         assert "pycore/phasor.py" in names and "app/bridge.py" in names
-        assert not any(n.endswith((".so", ".pyc")) for n in names)
+        assert not any(n.endswith(".so") for n in names)
+        # bytecode only in __pycache__, beside its source (tests/test_stdlib.py checks it loads)
+        assert all("/__pycache__/" in n for n in names if n.endswith(".pyc"))
         record = zf.read(next(n for n in names if n.endswith("RECORD"))).decode()
         assert "app/bridge.py,sha256=" in record
+        assert all(f"{n},sha256=" in record for n in names if not n.endswith("RECORD"))
         # stored, so the copies a server sends compress across files
         assert {i.compress_type for i in zf.infolist()} == {zipfile.ZIP_STORED}
     assert os.path.getsize(path + ".gz") < 0.9 * os.path.getsize(path)

@@ -134,6 +134,16 @@ def test_pyodide_runs_every_worksheet_and_report_from_the_trimmed_archive(dist, 
         assert sorted(n for n, head in compiled.items() if head[4:8] != (1).to_bytes(4, "little")) == []  # unchecked hash
         # compiled without column ranges (a quarter of the archive), line numbers kept
         assert trimmed["columns"] == 0 and whole["columns"] > 0
+        # the app wheel carries its modules' bytecode too: each has one, for this interpreter,
+        # and no app module was compiled from source in the run
+        with zipfile.ZipFile(os.path.join(dist, "wheels", json.load(open(os.path.join(dist, "engine.json")))["app_wheel"])) as whl:
+            wnames = whl.namelist()
+            heads = {n: whl.read(n)[:8] for n in wnames if n.endswith(".pyc")}
+        sources = [n for n in wnames if n.endswith(".py")]
+        tag = trimmed["cache_tag"]
+        assert sorted(f"{n.rpartition('/')[0]}/__pycache__/{n.rpartition('/')[2][:-3]}.{tag}.pyc" for n in sources) == sorted(heads)
+        assert {h for h in heads.values()} == {magic + (1).to_bytes(4, "little")}
+        assert trimmed["app_from_source"] == [] and whole["app_from_source"] == []
         # loaded from bytecode (the .py names left are frozen modules, which name their source)
         assert len([f for f in trimmed["files"] if f.endswith(".pyc")]) > 50
 
