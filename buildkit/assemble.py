@@ -17,7 +17,7 @@ from .fetch import PYODIDE_FILES, PYODIDE_VERSION, WHEELS, fetch_pyodide, fetch_
 from .icons import build_icons
 from .prerender import render_index
 from .stdlib import write_trimmed
-from .wheel import build_app_wheel
+from .wheel import APP_PATH, build_app_wheel
 from .workerbundle import bundle
 
 # Shipped but not precached: fetched (and then kept, digest-checked, by the service worker) only by
@@ -131,6 +131,7 @@ def build(quiet: bool = False) -> str:
         "pyodide": PYODIDE_VERSION,
         "wheels": sorted(WHEELS),
         "app_wheel": app_wheel,
+        "app_path": APP_PATH,
         "app_wheel_sha256": sha256_file(os.path.join(tmp, "wheels", app_wheel)),
         # loadPyodide waits for a package list before it returns; the app installs no Pyodide
         # packages, so the default start passes this one (Pyodide's own "info", no packages)

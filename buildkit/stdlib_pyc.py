@@ -42,14 +42,9 @@ py.runPython(`
 import _imp, importlib.util, marshal, os, sys, zipfile
 assert os.environ.get("PYTHONHASHSEED") == "0" and hash("fp") == hash("f" + "p")
 # where the modules will live, as their __file__ shows it: inside Pyodide's standard-library zip
-# (e.g. /lib/python314.zip, each .pyc in place of its source) or in site-packages (each .pyc in
-# __pycache__ beside its source, named with this interpreter's cache tag)
-if where == "stdlib":
-    home = os.__file__.split(".zip/", 1)[0] + ".zip"
-    place = lambda name: name + "c"
-else:
-    home = [p for p in sys.path if p.endswith("site-packages")][0]
-    place = importlib.util.cache_from_source
+# (e.g. /lib/python314.zip) or inside the zip named by where (the app wheel, imported from the
+# file by zipimport, which takes mod.pyc beside mod.py when its header says "unchecked")
+home = os.__file__.split(".zip/", 1)[0] + ".zip" if where == "stdlib" else where
 with zipfile.ZipFile("/tmp/src.zip") as src, zipfile.ZipFile("/tmp/out.zip", "w") as out:
     for name in sorted(src.namelist()):
         if not name.endswith(".py"):
@@ -58,13 +53,10 @@ with zipfile.ZipFile("/tmp/src.zip") as src, zipfile.ZipFile("/tmp/out.zip", "w"
         code = compile(data, f"{home}/{name}", "exec", dont_inherit=True, optimize=0)
         # PEP 552 header: magic, flags 0b01 (hash-based, unchecked), the source's hash
         pyc = importlib.util.MAGIC_NUMBER + (1).to_bytes(4, "little") + importlib.util.source_hash(data) + marshal.dumps(code)
-        out.writestr(zipfile.ZipInfo(place(name), (1980, 1, 1, 0, 0, 0)), pyc)
+        out.writestr(zipfile.ZipInfo(name + "c", (1980, 1, 1, 0, 0, 0)), pyc)
 `);
 fs.writeFileSync(dest, py.FS.readFile("/tmp/out.zip"));
 """
-
-
-LABELS = {"stdlib": "standard library", "site": "app wheel"}
 
 
 def _digest(src_zip: str, pyodide_dir: str, where: str) -> str:
@@ -80,13 +72,14 @@ def _digest(src_zip: str, pyodide_dir: str, where: str) -> str:
 def compile_archive(src_zip: str, pyodide_dir: str, where: str = "stdlib") -> dict[str, bytes] | None:
     """``{"pkg/mod.pyc": bytes}`` for every ``.py`` in ``src_zip``, compiled by the Pyodide in
     ``pyodide_dir`` under Node.js; ``None`` when Node.js is missing or compiling fails.
-    ``where="site"``: the modules are to be unpacked into site-packages, so each is named
-    ``pkg/__pycache__/mod.<cache tag>.pyc`` (beside its source) and its code names its file there."""
+    ``where``: ``"stdlib"`` for Pyodide's standard-library zip, or the path of the zip the modules
+    will be imported from (the app wheel), which their code names as its file."""
+    what = "standard library" if where == "stdlib" else "app wheel"
     cached = os.path.join(CACHE, "pyc", _digest(src_zip, pyodide_dir, where) + ".zip")
     if not os.path.exists(cached):
         node = shutil.which("node")
         if not node or os.environ.get("FP_NO_PYC"):
-            log(f"{LABELS[where]} shipped as source (no Node.js, or FP_NO_PYC set)")
+            log(f"{what} shipped as source (no Node.js, or FP_NO_PYC set)")
             return None
         os.makedirs(os.path.dirname(cached), exist_ok=True)
         with tempfile.TemporaryDirectory() as tmp:
@@ -99,12 +92,12 @@ def compile_archive(src_zip: str, pyodide_dir: str, where: str = "stdlib") -> di
                                check=True, capture_output=True, timeout=600)
             except (OSError, subprocess.SubprocessError) as err:
                 detail = getattr(err, "stderr", b"") or b""
-                log(f"{LABELS[where]} shipped as source: compiling under Node.js failed ({err}) "
+                log(f"{what} shipped as source: compiling under Node.js failed ({err}) "
                     + detail.decode("utf-8", "replace")[-500:])
                 return None
             shutil.move(part, cached)
     elif os.environ.get("FP_NO_PYC"):
-        log(f"{LABELS[where]} shipped as source (FP_NO_PYC set)")
+        log(f"{what} shipped as source (FP_NO_PYC set)")
         return None
     with zipfile.ZipFile(cached) as zf:
         return {n: zf.read(n) for n in zf.namelist()}

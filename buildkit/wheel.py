@@ -2,11 +2,12 @@
 
 Its entries are stored, not deflated: the build writes gzip and Brotli copies of the whole wheel
 (assemble.py), which compress across files (0.29 MB deflated per entry; stored, 0.24 MB gzipped and
-0.19 MB with Brotli on the wire). The worker unpacks it once per start either way.
+0.19 MB with Brotli on the wire).
 
-With Node.js the wheel also carries each module's ``.pyc`` in ``__pycache__`` beside its source,
-compiled by Pyodide's own Python (buildkit/stdlib_pyc.py, hash-based and unchecked, no column
-ranges), so a first visit imports the app without compiling it."""
+The worker writes the wheel to :data:`APP_PATH` and imports the app from it (zipimport). With
+Node.js the wheel also carries each module's ``.pyc`` beside its source (``app/x.pyc``, where
+zipimport looks first), compiled by Pyodide's own Python (buildkit/stdlib_pyc.py: hash-based and
+unchecked, no column ranges), so no start, not even a first visit, compiles the app."""
 
 from __future__ import annotations
 
@@ -18,6 +19,9 @@ import zipfile
 from .common import ROOT, read_version
 
 FIXED_TIME = (2020, 2, 2, 0, 0, 0)  # zip entries get one fixed time so builds are byte-identical
+#: where the worker writes the app wheel in Pyodide's file system (engine.json "app_path"); the
+#: app's modules are imported from it, and their bytecode names its files there
+APP_PATH = "/lib/fp-app.whl"
 
 
 def build_app_wheel(out_dir: str, pyodide_dir: str | None = None) -> str:
@@ -63,7 +67,7 @@ def build_app_wheel(out_dir: str, pyodide_dir: str | None = None) -> str:
 
 
 def _bytecode(sources: list[tuple[str, bytes]], pyodide_dir: str) -> dict[str, bytes]:
-    """``{"app/__pycache__/x.<tag>.pyc": bytes}`` for ``sources``, or ``{}`` without Node.js."""
+    """``{"app/x.pyc": bytes}`` for ``sources``, or ``{}`` without Node.js."""
     import tempfile
 
     from .stdlib_pyc import compile_archive
@@ -73,4 +77,4 @@ def _bytecode(sources: list[tuple[str, bytes]], pyodide_dir: str) -> dict[str, b
         with zipfile.ZipFile(src, "w") as zf:
             for arc, data in sources:
                 zf.writestr(zipfile.ZipInfo(arc, FIXED_TIME), data)
-        return compile_archive(src, pyodide_dir, "site") or {}
+        return compile_archive(src, pyodide_dir, APP_PATH) or {}

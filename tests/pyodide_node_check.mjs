@@ -16,29 +16,31 @@ const py = await loadPyodide({
   indexURL: join(dist, "pyodide") + "/", stdLibURL: stdlib, lockFileContents: Promise.resolve(info.pyodide_lock),
   stdout: () => {}, stderr: (s) => console.error(s),
 });
-const site = py.runPython("import sys\n[p for p in sys.path if p.endswith('site-packages')][0]");
-py.unpackArchive(new Uint8Array(readFileSync(join(dist, "wheels", info.app_wheel))), "wheel", { extractDir: site });
+// the app imported from the wheel file, as the worker does (web/worker-caches.js mountApp)
+py.FS.writeFile(info.app_path, new Uint8Array(readFileSync(join(dist, "wheels", info.app_wheel))));
+py.globals.set("app_path", info.app_path);
 py.globals.set("job_text", readFileSync(jobFile, "utf-8"));
 const out = py.runPython(`
-import importlib._bootstrap_external as bootstrap, importlib.util, json, sys
-# every module compiled from source from here on (one loaded from a .pyc is not)
+import importlib._bootstrap_external as bootstrap, importlib.util, json, sys, zipimport
+# every module compiled from source from here on, by either loader (one loaded from a .pyc is not)
 from_source = []
-to_code = bootstrap.SourceLoader.source_to_code
-def counted(self, data, path, *args, **kwargs):
-    from_source.append(path)
-    return to_code(self, data, path, *args, **kwargs)
-bootstrap.SourceLoader.source_to_code = counted
-base = set(sys.modules)
-from app import bridge, bytecache, snapshot
+def counting(compile_source):
+    def counted(*args, **kwargs):
+        from_source.append(next(a for a in args if isinstance(a, str) and a.endswith(".py")))
+        return compile_source(*args, **kwargs)
+    return counted
+bootstrap.SourceLoader.source_to_code = counting(bootstrap.SourceLoader.source_to_code)
+zipimport._compile_source = counting(zipimport._compile_source)
+sys.path.append(app_path)
+from app import bridge, snapshot
 snapshot.prepare()  # every worksheet on its defaults, every report format, jobs export/validate
-bytecache.archive(base)
 out = {
     "results": {s: bridge.compute(s, "{}") for s in bridge.sheets()},
     "reports": {f: bridge.report(job_text, f, '{"date": "2000-01-01"}') for f in ("html", "text", "csv")},
     "magic": importlib.util.MAGIC_NUMBER.hex(),  # what this interpreter's .pyc files start with
-    "cache_tag": sys.implementation.cache_tag,  # and what their names in __pycache__ carry
     # the app's own modules that had to be compiled here (none when the wheel carries their bytecode)
-    "app_from_source": sorted(p for p in from_source if "/site-packages/" in p),
+    "app_from_source": sorted(p for p in from_source if p.startswith(app_path)),
+    "app_loaded_from": sorted({m.__file__.rpartition("/app/")[0] for n, m in sys.modules.items() if n.startswith("app.")}),
     # column ranges in one archive module's code (compiled here, they are always there)
     "columns": sum(p[2] is not None for p in sys.modules["dataclasses"].dataclass.__code__.co_positions()),
     # the archive's files behind every loaded module (frozen and aliased modules name theirs too)

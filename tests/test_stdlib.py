@@ -3,7 +3,7 @@
 Two checks, because CPython 3.11 here and Pyodide's Python 3.14 import different submodules
 (3.11's fractions imports decimal when it loads; 3.14's only inside a function):
 - in CPython: import every module of app/ and pycore/ and run every worksheet, report format, jobs
-  export, the snapshot warm-up and the bytecode cache, recording each import the app's own code
+  export and the snapshot warm-up, recording each import the app's own code
   makes (any depth: a function-level import counts when it runs); every standard-library module so
   imported that is pure Python in Pyodide's library (has source in its python_stdlib.zip) must be
   in the trimmed archive. What those modules import in turn is 3.14's business, hence:
@@ -68,9 +68,8 @@ for pkg in ("pycore", "app"):
     mod = importlib.import_module(pkg)
     for info in pkgutil.walk_packages(mod.__path__, pkg + "."):
         importlib.import_module(info.name)
-from app import bridge, bytecache, snapshot
+from app import bridge, snapshot
 snapshot.prepare()
-bytecache.archive(before)
 demo = bridge.demo_job()
 for f in ("html", "text", "csv"):
     bridge.report(demo, f, '{"date": "2000-01-01"}')
@@ -84,9 +83,9 @@ def test_every_stdlib_module_the_app_imports_is_in_the_archive(dist):
     full = archive_modules(os.path.join(dist, FULL_STDLIB))
     trimmed = archive_modules(os.path.join(dist, "pyodide", "python_stdlib.zip"))
     assert trimmed < full
-    assert {"json", "dataclasses", "zipfile", "fractions"} <= trimmed  # what the app plainly imports
+    assert {"json", "dataclasses", "fractions"} <= trimmed  # what the app plainly imports
     needed = {m for m in loaded if m.split(".")[0] not in ("app", "pycore") and m in full}
-    assert {"json", "dataclasses", "zipfile"} <= needed, "the recording saw too little"
+    assert {"json", "dataclasses", "fractions"} <= needed, "the recording saw too little"
     assert sorted(needed - trimmed) == []
 
 
@@ -134,15 +133,15 @@ def test_pyodide_runs_every_worksheet_and_report_from_the_trimmed_archive(dist, 
         assert sorted(n for n, head in compiled.items() if head[4:8] != (1).to_bytes(4, "little")) == []  # unchecked hash
         # compiled without column ranges (a quarter of the archive), line numbers kept
         assert trimmed["columns"] == 0 and whole["columns"] > 0
-        # the app wheel carries its modules' bytecode too: each has one, for this interpreter,
-        # and no app module was compiled from source in the run
-        with zipfile.ZipFile(os.path.join(dist, "wheels", json.load(open(os.path.join(dist, "engine.json")))["app_wheel"])) as whl:
-            wnames = whl.namelist()
-            heads = {n: whl.read(n)[:8] for n in wnames if n.endswith(".pyc")}
-        sources = [n for n in wnames if n.endswith(".py")]
-        tag = trimmed["cache_tag"]
-        assert sorted(f"{n.rpartition('/')[0]}/__pycache__/{n.rpartition('/')[2][:-3]}.{tag}.pyc" for n in sources) == sorted(heads)
+        # the app wheel carries its modules' bytecode too, each beside its source, for this
+        # interpreter; the app was imported from the wheel file and none of it compiled from source
+        engine = json.load(open(os.path.join(dist, "engine.json")))
+        with zipfile.ZipFile(os.path.join(dist, "wheels", engine["app_wheel"])) as whl:
+            heads = {n: whl.read(n)[:8] for n in whl.namelist() if n.endswith(".pyc")}
+            sources = [n for n in whl.namelist() if n.endswith(".py")]
+        assert sorted(n + "c" for n in sources) == sorted(heads)
         assert {h for h in heads.values()} == {magic + (1).to_bytes(4, "little")}
+        assert trimmed["app_loaded_from"] == [engine["app_path"]]
         assert trimmed["app_from_source"] == [] and whole["app_from_source"] == []
         # loaded from bytecode (the .py names left are frozen modules, which name their source)
         assert len([f for f in trimmed["files"] if f.endswith(".pyc")]) > 50

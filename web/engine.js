@@ -7,7 +7,7 @@
 // the response came from. A maker started by the engine worker on a first visit (not yet
 // controlled) read it from the network, so later offline starts found no compiled code in 2 of 4
 // fresh profiles and ran unoptimised code until some long session stored it (docs/performance.md).
-const MAKER_DELAY_MS = 3000; // after the first result and the bytecode save, not during them
+const MAKER_DELAY_MS = 3000; // after the first result and its first edits, not during them
 // V8 hands its optimised code over for storing only once its compiler has been quiet a while (its
 // caching timeout, 2 s by default: from memory); a maker ended at once sometimes left none stored.
 const MAKER_HOLD_MS = 4000;

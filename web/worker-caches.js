@@ -1,7 +1,7 @@
 // What the engine worker keeps and fetches, apart from its message loop (worker.js): the app wheel
-// (fetched, checked against engine.json's SHA-256, unpacked), the memory snapshot (one per build,
-// made on the device) and the bytecode cache (one per build). Everything here is an optimisation
-// or an integrity check; no engineering logic. See DEVELOPERS.md for what each one gains.
+// (fetched, checked against engine.json's SHA-256, imported from) and the memory snapshot (one per
+// build, made on the device). Everything here is an optimisation or an integrity check; no
+// engineering logic. See DEVELOPERS.md for what each one gains.
 import { loadPyodide } from "./pyodide/pyodide.mjs";
 
 export const here = (path) => new URL(path, import.meta.url).href;
@@ -38,27 +38,19 @@ export async function fetchWheel(info) {
   return buf;
 }
 
-// Unpack the verified wheel straight into site-packages, as micropip would after resolving it,
-// without loading micropip itself (see DEVELOPERS.md for the figures).
-export function unpackWheel(pyodide, buf) {
-  // site-packages from sys.path (sysconfig would cost a module compile at every start)
-  const site = pyodide.runPython("import sys\n[p for p in sys.path if p.endswith('site-packages')][0]");
-  pyodide.unpackArchive(buf, "wheel", { extractDir: site });
-}
-
-// The snapshot's interpreter imports the app from the wheel itself (zipimport), not from unpacked
-// files: a restored interpreter then needs only this one file written back (well under 1 ms),
-// where unpacking the wheel's files took 22–42 ms of every warm start (docs/performance.md).
-// Everything the app imports is in the snapshot already; the path serves anything imported later.
-const APP_ZIP = "/lib/fp-app.whl";
-
-function writeAppZip(pyodide, buf) {
-  pyodide.FS.writeFile(APP_ZIP, new Uint8Array(buf));
+// The app is imported from the verified wheel itself, written to engine.json's app_path (zipimport,
+// which takes the .pyc the build put beside each module): one file written, nothing unpacked or
+// compiled. Unpacking it into site-packages took 22-42 ms of every warm start and 140-240 ms of a
+// first visit (docs/performance.md). A restored snapshot has the path on sys.path already.
+export function mountApp(pyodide, buf, info) {
+  pyodide.FS.writeFile(info.app_path, new Uint8Array(buf));
+  const path = JSON.stringify(info.app_path);
+  pyodide.runPython(`import sys\nif ${path} not in sys.path: sys.path.append(${path})`);
 }
 
 // ---- memory snapshot: one per build, made on the device by a short-lived second worker ----
 const SNAPSHOT_CACHE = "fp-snapshot";
-// The key also names how the snapshot's interpreter finds the app ("appzip": imports from APP_ZIP),
+// The key also names how the snapshot's interpreter finds the app ("appzip": imports from the wheel file at app_path),
 // so a snapshot an older worker made (the wheel unpacked) is never restored by this one.
 const snapshotKey = (info) => here(`./__snapshot/${info.app_wheel_sha256}-${info.pyodide}-appzip.bin`);
 
@@ -145,7 +137,7 @@ export async function bootFromSnapshot(info, hit, appWheel, pyodideOpts, mark) {
     memory.catch(() => {}); // handled: loadPyodide awaits it and the catch below reports it
     const pyodide = await loadPyodide({ ...pyodideOpts, _loadSnapshot: memory });
     mark("snapshot-restored");
-    writeAppZip(pyodide, await appWheel);
+    mountApp(pyodide, await appWheel, info);
     const probe = pyodide.runPython("from app import snapshot\nsnapshot.probe()");
     if (probe !== hit.headers.get("x-fp-probe")) throw new Error("its probe result differs from a fresh start's");
     mark("snapshot-checked");
@@ -163,53 +155,15 @@ export async function makeSnapshot(pyodideOpts) {
   const info = await fetchInfo();
   const appWheel = fetchWheel(info);
   const pyodide = await loadPyodide({ ...pyodideOpts, _makeSnapshot: true });
-  writeAppZip(pyodide, await appWheel);
+  mountApp(pyodide, await appWheel, info);
   // Imports the bridge and every worksheet and runs each on its defaults: no user data is ever in a snapshot.
-  const probe = pyodide.runPython(`import sys\nsys.path.append(${JSON.stringify(APP_ZIP)})\nfrom app import bridge, snapshot\nsnapshot.prepare()`);
+  const probe = pyodide.runPython("from app import bridge, snapshot\nsnapshot.prepare()");
   const { body, layout } = packSnapshot(pyodide.makeMemorySnapshot());
   const cache = await caches.open(SNAPSHOT_CACHE);
   const key = snapshotKey(info);
   const headers = { "Content-Type": "application/octet-stream", "x-fp-probe": probe, "x-fp-layout": layout };
   await cache.put(key, new Response(body, { headers }));
   for (const req of await cache.keys()) if (req.url !== key) await cache.delete(req); // keep only this build's
+  await caches.delete("fp-bytecode"); // a bytecode cache the builds before 2026-12-03 kept
   return body.length;
-}
-
-// ---- bytecode cache (see app/bytecache.py): compile once per build, not on every start ----
-// Used when there is no memory snapshot yet (the first starts of a build) or it was refused.
-const BYTECODE_CACHE = "fp-bytecode";
-const bytecodeKey = (info) => here(`./__bytecode/${info.app_wheel_sha256}-${info.pyodide}.zip`);
-
-export async function readBytecode(info) {
-  try {
-    const hit = await (await caches.open(BYTECODE_CACHE)).match(bytecodeKey(info));
-    return hit ? await hit.arrayBuffer() : null;
-  } catch (err) {
-    console.warn("bytecode cache not readable:", err);
-    return null;
-  }
-}
-
-export function restoreBytecode(pyodide, buffer, mark) {
-  if (!buffer) return;
-  try {
-    pyodide.unpackArchive(buffer, "zip", { extractDir: "/" });
-    // No importlib.invalidate_caches(): in Python 3.14 it imports importlib.metadata (~45 ms here).
-    // A new sys.path entry has no cached finder, and directory finders re-list on a changed mtime.
-    pyodide.runPython("import sys\nsys.path.insert(0, '/lib/fp-pyc')\nsys.path_importer_cache.pop('/lib/fp-pyc', None)");
-    mark("bytecode-restored");
-  } catch (err) {
-    console.warn("bytecode cache not used:", err);
-  }
-}
-
-/** Compile every module imported since ``__fp_baseline`` was taken and store the archive for this build. */
-export async function saveBytecode(pyodide, info) {
-  const proxy = pyodide.runPython("from app import bytecache\nbytecache.archive(__fp_baseline)");
-  const bytes = proxy.toJs();
-  proxy.destroy();
-  const cache = await caches.open(BYTECODE_CACHE);
-  const key = bytecodeKey(info);
-  await cache.put(key, new Response(bytes, { headers: { "Content-Type": "application/zip" } }));
-  for (const req of await cache.keys()) if (req.url !== key) await cache.delete(req); // keep only this build's
 }

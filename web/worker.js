@@ -1,20 +1,19 @@
 // Hosts Pyodide: boots it (from this build's memory snapshot when there is a good one), installs
 // the app's own wheel offline, and answers {id, op, ...} messages with {id, result} or {id, error}.
 // No engineering logic here. The same file, started by the page under the name "snapshot-maker",
-// makes the snapshot (see app/snapshot.py and DEVELOPERS.md). The wheel, snapshot and bytecode
-// caches are in worker-caches.js; the build joins both with Pyodide's loader into one dist/worker.js.
+// makes the snapshot (see app/snapshot.py and DEVELOPERS.md). The wheel and the snapshot are in
+// worker-caches.js; the build joins both with Pyodide's loader into one dist/worker.js.
 import { loadPyodide } from "./pyodide/pyodide.mjs";
 import {
-  here, fetchInfo, pyodideOptions, fetchWheel, unpackWheel, maySnapshot, findSnapshot, bootFromSnapshot, makeSnapshot,
-  readBytecode, restoreBytecode, saveBytecode,
+  here, fetchInfo, pyodideOptions, fetchWheel, mountApp, maySnapshot, findSnapshot, bootFromSnapshot, makeSnapshot,
 } from "./worker-caches.js";
 
 // Options arrive in the worker's name ("engine&installer=micropip&snapshot=off"): a URL query
 // would be lost when the service worker answers with the cached script.
 const OPTS = new URLSearchParams(self.name || "");
 const ROLE = OPTS.has("snapshot-maker") ? "maker" : "engine";
-const INSTALLER = OPTS.get("installer") === "micropip" ? "micropip" : "unpack";
-const USE_SNAPSHOT = OPTS.get("snapshot") !== "off" && INSTALLER === "unpack";
+const INSTALLER = OPTS.get("installer") === "micropip" ? "micropip" : "zip";
+const USE_SNAPSHOT = OPTS.get("snapshot") !== "off" && INSTALLER === "zip";
 const marks = {};
 // Marks are sent in the page's time: this worker's clock plus its time origin.
 const mark = (name) => {
@@ -55,7 +54,6 @@ async function bootEngine() {
     info = info || await infoP;
     appWheel = appWheel || fetchWheel(info);
   }
-  const bytecode = booting ? readBytecode(info) : null; // from Cache Storage, also while the interpreter boots
   if (booting) {
     pyodide = await booting;
     mark("python-ready");
@@ -68,12 +66,10 @@ async function bootEngine() {
       const micropip = pyodide.pyimport("micropip");
       await micropip.install.callKwargs(`emfs:/tmp/wheels/${info.app_wheel}`, { deps: false });
     } else {
-      unpackWheel(pyodide, buf);
+      mountApp(pyodide, buf, info);
     }
     mark("app-installed");
     mark(`installed-with-${INSTALLER}`);
-    restoreBytecode(pyodide, await bytecode, mark);
-    pyodide.runPython("import sys\n__fp_baseline = set(sys.modules)");
   }
   const bridge = pyodide.pyimport("app.bridge");
   mark("engine-ready");
@@ -81,26 +77,10 @@ async function bootEngine() {
   return bridge;
 }
 
-// After a compute on an interpreter that did not come from a snapshot: save the bytecode of any
-// newly imported modules (once things are quiet), and have the snapshot made.
-let savedModules = 0;
-let saveTimer = 0;
+// After a compute on an interpreter that did not come from a snapshot: have the snapshot made.
 function afterCompute() {
   if (!engine || engine.fromSnapshot || !self.caches) return;
   askForSnapshot();
-  const n = engine.pyodide.runPython("import sys\nlen(sys.modules)");
-  if (n === savedModules) return;
-  clearTimeout(saveTimer);
-  saveTimer = setTimeout(async () => {
-    try {
-      const { pyodide, info } = engine;
-      savedModules = pyodide.runPython("import sys\nlen(sys.modules)");
-      await saveBytecode(pyodide, info);
-      mark("bytecode-saved");
-    } catch (err) {
-      console.warn("bytecode cache not saved:", err);
-    }
-  }, 1500);
 }
 
 const OPS = {

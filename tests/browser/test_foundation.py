@@ -134,22 +134,17 @@ def test_tablet_layout_puts_inputs_beside_results(tablet):
     shot(tablet, "impedance-tablet")
 
 
-def test_second_start_uses_bytecode_cache_and_gives_same_answers(browser, site):
-    # The bytecode cache serves starts without a memory snapshot (?snapshot=off forces that path).
+def test_a_start_without_snapshot_imports_the_app_from_its_wheel_and_gives_cpythons_answers(browser, site):
+    # ?snapshot=off forces the path a first visit takes: the wheel written as one file and imported
+    # from (its .pyc beside each module; tests/test_stdlib.py shows none is compiled from source)
     ctx = browser.new_context(viewport=PHONE)
     try:
         page = ctx.new_page()
         page.goto(site + "?snapshot=off#/sheet/correction")
         wait_ready(page)
         settle(page)
-        # the worker saves compiled bytecode shortly after the first result
-        page.wait_for_function("() => 'bytecode-saved' in window.fieldphasor.engine.marks", timeout=30_000)
-        page.close()
-        page = ctx.new_page()
-        page.goto(site + "?snapshot=off#/sheet/correction")
-        wait_ready(page)
-        settle(page)
-        assert "bytecode-restored" in page.evaluate("() => window.fieldphasor.engine.marks")
+        marks = page.evaluate("() => window.fieldphasor.engine.marks")
+        assert "installed-with-zip" in marks and "snapshot-restored" not in marks
         res = page.evaluate("() => window.fieldphasor.state.lastResult")
         ref = cpython_compute("correction", page.evaluate("() => ({...window.fieldphasor.state.inputs})"))
         assert [(r["name"], r["display"]) for r in res["results"]] == [(r["name"], r["display"]) for r in ref["results"]]
