@@ -39,7 +39,7 @@ ALWAYS = {
     "encodings.utf_8_sig": "source files with a byte-order mark",
     "encodings.ascii": "codecs.lookup('ascii'), e.g. str.encode with an error handler",
     "encodings.latin_1": "codecs.lookup('latin-1')",
-    "encodings.cp437": "zipfile decodes member names without the UTF-8 flag with it (unpacking wheels)",
+    "encodings.cp437": "zipfile decodes member names without the UTF-8 flag with it",
     # Pyodide's own Python side. Its JavaScript imports these by name (pyodide.asm.mjs:
     # import_module("pyodide"), ("pyodide.code"), ("pyodide.ffi"), ("pyodide._package_loader"),
     # ("_pyodide._base")); the rest of _pyodide is loaded by its C start-up.
@@ -47,7 +47,7 @@ ALWAYS = {
     "pyodide": "imported by loadPyodide",
     "pyodide.code": "runPython",
     "pyodide.ffi": "the JS/Python proxies",
-    "pyodide._package_loader": "unpackArchive (the app wheel, the bytecode cache) and loadPackage (micropip)",
+    "pyodide._package_loader": "imported by Pyodide at start-up (unpackArchive, loadPackage)",
     "pyodide._state": "makeMemorySnapshot and restoring a snapshot",
     "pyodide.webloop": "the event loop Pyodide installs at start-up (micropip.install awaits on it)",
 }
