@@ -1,13 +1,13 @@
 """The trimmed standard library's modules, and the app wheel's, compiled to ``.pyc`` by Pyodide's
 own Python at build time.
 
-A first visit has no bytecode cache yet, so Pyodide compiles every standard-library module it
-imports while it boots (about 140 modules, 3.4 s of a 5.3 s boot under Node.js on this machine).
+Without bytecode, Pyodide compiles every module it imports: on a first visit about 140 standard-library
+modules while it boots (3.4 s of a 5.3 s boot under Node.js on this machine), then the app's 86.
 :func:`compile_archive` runs the pinned Pyodide under Node.js (the same interpreter as the
 browser, so the same magic number), compiles each ``.py`` of the given zip and returns
 ``{name.pyc: bytes}``: hash-based *unchecked* ``.pyc`` files (PEP 552: no timestamp; the source
-hash is written but never checked, as no source ships beside them), ``co_filename`` set to the
-module's path inside Pyodide's standard-library zip (tracebacks name the module), with
+hash is written but never checked, so no source is read), ``co_filename`` set to the module's path
+inside the zip it is imported from (tracebacks name the module), with
 ``PYTHONHASHSEED=0`` so set and frozenset constants marshal in the same order on every build, and
 ``PYTHONNODEBUGRANGES=1`` (Python's ``-X no_debug_ranges``): line numbers kept, column ranges left
 out, so a traceback through the standard library names the line without underlining the part of it.
