@@ -14,7 +14,7 @@ read line by line. :func:`write_trimmed` writes the chosen files, byte for byte 
 original order, into a new zip with fixed timestamps (reproducible), each file's comments and
 docstrings blanked (:func:`strip_source`: 0.92 → 0.57 MB deflated; the code is unchanged). With
 Node.js the build then ships each module as the ``.pyc`` Pyodide's own Python compiles from that
-(buildkit/stdlib_pyc.py; 1.14 MB deflated, column ranges left out), so a first visit's boot compiles nothing.
+(buildkit/bytecode.py; 1.14 MB deflated, column ranges left out), so a first visit's boot compiles nothing.
 """
 
 from __future__ import annotations
@@ -228,9 +228,9 @@ def write_trimmed(src_zip: str, dest_zip: str, roots: set[str] | None = None, py
     """Write ``dest_zip`` holding the modules :func:`needed_modules` finds (their code as in the
     original, comments and docstrings blanked by :func:`strip_source`; deflated, with fixed times).
     With ``pyodide_dir``, each module ships instead as the ``.pyc`` that Pyodide's own Python
-    compiles from that blanked source (buildkit/stdlib_pyc.py), or as source if that step is not
+    compiles from that blanked source (buildkit/bytecode.py), or as source if that step is not
     available. Returns a summary."""
-    from .stdlib_pyc import compile_archive
+    from .bytecode import compile_archive
 
     roots = app_imports() if roots is None else roots
     with zipfile.ZipFile(src_zip) as zf:

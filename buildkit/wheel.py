@@ -6,7 +6,7 @@ Its entries are stored, not deflated: the build writes gzip and Brotli copies of
 
 The worker writes the wheel to :data:`APP_PATH` and imports the app from it (zipimport). With
 Node.js the wheel also carries each module's ``.pyc`` beside its source (``app/x.pyc``, where
-zipimport looks first), compiled by Pyodide's own Python (buildkit/stdlib_pyc.py: hash-based and
+zipimport looks first), compiled by Pyodide's own Python (buildkit/bytecode.py: hash-based and
 unchecked, no column ranges), so no start, not even a first visit, compiles the app."""
 
 from __future__ import annotations
@@ -70,7 +70,7 @@ def _bytecode(sources: list[tuple[str, bytes]], pyodide_dir: str) -> dict[str, b
     """``{"app/x.pyc": bytes}`` for ``sources``, or ``{}`` without Node.js."""
     import tempfile
 
-    from .stdlib_pyc import compile_archive
+    from .bytecode import compile_archive
 
     with tempfile.TemporaryDirectory() as tmp:
         src = os.path.join(tmp, "src.zip")

@@ -259,7 +259,7 @@ def test_static_form_sections_are_the_full_forms_first_sections():
 def test_standard_library_bytecode_is_the_same_when_compiled_afresh(tmp_path, monkeypatch):
     """The rebuild above reuses .cache/pyc; compiling under Node.js twice with no cache gives the
     same bytes too (no timestamps, a fixed hash seed for set constants)."""
-    from buildkit import stdlib_pyc
+    from buildkit import bytecode
     from buildkit.fetch import fetch_pyodide
     from buildkit.stdlib import write_trimmed
 
@@ -268,7 +268,7 @@ def test_standard_library_bytecode_is_the_same_when_compiled_afresh(tmp_path, mo
     write_trimmed(os.path.join(pyodide_dir, "python_stdlib.zip"), src, roots={"json", "fractions", "dataclasses"})
     runs = []
     for i in range(2):
-        monkeypatch.setattr(stdlib_pyc, "CACHE", str(tmp_path / f"cache{i}"))
-        runs.append(stdlib_pyc.compile_archive(src, pyodide_dir))
+        monkeypatch.setattr(bytecode, "CACHE", str(tmp_path / f"cache{i}"))
+        runs.append(bytecode.compile_archive(src, pyodide_dir))
     assert runs[0] and "json/__init__.pyc" in runs[0] and "fractions.pyc" in runs[0]
     assert runs[0] == runs[1]

@@ -13,7 +13,7 @@ Two checks, because CPython 3.11 here and Pyodide's Python 3.14 import different
   whose import a library catches and works around is not silently missing either).
 The browser tests run from the same trimmed archive (it is dist/pyodide/python_stdlib.zip).
 With Node.js at build time its modules ship as .pyc compiled by Pyodide's own Python
-(buildkit/stdlib_pyc.py), with no source beside them: a .pyc Pyodide could not load (another
+(buildkit/bytecode.py), with no source beside them: a .pyc Pyodide could not load (another
 magic number) would make the Pyodide run fail, and the archive's .pyc headers are checked
 against the magic number that run reports.
 """
@@ -155,12 +155,12 @@ def test_build_ships_the_standard_library_compiled_when_node_is_there(dist):
 
 
 def test_without_node_the_archive_ships_source(tmp_path, monkeypatch):
-    from buildkit import stdlib_pyc
+    from buildkit import bytecode
     from buildkit.fetch import fetch_pyodide
     from buildkit.stdlib import write_trimmed
 
-    monkeypatch.setattr(stdlib_pyc, "CACHE", str(tmp_path / "cache"))  # nothing compiled yet
-    monkeypatch.setattr(stdlib_pyc.shutil, "which", lambda name: None)
+    monkeypatch.setattr(bytecode, "CACHE", str(tmp_path / "cache"))  # nothing compiled yet
+    monkeypatch.setattr(bytecode.shutil, "which", lambda name: None)
     pyodide_dir = fetch_pyodide()
     dest = str(tmp_path / "stdlib.zip")
     summary = write_trimmed(os.path.join(pyodide_dir, "python_stdlib.zip"), dest, roots={"json"}, pyodide_dir=pyodide_dir)

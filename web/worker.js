@@ -32,7 +32,7 @@ function askForSnapshot() {
 }
 
 // ---- the engine ----
-let engine = null;
+let fromSnapshot = false; // whether this interpreter was restored (then no snapshot needs making)
 
 async function bootEngine() {
   mark("worker-start");
@@ -73,14 +73,8 @@ async function bootEngine() {
   }
   const bridge = pyodide.pyimport("app.bridge");
   mark("engine-ready");
-  engine = { pyodide, info, fromSnapshot: !booting };
+  fromSnapshot = !booting;
   return bridge;
-}
-
-// After a compute on an interpreter that did not come from a snapshot: have the snapshot made.
-function afterCompute() {
-  if (!engine || engine.fromSnapshot || !self.caches) return;
-  askForSnapshot();
 }
 
 const OPS = {
@@ -113,7 +107,7 @@ if (ROLE === "maker") {
       if (!fn) throw new Error(`unknown operation '${op}'`);
       const result = fn(bridge, msg);
       postMessage({ id, result: typeof result === "string" ? result : String(result) });
-      if (op === "compute") afterCompute();
+      if (op === "compute" && !fromSnapshot) askForSnapshot(); // a first result: have the snapshot made
     } catch (err) {
       postMessage({ id, error: String((err && err.message) || err) });
     }
